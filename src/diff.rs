@@ -1,0 +1,237 @@
+//! Finite differences on non-uniform grids.
+//!
+//! Weights come from Fornberg's recursion (B. Fornberg, "Generation of finite difference formulas on
+//! arbitrarily spaced grids", Math. Comp. 51 (1988) 699–706), which gives the weights of every
+//! derivative order up to `m` on any set of distinct nodes in O(width² · m) operations.
+//!
+//! Two accuracy orders are offered. `order = 2` uses the 3-point stencil for r′ and r″ and the 5-point
+//! stencil for r‴; `order = 4` uses 5 points for r′ and r″ and 7 for r‴. These are the narrowest
+//! centred stencils whose error is O(h^order) on uniform and smoothly graded grids. Near the ends of a
+//! track the stencil slides inwards and keeps its width (one-sided): r′ keeps its formal order, the
+//! higher derivatives lose one, and the sample is flagged EDGE.
+
+/// Widest stencil used by any order.
+pub const MAX_WIDTH: usize = 7;
+/// Highest derivative order computed.
+pub const MAX_DERIV: usize = 3;
+
+/// Weights of one stencil: `w[j][k]` multiplies node `j` for derivative `k`.
+pub type Weights = [[f64; MAX_DERIV + 1]; MAX_WIDTH];
+
+/// Formal accuracy order of the finite differences.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum FdOrder {
+    /// 3-point r′, r″; 5-point r‴.
+    Two,
+    /// 5-point r′, r″; 7-point r‴.
+    Four,
+}
+
+impl FdOrder {
+    /// Parse the public integer form (2 or 4).
+    pub fn from_int(order: i64) -> Option<Self> {
+        match order {
+            2 => Some(FdOrder::Two),
+            4 => Some(FdOrder::Four),
+            _ => None,
+        }
+    }
+
+    /// Stencil width for r′ and r″.
+    pub fn width_low(self) -> usize {
+        match self {
+            FdOrder::Two => 3,
+            FdOrder::Four => 5,
+        }
+    }
+
+    /// Stencil width for r‴.
+    pub fn width_high(self) -> usize {
+        self.width_low() + 2
+    }
+
+    /// Fewest samples a track must have.
+    pub fn min_samples(self) -> usize {
+        self.width_low()
+    }
+}
+
+/// Fornberg's weights for derivatives `0..=m` at `z` on the nodes `x` (at most [`MAX_WIDTH`]).
+///
+/// # Examples
+///
+/// ```
+/// use osculate::diff::fornberg;
+/// // Central differences on a uniform grid of step 1: f' ≈ (f(1) - f(-1)) / 2.
+/// let w = fornberg(0.0, &[-1.0, 0.0, 1.0], 2);
+/// assert_eq!([w[0][1], w[1][1], w[2][1]], [-0.5, 0.0, 0.5]);
+/// assert_eq!([w[0][2], w[1][2], w[2][2]], [1.0, -2.0, 1.0]);
+/// ```
+pub fn fornberg(z: f64, x: &[f64], m: usize) -> Weights {
+    debug_assert!(x.len() <= MAX_WIDTH && m <= MAX_DERIV);
+    let mut c: Weights = [[0.0; MAX_DERIV + 1]; MAX_WIDTH];
+    let n = x.len();
+    if n == 0 {
+        return c;
+    }
+    let mut c1 = 1.0;
+    let mut c4 = x[0] - z;
+    c[0][0] = 1.0;
+    for i in 1..n {
+        let mn = i.min(m);
+        let mut c2 = 1.0;
+        let c5 = c4;
+        c4 = x[i] - z;
+        for j in 0..i {
+            let c3 = x[i] - x[j];
+            c2 *= c3;
+            if j == i - 1 {
+                for k in (1..=mn).rev() {
+                    c[i][k] = c1 * (k as f64 * c[i - 1][k - 1] - c5 * c[i - 1][k]) / c2;
+                }
+                c[i][0] = -c1 * c5 * c[i - 1][0] / c2;
+            }
+            for k in (1..=mn).rev() {
+                c[j][k] = (c4 * c[j][k] - k as f64 * c[j][k - 1]) / c3;
+            }
+            c[j][0] = c4 * c[j][0] / c3;
+        }
+        c1 = c2;
+    }
+    c
+}
+
+/// Where a stencil of `width` nodes sits for sample `i` of a track of `n` samples.
+///
+/// Returns the first node and whether the stencil is centred on `i`.
+#[inline]
+pub fn place(i: usize, width: usize, n: usize) -> (usize, bool) {
+    let half = width / 2;
+    let start = i.saturating_sub(half).min(n - width);
+    (start, start + half == i)
+}
+
+/// r′, r″ and r‴ of one sample, and whether any stencil was one-sided or narrowed.
+///
+/// `t` holds the track's times, `x` its positions row-major with `D` columns. r‴ is NaN when the
+/// track is too short to hold four nodes.
+#[inline]
+pub fn derivatives_at<const D: usize>(
+    t: &[f64],
+    x: &[f64],
+    i: usize,
+    order: FdOrder,
+) -> ([f64; D], [f64; D], [f64; D], bool) {
+    let n = t.len();
+    let wl = order.width_low().min(n);
+    let wh = order.width_high().min(n);
+    let mut edge = wl < order.width_low() || wh < order.width_high();
+
+    let (s, centred) = place(i, wl, n);
+    edge |= !centred;
+    let w = fornberg(t[i], &t[s..s + wl], 2);
+    let mut d1 = [0.0; D];
+    let mut d2 = [0.0; D];
+    for (j, wj) in w.iter().take(wl).enumerate() {
+        let row = &x[(s + j) * D..(s + j + 1) * D];
+        for k in 0..D {
+            d1[k] += wj[1] * row[k];
+            d2[k] += wj[2] * row[k];
+        }
+    }
+
+    let mut d3 = [f64::NAN; D];
+    if wh > MAX_DERIV {
+        let (s, centred) = place(i, wh, n);
+        edge |= !centred;
+        let w = fornberg(t[i], &t[s..s + wh], 3);
+        d3 = [0.0; D];
+        for (j, wj) in w.iter().take(wh).enumerate() {
+            let row = &x[(s + j) * D..(s + j + 1) * D];
+            for k in 0..D {
+                d3[k] += wj[3] * row[k];
+            }
+        }
+    }
+    (d1, d2, d3, edge)
+}
+
+/// The rows `[first, last]` that the stencils of sample `i` read.
+#[inline]
+pub fn reach(i: usize, n: usize, order: FdOrder) -> (usize, usize) {
+    let wh = order.width_high().min(n);
+    let (s, _) = place(i, wh, n);
+    (s, s + wh - 1)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use approx::assert_relative_eq;
+
+    #[test]
+    fn weights_are_exact_on_polynomials() {
+        // A stencil of w nodes differentiates polynomials of degree < w exactly (Fornberg 1988).
+        let x = [0.0, 0.13, 0.4, 0.71, 1.0];
+        let z = 0.4;
+        let w = fornberg(z, &x, 3);
+        let f = |u: f64| 2.0 - u + 3.0 * u * u - 0.5 * u.powi(3) + 0.25 * u.powi(4);
+        let exact = [
+            f(z),
+            -1.0 + 6.0 * z - 1.5 * z * z + z.powi(3),
+            6.0 - 3.0 * z + 3.0 * z * z,
+            -3.0 + 6.0 * z,
+        ];
+        for k in 0..=3 {
+            let est: f64 = x.iter().zip(w.iter()).map(|(&u, wj)| wj[k] * f(u)).sum();
+            assert_relative_eq!(est, exact[k], epsilon = 1e-10, max_relative = 1e-10);
+        }
+    }
+
+    #[test]
+    fn three_point_matches_textbook_nonuniform_formula() {
+        // Interior second-order formula of numpy.gradient for steps h1 (left), h2 (right).
+        let (h1, h2) = (0.3, 0.7);
+        let w = fornberg(0.0, &[-h1, 0.0, h2], 1);
+        let a = -h2 / (h1 * (h1 + h2));
+        let b = (h2 - h1) / (h1 * h2);
+        let c = h1 / (h2 * (h1 + h2));
+        assert_relative_eq!(w[0][1], a, max_relative = 1e-14);
+        assert_relative_eq!(w[1][1], b, max_relative = 1e-14);
+        assert_relative_eq!(w[2][1], c, max_relative = 1e-14);
+    }
+
+    #[test]
+    fn placement_slides_at_the_ends() {
+        assert_eq!(place(0, 3, 10), (0, false));
+        assert_eq!(place(1, 3, 10), (0, true));
+        assert_eq!(place(9, 3, 10), (7, false));
+        assert_eq!(place(1, 5, 10), (0, false));
+        assert_eq!(place(2, 5, 10), (0, true));
+        assert_eq!(place(0, 3, 3), (0, false));
+    }
+
+    #[test]
+    fn derivatives_of_a_cubic_are_exact_with_five_points() {
+        let t: Vec<f64> = (0..9).map(|i| (i as f64 * 0.37).powf(1.3)).collect();
+        let x: Vec<f64> = t.iter().map(|&u| u * u * u - 2.0 * u).collect();
+        for i in 0..t.len() {
+            let (_, _, d3, _) = derivatives_at::<1>(&t, &x, i, FdOrder::Two);
+            assert_relative_eq!(d3[0], 6.0, max_relative = 1e-8);
+            let (d1, d2, d3, _) = derivatives_at::<1>(&t, &x, i, FdOrder::Four);
+            assert_relative_eq!(d1[0], 3.0 * t[i] * t[i] - 2.0, epsilon = 1e-9);
+            assert_relative_eq!(d2[0], 6.0 * t[i], epsilon = 1e-9);
+            assert_relative_eq!(d3[0], 6.0, max_relative = 1e-8);
+        }
+    }
+
+    #[test]
+    fn third_derivative_is_nan_on_three_samples() {
+        let t = [0.0, 1.0, 2.5];
+        let x = [0.0, 1.0, 6.25];
+        let (d1, d2, d3, edge) = derivatives_at::<1>(&t, &x, 1, FdOrder::Two);
+        assert!(d3[0].is_nan() && edge);
+        assert_relative_eq!(d1[0], 2.0, max_relative = 1e-12);
+        assert_relative_eq!(d2[0], 2.0, max_relative = 1e-12);
+    }
+}

@@ -1,0 +1,108 @@
+//! The one error type of the kernels.
+//!
+//! Every variant that concerns the data carries the argument, the track (position of the track in the
+//! batch, 0-based) and the row (global 0-based row in the concatenated input) so that the Python layer
+//! can point the caller at the exact offending sample.
+
+use thiserror::Error;
+
+/// What went wrong in a kernel.
+#[derive(Debug, Clone, PartialEq, Error)]
+pub enum KernelError {
+    /// Two arrays that must describe the same rows disagree in length or width.
+    #[error("{argument}: {detail}")]
+    Shape {
+        /// Name of the offending argument.
+        argument: &'static str,
+        /// Human-readable explanation.
+        detail: String,
+    },
+    /// A scalar option is out of its domain.
+    #[error("{argument}: {detail}")]
+    Option {
+        /// Name of the offending option.
+        argument: &'static str,
+        /// Human-readable explanation.
+        detail: String,
+    },
+    /// The row offsets that split the rows into tracks are malformed.
+    #[error("offsets: {detail}")]
+    Offsets {
+        /// Human-readable explanation.
+        detail: String,
+    },
+    /// A track holds fewer samples than the method needs.
+    #[error("track {track} has {have} samples but {method} needs at least {need}")]
+    TooShort {
+        /// Track position in the batch.
+        track: usize,
+        /// Samples in the track.
+        have: usize,
+        /// Samples the method needs.
+        need: usize,
+        /// Which method asked.
+        method: &'static str,
+    },
+    /// A value in a row breaks a rule (non-finite time, time not increasing, ...).
+    #[error("{argument}: track {track}, row {row}: {detail}")]
+    Row {
+        /// Name of the offending argument.
+        argument: &'static str,
+        /// Track position in the batch.
+        track: usize,
+        /// Global row in the concatenated input.
+        row: usize,
+        /// Human-readable explanation.
+        detail: String,
+    },
+    /// An output buffer could not be allocated.
+    #[error("cannot allocate {bytes} bytes for the results")]
+    OutOfMemory {
+        /// Size of the failed request.
+        bytes: usize,
+    },
+}
+
+impl KernelError {
+    /// The track named by the error, if any.
+    pub fn track(&self) -> Option<usize> {
+        match self {
+            KernelError::TooShort { track, .. } | KernelError::Row { track, .. } => Some(*track),
+            _ => None,
+        }
+    }
+
+    /// The global row named by the error, if any.
+    pub fn row(&self) -> Option<usize> {
+        match self {
+            KernelError::Row { row, .. } => Some(*row),
+            _ => None,
+        }
+    }
+
+    /// The argument named by the error.
+    pub fn argument(&self) -> &'static str {
+        match self {
+            KernelError::Shape { argument, .. }
+            | KernelError::Option { argument, .. }
+            | KernelError::Row { argument, .. } => argument,
+            KernelError::Offsets { .. } => "offsets",
+            KernelError::TooShort { .. } => "t",
+            KernelError::OutOfMemory { .. } => "",
+        }
+    }
+}
+
+/// Result alias of the kernels.
+pub type Result<T> = std::result::Result<T, KernelError>;
+
+/// A vector of `len` copies of `value`, or [`KernelError::OutOfMemory`] instead of an abort.
+pub fn try_filled<T: Clone>(len: usize, value: T) -> Result<Vec<T>> {
+    let mut v = Vec::new();
+    v.try_reserve_exact(len)
+        .map_err(|_| KernelError::OutOfMemory {
+            bytes: len.saturating_mul(std::mem::size_of::<T>()),
+        })?;
+    v.resize(len, value);
+    Ok(v)
+}

@@ -1,0 +1,495 @@
+//! Per-sample kinematics of ragged batches of tracks by finite differences, in one fused pass:
+//! stencil → r′, r″, r‴ → Frenet apparatus → outputs, with no temporaries per sample.
+//!
+//! Rows whose position is not finite are INVALID: the track is compacted to its finite rows, the
+//! estimates are made on those, and every sample whose stencil reached across a removed row is
+//! flagged GAP, so no estimate is silently poisoned and none silently bridges a hole.
+
+use crate::batch::{self, partition, plan_jobs, track_rows, SplitRows};
+use crate::diff::{derivatives_at, reach, FdOrder};
+use crate::error::{try_filled, KernelError, Result};
+use crate::frame::{flag, frenet, Thresholds};
+use nalgebra::Vector3;
+use rayon::prelude::*;
+
+/// Options of [`kinematics`].
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Options {
+    /// Finite-difference order.
+    pub order: FdOrder,
+    /// When the frame is undefined.
+    pub thresholds: Thresholds,
+    /// A time step longer than `gap_factor` × the track's median step is a gap.
+    pub gap_factor: f64,
+    /// Axis of the signed curvature for 3-D paths (planar paths always use +z).
+    pub up: Option<[f64; 3]>,
+}
+
+impl Default for Options {
+    fn default() -> Self {
+        Options {
+            order: FdOrder::Two,
+            thresholds: Thresholds::default(),
+            gap_factor: 5.0,
+            up: None,
+        }
+    }
+}
+
+macro_rules! width {
+    (dim, $d:expr) => {
+        $d
+    };
+    (three, $d:expr) => {
+        3
+    };
+    (one, $d:expr) => {
+        1
+    };
+}
+
+macro_rules! columns {
+    ($($(#[$doc:meta])* $name:ident : $w:ident),* $(,)?) => {
+        /// Kinematics of every row, row-major; vectors have the path's dimension `dim` except the
+        /// binormal, which is always 3-D (for planar paths it is (0, 0, ±1)).
+        #[derive(Debug, Clone, PartialEq)]
+        pub struct Kinematics {
+            /// Rows.
+            pub n: usize,
+            /// 2 or 3.
+            pub dim: usize,
+            $($(#[$doc])* pub $name: Vec<f64>,)*
+            /// Bit flags per row, see [`crate::frame::flag`].
+            pub flags: Vec<u8>,
+        }
+
+        /// Mutable view of some consecutive rows of a [`Kinematics`].
+        pub struct Rows<'a> {
+            dim: usize,
+            $($name: &'a mut [f64],)*
+            flags: &'a mut [u8],
+        }
+
+        impl Kinematics {
+            /// Outputs for `n` rows, filled with NaN.
+            pub fn alloc(n: usize, dim: usize) -> Result<Self> {
+                Ok(Kinematics {
+                    n,
+                    dim,
+                    $($name: try_filled(n * width!($w, dim), f64::NAN)?,)*
+                    flags: try_filled(n, 0u8)?,
+                })
+            }
+
+            fn rows(&mut self) -> Rows<'_> {
+                Rows { dim: self.dim, $($name: &mut self.$name[..],)* flags: &mut self.flags[..] }
+            }
+        }
+
+        impl Rows<'_> {
+            /// Copy row `src_row` of `src` into local row `dst_row`.
+            fn copy_row(&mut self, dst_row: usize, src: &Kinematics, src_row: usize) {
+                let d = self.dim;
+                $(
+                    let w = width!($w, d);
+                    self.$name[dst_row * w..(dst_row + 1) * w]
+                        .copy_from_slice(&src.$name[src_row * w..(src_row + 1) * w]);
+                )*
+                self.flags[dst_row] = src.flags[src_row];
+            }
+        }
+
+        impl SplitRows for Rows<'_> {
+            fn split_rows(self, k: usize) -> (Self, Self) {
+                let d = self.dim;
+                $(let $name = self.$name.split_at_mut(k * width!($w, d));)*
+                let flags = self.flags.split_at_mut(k);
+                (
+                    Rows { dim: d, $($name: $name.0,)* flags: flags.0 },
+                    Rows { dim: d, $($name: $name.1,)* flags: flags.1 },
+                )
+            }
+        }
+    };
+}
+
+columns! {
+    /// r′.
+    velocity: dim,
+    /// r″.
+    acceleration: dim,
+    /// r‴.
+    jerk: dim,
+    /// |r′|.
+    speed: one,
+    /// Cumulative polyline length from the track's first finite row.
+    arclength: one,
+    /// T.
+    tangent: dim,
+    /// N.
+    normal: dim,
+    /// B (always 3 wide).
+    binormal: three,
+    /// κ.
+    curvature: one,
+    /// κ signed about the up axis (NaN for 3-D paths without one).
+    signed_curvature: one,
+    /// τ.
+    torsion: one,
+    /// ρ = 1/κ.
+    radius: one,
+    /// Centre of the osculating circle r + ρN.
+    center: dim,
+    /// a_t.
+    accel_tangential: one,
+    /// a_n = κv².
+    accel_normal: one,
+    /// ω = κv.
+    angular_speed: one,
+    /// dω/dt.
+    angular_accel: one,
+}
+
+/// Per-track facts needed by every job of the track.
+struct TrackPrep {
+    gap_dt: f64,
+    has_invalid: bool,
+}
+
+fn check_options(opts: &Options) -> Result<Option<Vector3<f64>>> {
+    let th = &opts.thresholds;
+    let bad = |argument, value: f64| KernelError::Option {
+        argument,
+        detail: format!("must be finite and >= 0, got {value}"),
+    };
+    if !(th.min_speed >= 0.0 && th.min_speed.is_finite()) {
+        return Err(bad("min_speed", th.min_speed));
+    }
+    if !(th.min_curvature >= 0.0 && th.min_curvature.is_finite()) {
+        return Err(bad("min_curvature", th.min_curvature));
+    }
+    if !(opts.gap_factor > 1.0) {
+        return Err(KernelError::Option {
+            argument: "gap_factor",
+            detail: format!("must be > 1 (or infinite to disable), got {}", opts.gap_factor),
+        });
+    }
+    match opts.up {
+        None => Ok(None),
+        Some(u) => {
+            let u = Vector3::from(u);
+            let norm = u.norm();
+            if !(norm > 0.0 && norm.is_finite()) {
+                return Err(KernelError::Option {
+                    argument: "up",
+                    detail: format!("must be a finite non-zero vector, got {u:?}"),
+                });
+            }
+            Ok(Some(u / norm))
+        }
+    }
+}
+
+/// Finite-difference kinematics of every row of a batch of tracks.
+///
+/// `t` has one time per row, `x` the positions row-major with `dim` (2 or 3) columns, `offsets` the
+/// `m + 1` row offsets of the `m` tracks.
+///
+/// # Examples
+///
+/// ```
+/// use osculate::kinematics::{kinematics, Options};
+/// // A quarter of the unit circle at unit speed, 40 samples.
+/// let t: Vec<f64> = (0..40).map(|i| i as f64 * 0.04).collect();
+/// let x: Vec<f64> = t.iter().flat_map(|&s| [s.cos(), s.sin()]).collect();
+/// let k = kinematics(&t, &x, 2, &[0, 40], &Options::default()).unwrap();
+/// assert!((k.curvature[20] - 1.0).abs() < 1e-3);
+/// assert!((k.speed[20] - 1.0).abs() < 1e-3);
+/// ```
+pub fn kinematics(
+    t: &[f64],
+    x: &[f64],
+    dim: usize,
+    offsets: &[i64],
+    opts: &Options,
+) -> Result<Kinematics> {
+    match dim {
+        2 => run::<2>(t, x, offsets, opts),
+        3 => run::<3>(t, x, offsets, opts),
+        _ => Err(KernelError::Shape {
+            argument: "positions",
+            detail: format!("must have 2 or 3 columns, got {dim}"),
+        }),
+    }
+}
+
+fn run<const D: usize>(t: &[f64], x: &[f64], offsets: &[i64], opts: &Options) -> Result<Kinematics> {
+    let n = t.len();
+    if x.len() != n * D {
+        return Err(KernelError::Shape {
+            argument: "positions",
+            detail: format!("has {} values, expected {} rows of {D}", x.len(), n),
+        });
+    }
+    let up = check_options(opts)?;
+    let up = if D == 2 { Some(Vector3::z()) } else { up };
+    let offsets = batch::check_offsets(offsets, n)?;
+    let need = opts.order.min_samples();
+    batch::check_times(t, &offsets, need, "fd")?;
+
+    let m = offsets.len() - 1;
+    let prep: Vec<TrackPrep> = (0..m)
+        .into_par_iter()
+        .map(|k| {
+            let rows = track_rows(&offsets, k);
+            let has_invalid = x[rows.start * D..rows.end * D].iter().any(|v| !v.is_finite());
+            let gap_dt = if has_invalid {
+                f64::NAN // decided on the compacted track
+            } else {
+                opts.gap_factor * batch::median_step(&t[rows])
+            };
+            TrackPrep { gap_dt, has_invalid }
+        })
+        .collect();
+
+    let mut out = Kinematics::alloc(n, D)?;
+    let jobs = plan_jobs(&offsets, |k| prep[k].has_invalid);
+    let parts = partition(out.rows(), jobs.iter().map(|j| j.rows.len()));
+    jobs.par_iter()
+        .zip(parts)
+        .try_for_each(|(job, rows)| -> Result<()> {
+            let tr = track_rows(&offsets, job.track);
+            let (tk, xk) = (&t[tr.clone()], &x[tr.start * D..tr.end * D]);
+            let p = &prep[job.track];
+            let local = job.rows.start - tr.start..job.rows.end - tr.start;
+            if p.has_invalid {
+                compacted::<D>(tk, xk, opts, up.as_ref(), rows)
+            } else {
+                dense::<D>(tk, xk, local, opts, up.as_ref(), p.gap_dt, None, rows);
+                Ok(())
+            }
+        })?;
+
+    let s = &mut out.arclength;
+    partition(&mut s[..], (0..m).map(|k| offsets[k + 1] - offsets[k]))
+        .into_par_iter()
+        .for_each(|seg| {
+            let mut acc = 0.0;
+            for v in seg.iter_mut().filter(|v| !v.is_nan()) {
+                acc += *v;
+                *v = acc;
+            }
+        });
+    Ok(out)
+}
+
+/// Estimates for rows `local` of one track whose positions are all finite. `holes[j]` marks rows
+/// removed between compacted rows j and j + 1. The arclength column receives segment lengths.
+#[allow(clippy::too_many_arguments)]
+fn dense<const D: usize>(
+    t: &[f64],
+    x: &[f64],
+    local: std::ops::Range<usize>,
+    opts: &Options,
+    up: Option<&Vector3<f64>>,
+    gap_dt: f64,
+    holes: Option<&[bool]>,
+    out: Rows<'_>,
+) {
+    let n = t.len();
+    let th = &opts.thresholds;
+    let vec3 = |a: &[f64; D]| {
+        let mut v = Vector3::zeros();
+        v.as_mut_slice()[..D].copy_from_slice(a);
+        v
+    };
+    let put = |dst: &mut [f64], j: usize, v: &Vector3<f64>| {
+        dst[j * D..(j + 1) * D].copy_from_slice(&v.as_slice()[..D]);
+    };
+    for (j, i) in local.enumerate() {
+        let (d1, d2, d3, edge) = derivatives_at::<D>(t, x, i, opts.order);
+        let (v1, v2, v3) = (vec3(&d1), vec3(&d2), vec3(&d3));
+        let f = frenet(&v1, &v2, &v3, up, th);
+        let (lo, hi) = reach(i, n, opts.order);
+        let gap = (lo..hi).any(|q| t[q + 1] - t[q] > gap_dt || holes.is_some_and(|h| h[q]));
+
+        let mut p = [0.0; D];
+        p.copy_from_slice(&x[i * D..(i + 1) * D]);
+        let p = vec3(&p);
+        out.velocity[j * D..(j + 1) * D].copy_from_slice(&d1);
+        out.acceleration[j * D..(j + 1) * D].copy_from_slice(&d2);
+        out.jerk[j * D..(j + 1) * D].copy_from_slice(&d3);
+        out.speed[j] = f.speed;
+        out.arclength[j] = if i == 0 {
+            0.0
+        } else {
+            let mut ds2 = 0.0;
+            for k in 0..D {
+                let d = x[i * D + k] - x[(i - 1) * D + k];
+                ds2 += d * d;
+            }
+            ds2.sqrt()
+        };
+        put(out.tangent, j, &f.tangent);
+        put(out.normal, j, &f.normal);
+        out.binormal[j * 3..(j + 1) * 3].copy_from_slice(f.binormal.as_slice());
+        out.curvature[j] = f.curvature;
+        out.signed_curvature[j] = f.signed_curvature;
+        out.torsion[j] = f.torsion;
+        out.radius[j] = f.radius;
+        put(out.center, j, &(p + f.normal * f.radius));
+        out.accel_tangential[j] = f.accel_tangential;
+        out.accel_normal[j] = f.accel_normal;
+        out.angular_speed[j] = f.angular_speed;
+        out.angular_accel[j] = f.angular_accel;
+        out.flags[j] = f.flags | if edge { flag::EDGE } else { 0 } | if gap { flag::GAP } else { 0 };
+    }
+}
+
+/// A whole track that has non-finite rows: estimate on its finite rows, then scatter back.
+fn compacted<const D: usize>(
+    t: &[f64],
+    x: &[f64],
+    opts: &Options,
+    up: Option<&Vector3<f64>>,
+    mut out: Rows<'_>,
+) -> Result<()> {
+    let valid: Vec<usize> = (0..t.len())
+        .filter(|&i| x[i * D..(i + 1) * D].iter().all(|v| v.is_finite()))
+        .collect();
+    for i in 0..t.len() {
+        out.flags[i] = flag::INVALID;
+    }
+    let m = valid.len();
+    if m < opts.order.min_samples() {
+        return Ok(()); // too few finite rows: the whole track stays NaN and INVALID
+    }
+    let tv: Vec<f64> = valid.iter().map(|&i| t[i]).collect();
+    let xv: Vec<f64> = valid
+        .iter()
+        .flat_map(|&i| x[i * D..(i + 1) * D].iter().copied())
+        .collect();
+    let holes: Vec<bool> = valid.windows(2).map(|w| w[1] - w[0] > 1).collect();
+    let gap_dt = opts.gap_factor * batch::median_step(&tv);
+    let mut tmp = Kinematics::alloc(m, D)?;
+    dense::<D>(&tv, &xv, 0..m, opts, up, gap_dt, Some(&holes), tmp.rows());
+    for (j, &i) in valid.iter().enumerate() {
+        out.copy_row(i, &tmp, j);
+    }
+    Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use approx::assert_relative_eq;
+
+    fn helix(n: usize, warp: bool) -> (Vec<f64>, Vec<f64>) {
+        let t: Vec<f64> = (0..n)
+            .map(|i| {
+                let u = i as f64 / (n - 1) as f64;
+                6.0 * if warp { u + 0.08 * (7.0 * u).sin() } else { u }
+            })
+            .collect();
+        let x = t
+            .iter()
+            .flat_map(|&s| [2.0 * s.cos(), 2.0 * s.sin(), 0.5 * s])
+            .collect();
+        (t, x)
+    }
+
+    #[test]
+    fn helix_on_uneven_times() {
+        // κ = a/(a²+c²) = 2/4.25, τ = c/(a²+c²) = 0.5/4.25 (closed form).
+        let (t, x) = helix(400, true);
+        for order in [FdOrder::Two, FdOrder::Four] {
+            let opts = Options { order, ..Options::default() };
+            let k = kinematics(&t, &x, 3, &[0, 400], &opts).unwrap();
+            for i in 5..395 {
+                assert_relative_eq!(k.curvature[i], 2.0 / 4.25, max_relative = 2e-3);
+                assert_relative_eq!(k.torsion[i], 0.5 / 4.25, max_relative = 2e-2);
+                assert_eq!(k.flags[i] & flag::EDGE, 0);
+            }
+            assert_ne!(k.flags[0] & flag::EDGE, 0);
+        }
+    }
+
+    #[test]
+    fn batch_equals_single_tracks_bit_for_bit() {
+        let (t1, x1) = helix(50, true);
+        let (t2, x2) = helix(70, false);
+        let t: Vec<f64> = t1.iter().chain(&t2).copied().collect();
+        let x: Vec<f64> = x1.iter().chain(&x2).copied().collect();
+        let o = Options::default();
+        let both = kinematics(&t, &x, 3, &[0, 50, 120], &o).unwrap();
+        let a = kinematics(&t1, &x1, 3, &[0, 50], &o).unwrap();
+        let b = kinematics(&t2, &x2, 3, &[0, 70], &o).unwrap();
+        let same = |u: &[f64], v: &[f64]| {
+            u.iter().zip(v).all(|(p, q)| p.to_bits() == q.to_bits())
+        };
+        assert!(same(&both.curvature[..50], &a.curvature));
+        assert!(same(&both.torsion[50..], &b.torsion));
+        assert!(same(&both.arclength[50..], &b.arclength));
+        assert!(same(&both.tangent[150..], &b.tangent));
+    }
+
+    #[test]
+    fn long_track_chunks_agree_with_serial() {
+        // A track longer than one job: the chunk seams must not show.
+        let n = crate::batch::CHUNK + 100;
+        let (t, x) = helix(n, true);
+        let k = kinematics(&t, &x, 3, &[0, n as i64], &Options::default()).unwrap();
+        let s = crate::batch::CHUNK;
+        assert_relative_eq!(k.curvature[s], k.curvature[s - 1], max_relative = 1e-6);
+        let total: f64 = k.arclength[n - 1];
+        let poly: f64 = (1..n)
+            .map(|i| {
+                (0..3)
+                    .map(|c| (x[i * 3 + c] - x[(i - 1) * 3 + c]).powi(2))
+                    .sum::<f64>()
+                    .sqrt()
+            })
+            .sum();
+        assert_relative_eq!(total, poly, max_relative = 1e-12);
+    }
+
+    #[test]
+    fn nan_rows_are_invalid_and_neighbours_flagged() {
+        let (t, mut x) = helix(30, false);
+        x[10 * 3 + 1] = f64::NAN;
+        let k = kinematics(&t, &x, 3, &[0, 30], &Options::default()).unwrap();
+        assert_eq!(k.flags[10], flag::INVALID);
+        assert!(k.speed[10].is_nan() && k.arclength[10].is_nan());
+        for i in [8, 9, 11, 12] {
+            assert_ne!(k.flags[i] & flag::GAP, 0, "row {i}");
+            assert!(k.curvature[i].is_finite());
+        }
+        assert_eq!(k.flags[20], 0);
+        assert!(k.arclength[29] > k.arclength[11]);
+    }
+
+    #[test]
+    fn gaps_in_time_are_flagged() {
+        let mut t: Vec<f64> = (0..30).map(|i| i as f64 * 0.1).collect();
+        for v in t.iter_mut().skip(15) {
+            *v += 5.0;
+        }
+        let x: Vec<f64> = t.iter().flat_map(|&s| [s, s * s]).collect();
+        let k = kinematics(&t, &x, 2, &[0, 30], &Options::default()).unwrap();
+        assert_ne!(k.flags[14] & flag::GAP, 0);
+        assert_eq!(k.flags[5] & flag::GAP, 0);
+    }
+
+    #[test]
+    fn bad_options_are_errors() {
+        let (t, x) = helix(10, false);
+        let o = Options { gap_factor: 0.5, ..Options::default() };
+        assert!(matches!(
+            kinematics(&t, &x, 3, &[0, 10], &o),
+            Err(KernelError::Option { argument: "gap_factor", .. })
+        ));
+        let o = Options { up: Some([0.0; 3]), ..Options::default() };
+        assert!(kinematics(&t, &x, 3, &[0, 10], &o).is_err());
+        assert!(kinematics(&t, &x, 4, &[0, 10], &Options::default()).is_err());
+    }
+}
