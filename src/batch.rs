@@ -33,7 +33,9 @@ pub fn check_offsets(offsets: &[i64], n: usize) -> Result<Vec<usize>> {
     }
     let last = offsets[offsets.len() - 1];
     if last != n as i64 {
-        return bad(format!("must end at the number of rows {n}, ends at {last}"));
+        return bad(format!(
+            "must end at the number of rows {n}, ends at {last}"
+        ));
     }
     for (k, w) in offsets.windows(2).enumerate() {
         if w[1] <= w[0] {
@@ -151,7 +153,10 @@ pub fn plan_jobs(offsets: &[usize], whole: impl Fn(usize) -> bool) -> Vec<Job> {
         let mut a = rows.start;
         while a < rows.end {
             let b = (a + CHUNK).min(rows.end);
-            jobs.push(Job { track: k, rows: a..b });
+            jobs.push(Job {
+                track: k,
+                rows: a..b,
+            });
             a = b;
         }
     }
@@ -171,7 +176,10 @@ mod tests {
         let err = check_times(&t, &[0, 3, 6], 4, "fd").unwrap_err();
         assert!(matches!(err, KernelError::TooShort { track: 0, .. }));
         let t = [0.0, f64::NAN, 2.0];
-        assert_eq!(check_times(&t, &[0, 3], 2, "fd").unwrap_err().row(), Some(1));
+        assert_eq!(
+            check_times(&t, &[0, 3], 2, "fd").unwrap_err().row(),
+            Some(1)
+        );
     }
 
     #[test]

@@ -80,6 +80,20 @@ impl KernelError {
         }
     }
 
+    /// The message without the argument, track and row (which the Python layer re-labels).
+    pub fn detail(&self) -> String {
+        match self {
+            KernelError::Shape { detail, .. }
+            | KernelError::Option { detail, .. }
+            | KernelError::Offsets { detail }
+            | KernelError::Row { detail, .. } => detail.clone(),
+            KernelError::TooShort {
+                have, need, method, ..
+            } => format!("has {have} samples but {method} needs at least {need}"),
+            KernelError::OutOfMemory { .. } => self.to_string(),
+        }
+    }
+
     /// The argument named by the error.
     pub fn argument(&self) -> &'static str {
         match self {

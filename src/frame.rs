@@ -129,14 +129,14 @@ pub fn frenet(
         angular_accel: nan,
         flags: 0,
     };
-    if !(speed >= th.min_speed) || speed == 0.0 {
+    if speed.is_nan() || speed < th.min_speed || speed == 0.0 {
         out.flags |= flag::STOPPED;
         return out;
     }
     out.tangent = d1 / speed;
     let v2 = speed * speed;
     let kappa = cn / (v2 * speed);
-    if !(kappa >= th.min_curvature) || cn <= PARALLEL_EPS * speed * d2.norm() {
+    if kappa.is_nan() || kappa < th.min_curvature || cn <= PARALLEL_EPS * speed * d2.norm() {
         out.flags |= flag::STRAIGHT;
         out.curvature = 0.0;
         out.signed_curvature = if up.is_some() { 0.0 } else { nan };
@@ -153,7 +153,8 @@ pub fn frenet(
     out.torsion = c.dot(d3) / (cn * cn);
     out.radius = 1.0 / kappa;
     out.angular_speed = cn / v2;
-    out.angular_accel = c.dot(&d1.cross(d3)) / (cn * v2) - 2.0 * cn * accel_tangential / (v2 * speed);
+    out.angular_accel =
+        c.dot(&d1.cross(d3)) / (cn * v2) - 2.0 * cn * accel_tangential / (v2 * speed);
     out
 }
 

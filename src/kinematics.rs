@@ -162,16 +162,19 @@ fn check_options(opts: &Options) -> Result<Option<Vector3<f64>>> {
         argument,
         detail: format!("must be finite and >= 0, got {value}"),
     };
-    if !(th.min_speed >= 0.0 && th.min_speed.is_finite()) {
+    if th.min_speed.is_nan() || th.min_speed < 0.0 || th.min_speed.is_infinite() {
         return Err(bad("min_speed", th.min_speed));
     }
-    if !(th.min_curvature >= 0.0 && th.min_curvature.is_finite()) {
+    if th.min_curvature.is_nan() || th.min_curvature < 0.0 || th.min_curvature.is_infinite() {
         return Err(bad("min_curvature", th.min_curvature));
     }
-    if !(opts.gap_factor > 1.0) {
+    if opts.gap_factor.is_nan() || opts.gap_factor <= 1.0 {
         return Err(KernelError::Option {
             argument: "gap_factor",
-            detail: format!("must be > 1 (or infinite to disable), got {}", opts.gap_factor),
+            detail: format!(
+                "must be > 1 (or infinite to disable), got {}",
+                opts.gap_factor
+            ),
         });
     }
     match opts.up {
@@ -179,7 +182,7 @@ fn check_options(opts: &Options) -> Result<Option<Vector3<f64>>> {
         Some(u) => {
             let u = Vector3::from(u);
             let norm = u.norm();
-            if !(norm > 0.0 && norm.is_finite()) {
+            if norm.is_nan() || norm == 0.0 || norm.is_infinite() {
                 return Err(KernelError::Option {
                     argument: "up",
                     detail: format!("must be a finite non-zero vector, got {u:?}"),
@@ -223,7 +226,12 @@ pub fn kinematics(
     }
 }
 
-fn run<const D: usize>(t: &[f64], x: &[f64], offsets: &[i64], opts: &Options) -> Result<Kinematics> {
+fn run<const D: usize>(
+    t: &[f64],
+    x: &[f64],
+    offsets: &[i64],
+    opts: &Options,
+) -> Result<Kinematics> {
     let n = t.len();
     if x.len() != n * D {
         return Err(KernelError::Shape {
@@ -242,13 +250,18 @@ fn run<const D: usize>(t: &[f64], x: &[f64], offsets: &[i64], opts: &Options) ->
         .into_par_iter()
         .map(|k| {
             let rows = track_rows(&offsets, k);
-            let has_invalid = x[rows.start * D..rows.end * D].iter().any(|v| !v.is_finite());
+            let has_invalid = x[rows.start * D..rows.end * D]
+                .iter()
+                .any(|v| !v.is_finite());
             let gap_dt = if has_invalid {
                 f64::NAN // decided on the compacted track
             } else {
                 opts.gap_factor * batch::median_step(&t[rows])
             };
-            TrackPrep { gap_dt, has_invalid }
+            TrackPrep {
+                gap_dt,
+                has_invalid,
+            }
         })
         .collect();
 
@@ -342,7 +355,8 @@ fn dense<const D: usize>(
         out.accel_normal[j] = f.accel_normal;
         out.angular_speed[j] = f.angular_speed;
         out.angular_accel[j] = f.angular_accel;
-        out.flags[j] = f.flags | if edge { flag::EDGE } else { 0 } | if gap { flag::GAP } else { 0 };
+        out.flags[j] =
+            f.flags | if edge { flag::EDGE } else { 0 } | if gap { flag::GAP } else { 0 };
     }
 }
 
@@ -403,7 +417,10 @@ mod tests {
         // κ = a/(a²+c²) = 2/4.25, τ = c/(a²+c²) = 0.5/4.25 (closed form).
         let (t, x) = helix(400, true);
         for order in [FdOrder::Two, FdOrder::Four] {
-            let opts = Options { order, ..Options::default() };
+            let opts = Options {
+                order,
+                ..Options::default()
+            };
             let k = kinematics(&t, &x, 3, &[0, 400], &opts).unwrap();
             for i in 5..395 {
                 assert_relative_eq!(k.curvature[i], 2.0 / 4.25, max_relative = 2e-3);
@@ -424,9 +441,7 @@ mod tests {
         let both = kinematics(&t, &x, 3, &[0, 50, 120], &o).unwrap();
         let a = kinematics(&t1, &x1, 3, &[0, 50], &o).unwrap();
         let b = kinematics(&t2, &x2, 3, &[0, 70], &o).unwrap();
-        let same = |u: &[f64], v: &[f64]| {
-            u.iter().zip(v).all(|(p, q)| p.to_bits() == q.to_bits())
-        };
+        let same = |u: &[f64], v: &[f64]| u.iter().zip(v).all(|(p, q)| p.to_bits() == q.to_bits());
         assert!(same(&both.curvature[..50], &a.curvature));
         assert!(same(&both.torsion[50..], &b.torsion));
         assert!(same(&both.arclength[50..], &b.arclength));
@@ -483,12 +498,21 @@ mod tests {
     #[test]
     fn bad_options_are_errors() {
         let (t, x) = helix(10, false);
-        let o = Options { gap_factor: 0.5, ..Options::default() };
+        let o = Options {
+            gap_factor: 0.5,
+            ..Options::default()
+        };
         assert!(matches!(
             kinematics(&t, &x, 3, &[0, 10], &o),
-            Err(KernelError::Option { argument: "gap_factor", .. })
+            Err(KernelError::Option {
+                argument: "gap_factor",
+                ..
+            })
         ));
-        let o = Options { up: Some([0.0; 3]), ..Options::default() };
+        let o = Options {
+            up: Some([0.0; 3]),
+            ..Options::default()
+        };
         assert!(kinematics(&t, &x, 3, &[0, 10], &o).is_err());
         assert!(kinematics(&t, &x, 4, &[0, 10], &Options::default()).is_err());
     }

@@ -1,0 +1,146 @@
+"""The one place where arguments are checked and converted before they reach Rust.
+
+Messages name the argument, and where relevant the track and the caller's row.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+from typing import Any, Callable, TypeVar
+
+import numpy as np
+import numpy.typing as npt
+
+from ._core import InputError
+
+__all__ = ["Grouping", "as_positions", "as_times", "call_kernel", "group_rows"]
+
+F64 = npt.NDArray[np.float64]
+T = TypeVar("T")
+
+
+def _real(name: str, value: Any) -> F64:
+    arr = np.asarray(value)
+    kind = arr.dtype.kind
+    if kind not in "fiu":
+        what = {
+            "b": "boolean",
+            "c": "complex",
+            "O": "object",
+            "U": "string",
+            "S": "bytes",
+            "M": "datetime64 (convert to seconds first)",
+            "m": "timedelta64 (convert to seconds first)",
+        }.get(kind, str(arr.dtype))
+        raise TypeError(f"{name}: expected real numbers, got {what} array (dtype {arr.dtype})")
+    return np.ascontiguousarray(arr, dtype=np.float64)
+
+
+def as_times(t: Any, name: str = "t") -> F64:
+    """Return times as a contiguous float64 vector (order and finiteness are checked in Rust)."""
+    arr = _real(name, t)
+    if arr.ndim != 1:
+        raise InputError(f"{name}: expected a 1-D array of times, got shape {arr.shape}")
+    if arr.size == 0:
+        raise InputError(f"{name}: is empty (no samples)")
+    return arr
+
+
+def as_positions(x: Any, n: int, name: str = "positions") -> F64:
+    """Return positions as a contiguous float64 (n, 2) or (n, 3) array."""
+    arr = _real(name, x)
+    if arr.ndim != 2 or arr.shape[1] not in (2, 3):
+        raise InputError(f"{name}: expected shape (n, 2) or (n, 3), got {arr.shape}")
+    if arr.shape[0] != n:
+        raise InputError(f"{name}: has {arr.shape[0]} rows but t has {n}")
+    return arr
+
+
+@dataclasses.dataclass(frozen=True)
+class Grouping:
+    """How the caller's rows split into tracks.
+
+    ``order`` maps kernel rows (grouped by track) to caller rows, or is None when the caller's rows
+    are already grouped. ``labels`` holds one label per track.
+    """
+
+    offsets: npt.NDArray[np.int64]
+    order: npt.NDArray[np.intp] | None
+    labels: np.ndarray
+
+    @property
+    def n_tracks(self) -> int:
+        """Number of tracks."""
+        return len(self.offsets) - 1
+
+    def to_kernel(self, a: np.ndarray) -> np.ndarray:
+        """Caller rows → kernel rows."""
+        return a if self.order is None else np.ascontiguousarray(a[self.order])
+
+    def to_caller(self, a: np.ndarray) -> np.ndarray:
+        """Kernel rows → caller rows."""
+        if self.order is None:
+            return a
+        out = np.empty_like(a)
+        out[self.order] = a
+        return out
+
+    def caller_row(self, row: int) -> int:
+        """Return the caller's row of kernel row ``row``."""
+        return row if self.order is None else int(self.order[row])
+
+
+def group_rows(n: int, tracks: Any = None, offsets: Any = None) -> Grouping:
+    """Split ``n`` rows into tracks given per-row ids (any order) or row offsets."""
+    if tracks is not None and offsets is not None:
+        raise InputError("tracks, offsets: give one of them, not both")
+    if offsets is not None:
+        off = np.asarray(offsets)
+        if off.dtype.kind not in "iu":
+            raise TypeError(f"offsets: expected integers, got dtype {off.dtype}")
+        if off.ndim != 1:
+            raise InputError(f"offsets: expected a 1-D array, got shape {off.shape}")
+        off = np.ascontiguousarray(off, dtype=np.int64)
+        return Grouping(off, None, np.arange(max(len(off) - 1, 0)))
+    if tracks is None:
+        return Grouping(np.array([0, n], dtype=np.int64), None, np.array([0]))
+    ids = np.asarray(tracks)
+    if ids.ndim != 1 or len(ids) != n:
+        raise InputError(f"tracks: expected one id per row ({n}), got shape {ids.shape}")
+    if n == 0:
+        return Grouping(np.array([0, 0], dtype=np.int64), None, np.array([0]))
+    if ids.dtype.kind == "O":
+        ids = ids.astype(str)
+    labels, codes = np.unique(ids, return_inverse=True)
+    codes = codes.reshape(-1)
+    grouped = bool(np.all(codes[1:] >= codes[:-1]))
+    order = None if grouped else np.argsort(codes, kind="stable")
+    counts = np.bincount(codes, minlength=len(labels))
+    off = np.zeros(len(labels) + 1, dtype=np.int64)
+    np.cumsum(counts, out=off[1:])
+    return Grouping(off, order, labels)
+
+
+def call_kernel(grouping: Grouping, fn: Callable[..., T], *args: Any, **kwargs: Any) -> T:
+    """Call a kernel; re-word its errors with the caller's track labels and rows."""
+    try:
+        return fn(*args, **kwargs)
+    except InputError as err:
+        track = getattr(err, "track", None)
+        if track is None:
+            raise
+        label = grouping.labels[track] if track < len(grouping.labels) else track
+        label = label.item() if isinstance(label, np.generic) else label
+        where = f"track {label!r}"
+        row = getattr(err, "row", None)
+        if row is not None:
+            where += f", row {grouping.caller_row(row)}"
+        sep = ": " if row is not None else " "
+        new = InputError(f"{err.argument}: {where}{sep}{err.detail}")
+        new.argument, new.track, new.row, new.detail = (
+            err.argument,
+            track,
+            None if row is None else grouping.caller_row(row),
+            err.detail,
+        )
+        raise new from None

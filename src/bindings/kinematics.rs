@@ -1,0 +1,115 @@
+//! Bindings of the finite-difference kinematics and polyline arc length kernels.
+
+use super::error::{contiguous, detached};
+use crate::diff::FdOrder;
+use crate::frame::Thresholds;
+use crate::kinematics::{kinematics, Kinematics, Options};
+use crate::KernelError;
+use numpy::ndarray::Array2;
+use numpy::{IntoPyArray, PyArray1, PyReadonlyArray1, PyReadonlyArray2, PyUntypedArrayMethods};
+use pyo3::prelude::*;
+use pyo3::types::PyDict;
+
+fn column<'py>(
+    py: Python<'py>,
+    v: Vec<f64>,
+    n: usize,
+    width: usize,
+) -> PyResult<Bound<'py, PyAny>> {
+    Ok(if width == 1 {
+        v.into_pyarray(py).into_any()
+    } else {
+        let a = Array2::from_shape_vec((n, width), v)
+            .map_err(|e| pyo3::exceptions::PyRuntimeError::new_err(e.to_string()))?;
+        a.into_pyarray(py).into_any()
+    })
+}
+
+fn to_dict(py: Python<'_>, k: Kinematics) -> PyResult<Bound<'_, PyDict>> {
+    let (n, d) = (k.n, k.dim);
+    let out = PyDict::new(py);
+    let vectors = [
+        ("velocity", k.velocity, d),
+        ("acceleration", k.acceleration, d),
+        ("jerk", k.jerk, d),
+        ("speed", k.speed, 1),
+        ("arclength", k.arclength, 1),
+        ("tangent", k.tangent, d),
+        ("normal", k.normal, d),
+        ("binormal", k.binormal, 3),
+        ("curvature", k.curvature, 1),
+        ("signed_curvature", k.signed_curvature, 1),
+        ("torsion", k.torsion, 1),
+        ("radius", k.radius, 1),
+        ("center", k.center, d),
+        ("accel_tangential", k.accel_tangential, 1),
+        ("accel_normal", k.accel_normal, 1),
+        ("angular_speed", k.angular_speed, 1),
+        ("angular_accel", k.angular_accel, 1),
+    ];
+    for (name, v, w) in vectors {
+        out.set_item(name, column(py, v, n, w)?)?;
+    }
+    out.set_item("flags", k.flags.into_pyarray(py))?;
+    Ok(out)
+}
+
+/// Finite-difference kinematics of concatenated tracks (validated arrays from the Python layer).
+#[pyfunction]
+#[pyo3(signature = (t, positions, offsets, *, order, min_speed, min_curvature, gap_factor, up=None))]
+#[allow(clippy::too_many_arguments)]
+pub fn fd_kinematics<'py>(
+    py: Python<'py>,
+    t: PyReadonlyArray1<'py, f64>,
+    positions: PyReadonlyArray2<'py, f64>,
+    offsets: PyReadonlyArray1<'py, i64>,
+    order: i64,
+    min_speed: f64,
+    min_curvature: f64,
+    gap_factor: f64,
+    up: Option<[f64; 3]>,
+) -> PyResult<Bound<'py, PyDict>> {
+    let dim = positions.shape()[1];
+    let (t, x, off) = (
+        contiguous("t", t.as_slice())?,
+        contiguous("positions", positions.as_slice())?,
+        contiguous("offsets", offsets.as_slice())?,
+    );
+    let result = detached(py, || {
+        let order = FdOrder::from_int(order).ok_or_else(|| KernelError::Option {
+            argument: "order",
+            detail: format!("must be 2 or 4, got {order}"),
+        })?;
+        let opts = Options {
+            order,
+            thresholds: Thresholds {
+                min_speed,
+                min_curvature,
+            },
+            gap_factor,
+            up,
+        };
+        kinematics(t, x, dim, off, &opts)
+    })?;
+    to_dict(py, result)
+}
+
+/// Cumulative polyline length per track, after checking the times.
+#[pyfunction]
+pub fn polyline_arclength<'py>(
+    py: Python<'py>,
+    t: PyReadonlyArray1<'py, f64>,
+    positions: PyReadonlyArray2<'py, f64>,
+    offsets: PyReadonlyArray1<'py, i64>,
+) -> PyResult<Bound<'py, PyArray1<f64>>> {
+    let dim = positions.shape()[1];
+    let t = contiguous("t", t.as_slice())?;
+    let x = contiguous("positions", positions.as_slice())?;
+    let off = contiguous("offsets", offsets.as_slice())?;
+    let s = detached(py, || {
+        let checked = crate::batch::check_offsets(off, t.len())?;
+        crate::batch::check_times(t, &checked, 2, "arclength")?;
+        crate::arclength::polyline(x, dim, off)
+    })?;
+    Ok(s.into_pyarray(py))
+}

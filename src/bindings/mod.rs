@@ -1,0 +1,19 @@
+//! PyO3 bindings: borrow NumPy arrays, release the interpreter, call a kernel, wrap the result.
+//! Nothing numerical happens here.
+
+mod error;
+mod kinematics;
+
+use pyo3::prelude::*;
+
+pub use error::InputError;
+
+/// The one registration point of the `osculate._core` extension module.
+#[pymodule]
+fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
+    m.add("__version__", env!("CARGO_PKG_VERSION"))?;
+    m.add("InputError", m.py().get_type::<InputError>())?;
+    m.add_function(wrap_pyfunction!(kinematics::fd_kinematics, m)?)?;
+    m.add_function(wrap_pyfunction!(kinematics::polyline_arclength, m)?)?;
+    Ok(())
+}

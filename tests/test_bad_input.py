@@ -1,0 +1,165 @@
+"""Bad input gives a clear exception naming the argument, track and row; never a panic."""
+
+import re
+
+import numpy as np
+import osculate as osc
+import pytest
+
+T5 = np.arange(5.0)
+X5 = np.column_stack([T5, T5**2, T5**3])
+
+
+def call(t=T5, x=X5, fn=osc.kinematics, **kw):
+    return fn(t, x, **kw)
+
+
+CASES = [
+    # (description, kwargs, exception, message regex)
+    ("length mismatch", {"x": X5[:4]}, osc.InputError, r"positions: has 4 rows but t has 5"),
+    ("1-column positions", {"x": X5[:, :1]}, osc.InputError, r"positions: expected shape"),
+    ("4-column positions", {"x": np.ones((5, 4))}, osc.InputError, r"positions: expected shape"),
+    ("2-D times", {"t": T5[:, None]}, osc.InputError, r"t: expected a 1-D"),
+    (
+        "too few samples",
+        {"t": T5[:2], "x": X5[:2]},
+        osc.InputError,
+        r"t: track 0 has 2 samples but fd needs at least 3",
+    ),
+    (
+        "order 4 needs 5",
+        {"t": T5[:4], "x": X5[:4], "order": 4},
+        osc.InputError,
+        r"needs at least 5",
+    ),
+    ("bad order", {"order": 3}, osc.InputError, r"order: must be 2 or 4"),
+    (
+        "duplicate time",
+        {"t": np.array([0, 1, 1, 2, 3.0])},
+        osc.InputError,
+        r"t: track 0, row 2: times must be strictly increasing",
+    ),
+    ("decreasing time", {"t": np.array([0, 1, 2, 1.5, 3.0])}, osc.InputError, r"row 3"),
+    (
+        "NaN time",
+        {"t": np.array([0, 1, np.nan, 2, 3.0])},
+        osc.InputError,
+        r"t: track 0, row 2: time is not finite",
+    ),
+    ("inf time", {"t": np.array([0, 1, 2, 3, np.inf])}, osc.InputError, r"row 4"),
+    (
+        "negative min_speed",
+        {"min_speed": -1},
+        osc.InputError,
+        r"min_speed: must be finite and >= 0",
+    ),
+    ("NaN min_curvature", {"min_curvature": np.nan}, osc.InputError, r"min_curvature"),
+    ("gap_factor <= 1", {"gap_factor": 0.5}, osc.InputError, r"gap_factor: must be > 1"),
+    ("zero up", {"up": (0, 0, 0)}, osc.InputError, r"up: must be a finite non-zero vector"),
+    ("up on planar", {"x": X5[:, :2], "up": (0, 0, 1)}, osc.InputError, r"up: expected a 3-vector"),
+    ("unknown method", {"method": "magic"}, osc.InputError, r"method: expected one of"),
+    (
+        "complex positions",
+        {"x": X5 + 1j},
+        TypeError,
+        r"positions: expected real numbers, got complex",
+    ),
+    (
+        "object positions",
+        {"x": X5.astype(object)},
+        TypeError,
+        r"positions: expected real numbers, got object",
+    ),
+    ("bool times", {"t": np.ones(5, bool)}, TypeError, r"t: expected real numbers, got boolean"),
+    (
+        "string times",
+        {"t": np.array(list("abcde"))},
+        TypeError,
+        r"t: expected real numbers, got string",
+    ),
+    ("datetime times", {"t": np.arange(5).astype("datetime64[s]")}, TypeError, r"datetime64"),
+    (
+        "offsets not ending at n",
+        {"offsets": [0, 3]},
+        osc.InputError,
+        r"offsets: must end at the number of rows 5",
+    ),
+    ("offsets not starting at 0", {"offsets": [1, 5]}, osc.InputError, r"offsets: must start at 0"),
+    (
+        "empty track in offsets",
+        {"offsets": [0, 0, 5]},
+        osc.InputError,
+        r"offsets: track 0 is empty",
+    ),
+    (
+        "unsorted offsets",
+        {"offsets": [0, 4, 2, 5]},
+        osc.InputError,
+        r"offsets: track 1 is empty or reversed",
+    ),
+    ("float offsets", {"offsets": [0.0, 5.0]}, TypeError, r"offsets: expected integers"),
+    (
+        "tracks and offsets",
+        {"offsets": [0, 5], "tracks": np.zeros(5)},
+        osc.InputError,
+        r"give one of them",
+    ),
+    (
+        "tracks wrong length",
+        {"tracks": np.zeros(4)},
+        osc.InputError,
+        r"tracks: expected one id per row \(5\)",
+    ),
+    ("empty input", {"t": np.zeros(0), "x": np.zeros((0, 3))}, osc.InputError, r"t: is empty"),
+]
+
+
+@pytest.mark.parametrize("desc, kw, exc, msg", CASES, ids=[c[0] for c in CASES])
+def test_bad_input_battery(desc, kw, exc, msg):
+    kw = dict(kw)
+    t = kw.pop("t", T5)
+    x = kw.pop("x", X5)
+    before = (np.array(t, copy=True), np.array(x, copy=True))
+    with pytest.raises(exc, match=msg):
+        call(t, x, **kw)
+    # Inputs are never modified.
+    np.testing.assert_array_equal(np.asarray(t), before[0])
+    np.testing.assert_array_equal(np.asarray(x), before[1])
+
+
+def test_errors_name_the_callers_track_and_row():
+    # Rows of two tracks interleaved; track "b" has a repeated time at caller row 5.
+    t = np.array([0, 0, 1, 1, 2, 1.0, 3, 4])
+    ids = np.array(["a", "b", "a", "b", "a", "b", "a", "b"])
+    x = np.column_stack([t, t])
+    with pytest.raises(
+        osc.InputError, match=re.escape("t: track 'b', row 5: times must be")
+    ) as info:
+        osc.kinematics(t, x, tracks=ids)
+    assert (info.value.argument, info.value.row) == ("t", 5)
+    assert issubclass(osc.InputError, ValueError)
+
+
+def test_too_short_track_is_named():
+    ids = np.array([7, 7, 7, 9, 9])
+    with pytest.raises(osc.InputError, match=r"t: track 9 has 2 samples"):
+        osc.kinematics(T5, X5, tracks=ids)
+
+
+def test_extreme_magnitudes_stay_finite_or_flagged():
+    # 1e300 positions overflow the squared speed: the result is flagged, never a crash.
+    for scale in (1e300, 1e-300):
+        k = osc.kinematics(T5, X5 * scale)
+        assert k.flags.dtype == np.uint8
+        assert np.all(np.isfinite(k.speed) | k.flagged(osc.Flag.STOPPED) | np.isinf(k.speed))
+
+
+def test_all_nan_positions_are_invalid_not_an_error():
+    k = osc.kinematics(T5, np.full((5, 2), np.nan))
+    assert k.flagged(osc.Flag.INVALID).all()
+    assert np.isnan(k.speed).all()
+
+
+def test_arclength_checks_times():
+    with pytest.raises(osc.InputError, match=r"t: track 0, row 1"):
+        osc.arclength([0.0, 0.0, 1.0], np.zeros((3, 2)))
