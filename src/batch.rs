@@ -50,6 +50,26 @@ pub fn check_offsets(offsets: &[i64], n: usize) -> Result<Vec<usize>> {
     Ok(offsets.iter().map(|&o| o as usize).collect())
 }
 
+/// Validate offsets of query rows: `m + 1` entries from 0 to `n`, non-decreasing (tracks may
+/// have no queries).
+pub fn check_query_offsets(offsets: &[i64], n: usize, m: usize) -> Result<Vec<usize>> {
+    let bad = |detail: String| Err(KernelError::Offsets { detail });
+    if offsets.len() != m + 1 {
+        return bad(format!(
+            "need {} entries (one per track + 1), got {}",
+            m + 1,
+            offsets.len()
+        ));
+    }
+    if offsets[0] != 0 || offsets[m] != n as i64 {
+        return bad(format!("must run from 0 to {n}"));
+    }
+    if let Some(k) = offsets.windows(2).position(|w| w[1] < w[0]) {
+        return bad(format!("decrease at track {k}"));
+    }
+    Ok(offsets.iter().map(|&o| o as usize).collect())
+}
+
 /// Row range of track `k`.
 #[inline]
 pub fn track_rows(offsets: &[usize], k: usize) -> Range<usize> {
@@ -60,41 +80,46 @@ pub fn track_rows(offsets: &[usize], k: usize) -> Range<usize> {
 /// holds at least `need` samples. Reports the first offending track and row.
 pub fn check_times(t: &[f64], offsets: &[usize], need: usize, method: &'static str) -> Result<()> {
     let m = offsets.len() - 1;
-    (0..m).into_par_iter().try_for_each(|k| {
-        let rows = track_rows(offsets, k);
-        if rows.len() < need {
-            return Err(KernelError::TooShort {
-                track: k,
-                have: rows.len(),
-                need,
-                method,
-            });
-        }
-        let tk = &t[rows.clone()];
-        for (j, &v) in tk.iter().enumerate() {
-            let row = rows.start + j;
-            if !v.is_finite() {
-                return Err(KernelError::Row {
-                    argument: "t",
+    // The first offending track in order is reported, whatever the thread schedule.
+    let first_error = (0..m)
+        .into_par_iter()
+        .map(|k| -> Result<()> {
+            let rows = track_rows(offsets, k);
+            if rows.len() < need {
+                return Err(KernelError::TooShort {
                     track: k,
-                    row,
-                    detail: format!("time is not finite ({v})"),
+                    have: rows.len(),
+                    need,
+                    method,
                 });
             }
-            if j > 0 && v <= tk[j - 1] {
-                return Err(KernelError::Row {
-                    argument: "t",
-                    track: k,
-                    row,
-                    detail: format!(
+            let tk = &t[rows.clone()];
+            for (j, &v) in tk.iter().enumerate() {
+                let row = rows.start + j;
+                if !v.is_finite() {
+                    return Err(KernelError::Row {
+                        argument: "t",
+                        track: k,
+                        row,
+                        detail: format!("time is not finite ({v})"),
+                    });
+                }
+                if j > 0 && v <= tk[j - 1] {
+                    return Err(KernelError::Row {
+                        argument: "t",
+                        track: k,
+                        row,
+                        detail: format!(
                         "times must be strictly increasing within a track, but t = {v} follows {}",
                         tk[j - 1]
                     ),
-                });
+                    });
+                }
             }
-        }
-        Ok(())
-    })
+            Ok(())
+        })
+        .find_map_first(|r| r.err());
+    first_error.map_or(Ok(()), Err)
 }
 
 /// Median of the time steps of one track (0 for a single sample).

@@ -31,6 +31,16 @@ pub enum KernelError {
         /// Human-readable explanation.
         detail: String,
     },
+    /// An option does not suit one track (window longer than the track, ...).
+    #[error("track {track}: {argument}: {detail}")]
+    Track {
+        /// Name of the offending option or argument.
+        argument: &'static str,
+        /// Track position in the batch.
+        track: usize,
+        /// Human-readable explanation.
+        detail: String,
+    },
     /// A track holds fewer samples than the method needs.
     #[error("track {track} has {have} samples but {method} needs at least {need}")]
     TooShort {
@@ -64,10 +74,26 @@ pub enum KernelError {
 }
 
 impl KernelError {
+    /// Attach a track to an error about an option that only fails for that track.
+    pub fn in_track(self, track: usize) -> Self {
+        match self {
+            KernelError::Option { argument, detail } | KernelError::Shape { argument, detail } => {
+                KernelError::Track {
+                    argument,
+                    track,
+                    detail,
+                }
+            }
+            other => other,
+        }
+    }
+
     /// The track named by the error, if any.
     pub fn track(&self) -> Option<usize> {
         match self {
-            KernelError::TooShort { track, .. } | KernelError::Row { track, .. } => Some(*track),
+            KernelError::TooShort { track, .. }
+            | KernelError::Row { track, .. }
+            | KernelError::Track { track, .. } => Some(*track),
             _ => None,
         }
     }
@@ -86,6 +112,7 @@ impl KernelError {
             KernelError::Shape { detail, .. }
             | KernelError::Option { detail, .. }
             | KernelError::Offsets { detail }
+            | KernelError::Track { detail, .. }
             | KernelError::Row { detail, .. } => detail.clone(),
             KernelError::TooShort {
                 have, need, method, ..
@@ -99,6 +126,7 @@ impl KernelError {
         match self {
             KernelError::Shape { argument, .. }
             | KernelError::Option { argument, .. }
+            | KernelError::Track { argument, .. }
             | KernelError::Row { argument, .. } => argument,
             KernelError::Offsets { .. } => "offsets",
             KernelError::TooShort { .. } => "t",

@@ -8,6 +8,7 @@
 use crate::batch::{self, partition, plan_jobs, track_rows, SplitRows};
 use crate::diff::{derivatives_at, reach, FdOrder};
 use crate::error::{try_filled, KernelError, Result};
+use crate::fit::Fits;
 use crate::frame::{flag, frenet, Thresholds};
 use nalgebra::Vector3;
 use rayon::prelude::*;
@@ -283,8 +284,14 @@ fn run<const D: usize>(
             }
         })?;
 
-    let s = &mut out.arclength;
-    partition(&mut s[..], (0..m).map(|k| offsets[k + 1] - offsets[k]))
+    accumulate_arclength(&mut out.arclength, &offsets);
+    Ok(out)
+}
+
+/// Turn per-row segment lengths into cumulative lengths per track (NaN rows stay NaN).
+fn accumulate_arclength(s: &mut [f64], offsets: &[usize]) {
+    let m = offsets.len() - 1;
+    partition(s, (0..m).map(|k| offsets[k + 1] - offsets[k]))
         .into_par_iter()
         .for_each(|seg| {
             let mut acc = 0.0;
@@ -293,7 +300,185 @@ fn run<const D: usize>(
                 *v = acc;
             }
         });
+}
+
+/// Kinematics at the samples of fitted tracks (spline, smoothing spline or local polynomials).
+///
+/// Rows left out of a fit (non-finite positions) are INVALID; samples next to them, or next to a
+/// time step longer than `gap_factor` × the track's median step, are GAP.
+pub fn of_fits(fits: &Fits, opts: &Options) -> Result<Kinematics> {
+    match fits.dim {
+        2 => of_fits_dim::<2>(fits, opts),
+        3 => of_fits_dim::<3>(fits, opts),
+        d => Err(KernelError::Shape {
+            argument: "positions",
+            detail: format!("must have 2 or 3 columns, got {d}"),
+        }),
+    }
+}
+
+fn of_fits_dim<const D: usize>(fits: &Fits, opts: &Options) -> Result<Kinematics> {
+    let up = check_options(opts)?;
+    let up = if D == 2 { Some(Vector3::z()) } else { up };
+    let offsets = &fits.offsets;
+    let n = offsets[offsets.len() - 1];
+    let m = offsets.len() - 1;
+    let mut out = Kinematics::alloc(n, D)?;
+    let parts = partition(out.rows(), (0..m).map(|k| offsets[k + 1] - offsets[k]));
+    parts.into_par_iter().enumerate().for_each(|(k, mut rows)| {
+        let fit = &fits.tracks[k];
+        let kept = fits.rows[k].as_deref();
+        let len = offsets[k + 1] - offsets[k];
+        if kept.is_some() {
+            rows.flags[..len]
+                .iter_mut()
+                .for_each(|f| *f = flag::INVALID);
+        }
+        let tf = fit.times();
+        if tf.is_empty() {
+            return;
+        }
+        let gap_dt = opts.gap_factor * batch::median_step(tf);
+        let row_of = |j: usize| kept.map_or(j, |r| r[j]);
+        let nf = tf.len();
+        let step_is_gap = |j: usize| {
+            // Step between fitted samples j and j + 1.
+            j + 1 < nf && (tf[j + 1] - tf[j] > gap_dt || row_of(j + 1) - row_of(j) > 1)
+        };
+        let mut buf = [0.0; 12];
+        for j in 0..nf {
+            fit.at_sample(j, &mut buf[..4 * D]);
+            let take = |nu: usize| {
+                let mut a = [0.0; D];
+                a.copy_from_slice(&buf[nu * D..(nu + 1) * D]);
+                a
+            };
+            let gap = step_is_gap(j) || (j > 0 && step_is_gap(j - 1));
+            let flags =
+                if fit.is_edge(j) { flag::EDGE } else { 0 } | if gap { flag::GAP } else { 0 };
+            let s = Sample {
+                p: take(0),
+                d1: take(1),
+                d2: take(2),
+                d3: take(3),
+                ds: if j == 0 { 0.0 } else { fit.segment(j) },
+                flags,
+            };
+            rows.emit(row_of(j), &s, up.as_ref(), &opts.thresholds);
+        }
+    });
+    accumulate_arclength(&mut out.arclength, offsets);
     Ok(out)
+}
+
+/// Kinematics of fitted tracks at arbitrary times: `t` grouped by track with `query_offsets`
+/// (m + 1 entries, tracks may be empty). Arc length is measured from each track's first fitted
+/// sample (negative before it). No GAP or EDGE flags are set.
+pub fn of_fits_at(
+    fits: &Fits,
+    t: &[f64],
+    query_offsets: &[i64],
+    opts: &Options,
+) -> Result<Kinematics> {
+    let q = batch::check_query_offsets(query_offsets, t.len(), fits.tracks.len())?;
+    match fits.dim {
+        2 => of_fits_at_dim::<2>(fits, t, &q, opts),
+        _ => of_fits_at_dim::<3>(fits, t, &q, opts),
+    }
+}
+
+fn of_fits_at_dim<const D: usize>(
+    fits: &Fits,
+    t: &[f64],
+    q: &[usize],
+    opts: &Options,
+) -> Result<Kinematics> {
+    let up = check_options(opts)?;
+    let up = if D == 2 { Some(Vector3::z()) } else { up };
+    let m = q.len() - 1;
+    let mut out = Kinematics::alloc(t.len(), D)?;
+    let parts = partition(out.rows(), (0..m).map(|k| q[k + 1] - q[k]));
+    parts.into_par_iter().enumerate().for_each(|(k, mut rows)| {
+        let fit = &fits.tracks[k];
+        let cum = fit.cumulative_length();
+        let mut buf = [0.0; 12];
+        for (j, &tq) in t[q[k]..q[k + 1]].iter().enumerate() {
+            if !tq.is_finite() || matches!(fit, crate::fit::TrackFit::Invalid) {
+                rows.flags[j] = flag::INVALID;
+                continue;
+            }
+            fit.at_time(tq, &mut buf[..4 * D]);
+            let take = |nu: usize| {
+                let mut a = [0.0; D];
+                a.copy_from_slice(&buf[nu * D..(nu + 1) * D]);
+                a
+            };
+            let s = Sample {
+                p: take(0),
+                d1: take(1),
+                d2: take(2),
+                d3: take(3),
+                ds: fit.length_to(&cum, tq),
+                flags: 0,
+            };
+            rows.emit(j, &s, up.as_ref(), &opts.thresholds);
+        }
+    });
+    Ok(out)
+}
+
+/// The derivatives of one sample and where they came from.
+struct Sample<const D: usize> {
+    /// Position (fitted for smoothing methods).
+    p: [f64; D],
+    d1: [f64; D],
+    d2: [f64; D],
+    d3: [f64; D],
+    /// Arc length increment from the previous sample of the track.
+    ds: f64,
+    /// EDGE / GAP bits.
+    flags: u8,
+}
+
+fn vec3<const D: usize>(a: &[f64; D]) -> Vector3<f64> {
+    let mut v = Vector3::zeros();
+    v.as_mut_slice()[..D].copy_from_slice(a);
+    v
+}
+
+impl Rows<'_> {
+    /// Write local row `j` from the derivatives of its sample.
+    #[inline]
+    fn emit<const D: usize>(
+        &mut self,
+        j: usize,
+        s: &Sample<D>,
+        up: Option<&Vector3<f64>>,
+        th: &Thresholds,
+    ) {
+        let put = |dst: &mut [f64], v: &Vector3<f64>| {
+            dst[j * D..(j + 1) * D].copy_from_slice(&v.as_slice()[..D]);
+        };
+        let f = frenet(&vec3(&s.d1), &vec3(&s.d2), &vec3(&s.d3), up, th);
+        self.velocity[j * D..(j + 1) * D].copy_from_slice(&s.d1);
+        self.acceleration[j * D..(j + 1) * D].copy_from_slice(&s.d2);
+        self.jerk[j * D..(j + 1) * D].copy_from_slice(&s.d3);
+        self.speed[j] = f.speed;
+        self.arclength[j] = s.ds;
+        put(self.tangent, &f.tangent);
+        put(self.normal, &f.normal);
+        self.binormal[j * 3..(j + 1) * 3].copy_from_slice(f.binormal.as_slice());
+        self.curvature[j] = f.curvature;
+        self.signed_curvature[j] = f.signed_curvature;
+        self.torsion[j] = f.torsion;
+        self.radius[j] = f.radius;
+        put(self.center, &(vec3(&s.p) + f.normal * f.radius));
+        self.accel_tangential[j] = f.accel_tangential;
+        self.accel_normal[j] = f.accel_normal;
+        self.angular_speed[j] = f.angular_speed;
+        self.angular_accel[j] = f.angular_accel;
+        self.flags[j] = f.flags | s.flags;
+    }
 }
 
 /// Estimates for rows `local` of one track whose positions are all finite. `holes[j]` marks rows
@@ -307,33 +492,16 @@ fn dense<const D: usize>(
     up: Option<&Vector3<f64>>,
     gap_dt: f64,
     holes: Option<&[bool]>,
-    out: Rows<'_>,
+    mut out: Rows<'_>,
 ) {
     let n = t.len();
-    let th = &opts.thresholds;
-    let vec3 = |a: &[f64; D]| {
-        let mut v = Vector3::zeros();
-        v.as_mut_slice()[..D].copy_from_slice(a);
-        v
-    };
-    let put = |dst: &mut [f64], j: usize, v: &Vector3<f64>| {
-        dst[j * D..(j + 1) * D].copy_from_slice(&v.as_slice()[..D]);
-    };
     for (j, i) in local.enumerate() {
         let (d1, d2, d3, edge) = derivatives_at::<D>(t, x, i, opts.order);
-        let (v1, v2, v3) = (vec3(&d1), vec3(&d2), vec3(&d3));
-        let f = frenet(&v1, &v2, &v3, up, th);
         let (lo, hi) = reach(i, n, opts.order);
         let gap = (lo..hi).any(|q| t[q + 1] - t[q] > gap_dt || holes.is_some_and(|h| h[q]));
-
         let mut p = [0.0; D];
         p.copy_from_slice(&x[i * D..(i + 1) * D]);
-        let p = vec3(&p);
-        out.velocity[j * D..(j + 1) * D].copy_from_slice(&d1);
-        out.acceleration[j * D..(j + 1) * D].copy_from_slice(&d2);
-        out.jerk[j * D..(j + 1) * D].copy_from_slice(&d3);
-        out.speed[j] = f.speed;
-        out.arclength[j] = if i == 0 {
+        let ds = if i == 0 {
             0.0
         } else {
             let mut ds2 = 0.0;
@@ -343,20 +511,16 @@ fn dense<const D: usize>(
             }
             ds2.sqrt()
         };
-        put(out.tangent, j, &f.tangent);
-        put(out.normal, j, &f.normal);
-        out.binormal[j * 3..(j + 1) * 3].copy_from_slice(f.binormal.as_slice());
-        out.curvature[j] = f.curvature;
-        out.signed_curvature[j] = f.signed_curvature;
-        out.torsion[j] = f.torsion;
-        out.radius[j] = f.radius;
-        put(out.center, j, &(p + f.normal * f.radius));
-        out.accel_tangential[j] = f.accel_tangential;
-        out.accel_normal[j] = f.accel_normal;
-        out.angular_speed[j] = f.angular_speed;
-        out.angular_accel[j] = f.angular_accel;
-        out.flags[j] =
-            f.flags | if edge { flag::EDGE } else { 0 } | if gap { flag::GAP } else { 0 };
+        let flags = if edge { flag::EDGE } else { 0 } | if gap { flag::GAP } else { 0 };
+        let s = Sample {
+            p,
+            d1,
+            d2,
+            d3,
+            ds,
+            flags,
+        };
+        out.emit(j, &s, up, &opts.thresholds);
     }
 }
 

@@ -4,12 +4,23 @@
 //! tangential/normal acceleration split and turn rate of sampled paths, for one or many tracks at
 //! once. The Python bindings live in [`bindings`] behind the `python` feature.
 
+// Index loops mirror the published recurrences (Fornberg, de Boor, Piegl–Tiller) line by line.
+#![allow(clippy::needless_range_loop)]
+
 pub mod arclength;
+pub mod banded;
 pub mod batch;
+pub mod bspline;
 pub mod diff;
 pub mod error;
+pub mod fit;
 pub mod frame;
+pub mod geodesy;
 pub mod kinematics;
+pub mod local;
+pub mod piecewise;
+pub mod smooth;
+pub mod spline;
 
 #[cfg(feature = "python")]
 pub mod bindings;

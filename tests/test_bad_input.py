@@ -24,7 +24,7 @@ CASES = [
         "too few samples",
         {"t": T5[:2], "x": X5[:2]},
         osc.InputError,
-        r"t: track 0 has 2 samples but fd needs at least 3",
+        r"t: track 0: has 2 samples but fd needs at least 3",
     ),
     (
         "order 4 needs 5",
@@ -142,7 +142,7 @@ def test_errors_name_the_callers_track_and_row():
 
 def test_too_short_track_is_named():
     ids = np.array([7, 7, 7, 9, 9])
-    with pytest.raises(osc.InputError, match=r"t: track 9 has 2 samples"):
+    with pytest.raises(osc.InputError, match=r"t: track 9: has 2 samples"):
         osc.kinematics(T5, X5, tracks=ids)
 
 

@@ -7,7 +7,14 @@ import sys
 
 import pytest
 
-MODULES = ["osculate.intrinsic", "osculate.flags", "osculate.demo"]
+MODULES = [
+    "osculate.intrinsic",
+    "osculate.flags",
+    "osculate.demo",
+    "osculate.geodesy",
+    "osculate.accessor",
+    "osculate.dask",
+]
 
 
 @pytest.mark.parametrize("name", MODULES)

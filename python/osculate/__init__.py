@@ -8,15 +8,38 @@ from __future__ import annotations
 
 from ._core import InputError, __version__
 from .flags import Flag
+from .geodesy import enu_to_geodetic, geodetic_to_enu
 from .intrinsic import Derivatives, Kinematics, arclength, derivatives, kinematics
+from .paths import Path, fit
+
+try:  # the DataFrame.osc accessor registers itself when pandas is importable
+    from . import accessor as _accessor  # noqa: F401
+except ImportError:  # pragma: no cover - numpy-only installs
+    pass
 
 __all__ = [
     "Derivatives",
     "Flag",
     "InputError",
     "Kinematics",
+    "Path",
     "__version__",
     "arclength",
     "derivatives",
+    "enu_to_geodetic",
+    "fit",
+    "geodetic_to_enu",
     "kinematics",
 ]
+
+# Optional submodules that need an extra, imported on first use: ``osculate.dask`` needs
+# ``pip install 'osculate[dask]'``.
+_LAZY_SUBMODULES = ("dask",)
+
+
+def __getattr__(name: str) -> object:
+    if name in _LAZY_SUBMODULES:
+        import importlib
+
+        return importlib.import_module(f".{name}", __name__)
+    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")

@@ -26,3 +26,15 @@ def polyline_arclength(
     positions: npt.NDArray[np.float64],
     offsets: npt.NDArray[np.int64],
 ) -> npt.NDArray[np.float64]: ...
+def geodetic_to_enu(
+    llh: npt.NDArray[np.float64],
+    offsets: npt.NDArray[np.int64],
+    *,
+    origin: npt.NDArray[np.float64] | None = None,
+) -> tuple[npt.NDArray[np.float64], npt.NDArray[np.float64]]: ...
+def enu_to_geodetic(
+    enu: npt.NDArray[np.float64],
+    offsets: npt.NDArray[np.int64],
+    *,
+    origin: npt.NDArray[np.float64],
+) -> npt.NDArray[np.float64]: ...

@@ -135,8 +135,7 @@ def call_kernel(grouping: Grouping, fn: Callable[..., T], *args: Any, **kwargs: 
         row = getattr(err, "row", None)
         if row is not None:
             where += f", row {grouping.caller_row(row)}"
-        sep = ": " if row is not None else " "
-        new = InputError(f"{err.argument}: {where}{sep}{err.detail}")
+        new = InputError(f"{err.argument}: {where}: {err.detail}")
         new.argument, new.track, new.row, new.detail = (
             err.argument,
             track,

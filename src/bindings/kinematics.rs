@@ -25,7 +25,7 @@ fn column<'py>(
     })
 }
 
-fn to_dict(py: Python<'_>, k: Kinematics) -> PyResult<Bound<'_, PyDict>> {
+pub(crate) fn to_dict(py: Python<'_>, k: Kinematics) -> PyResult<Bound<'_, PyDict>> {
     let (n, d) = (k.n, k.dim);
     let out = PyDict::new(py);
     let vectors = [

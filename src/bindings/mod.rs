@@ -2,6 +2,8 @@
 //! Nothing numerical happens here.
 
 mod error;
+mod fit;
+mod geodesy;
 mod kinematics;
 
 use pyo3::prelude::*;
@@ -15,5 +17,9 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add("InputError", m.py().get_type::<InputError>())?;
     m.add_function(wrap_pyfunction!(kinematics::fd_kinematics, m)?)?;
     m.add_function(wrap_pyfunction!(kinematics::polyline_arclength, m)?)?;
+    m.add_function(wrap_pyfunction!(fit::fit_paths, m)?)?;
+    m.add_class::<fit::FittedPaths>()?;
+    m.add_function(wrap_pyfunction!(geodesy::geodetic_to_enu, m)?)?;
+    m.add_function(wrap_pyfunction!(geodesy::enu_to_geodetic, m)?)?;
     Ok(())
 }

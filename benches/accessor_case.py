@@ -1,0 +1,207 @@
+"""The pandas accessor against ``groupby().apply`` with a NumPy per-track implementation.
+
+    python benches/accessor_case.py [--quick] [--out FILE.json]
+
+Data: ``data.many_tracks`` (1,000 tracks of ~1,000 samples, 3-D; ``--quick``: 100 tracks), laid
+out as a log: rows ordered by time, so the tracks are interleaved, on a RangeIndex.
+
+* accessor: ``df.osc.kinematics(time="t", position=["x", "y", "z"], by="track")``, every output on
+  the caller's rows (one Rust call for all tracks);
+* baseline: ``df.groupby("track")[cols].apply(f)`` where ``f`` sorts the track's rows by time, runs
+  ``reference.kinematics`` (the vectorized NumPy implementation of the same quantities beside this
+  file) and returns a DataFrame of the same columns on the group's index; the result is put back
+  on the caller's rows with ``reindex``.
+
+Before timing, both results are checked equal with ``check.compare`` (the tolerances stated there).
+Targets (reported PASS / MISS, not asserted): the accessor ≥ 50× faster than the baseline, and its
+peak memory (growth of the resident set during the call, measured in a fresh interpreter) ≤ 3× the
+memory of the input frame.
+
+``run(quick) -> dict`` is the entry point for a driver; ``main`` prints the dict as JSON.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import statistics
+import subprocess
+import sys
+import time
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+import pandas as pd
+
+HERE = Path(__file__).resolve().parent
+if str(HERE) not in sys.path:
+    sys.path.insert(0, str(HERE))
+
+import check  # noqa: E402  (beside this file)
+import data  # noqa: E402
+import osculate  # noqa: E402, F401  (registers DataFrame.osc)
+import reference  # noqa: E402
+
+XYZ = ["x", "y", "z"]
+SIZES = {False: (1000, 1000), True: (100, 1000)}  # (tracks, mean samples per track)
+TARGET_SPEEDUP = 50.0
+TARGET_PEAK_RATIO = 3.0
+
+
+def make_frame(m: int, mean_len: int) -> pd.DataFrame:
+    """A log of ``m`` tracks: rows ordered by time, tracks interleaved."""
+    t, x, off = data.many_tracks(m, mean_len)
+    ids = np.repeat(np.arange(m), np.diff(off))
+    order = np.argsort(t, kind="stable")
+    return pd.DataFrame(
+        {"track": ids[order], "t": t[order], "x": x[order, 0], "y": x[order, 1], "z": x[order, 2]}
+    )
+
+
+def accessor(df: pd.DataFrame) -> pd.DataFrame:
+    """Every output of every track, on the caller's rows, with one call."""
+    return df.osc.kinematics(time="t", position=XYZ, by="track")
+
+
+def _per_track(g: pd.DataFrame) -> pd.DataFrame:
+    g = g.sort_values("t", kind="stable")
+    out = reference.kinematics(g["t"].to_numpy(), g[XYZ].to_numpy())
+    cols: dict[str, np.ndarray] = {}
+    for name in reference.FIELDS:
+        a = out[name]
+        if a.ndim == 1:
+            cols[name] = a
+        else:
+            for j, axis in enumerate("xyz"[: a.shape[1]]):
+                cols[f"{name}_{axis}"] = a[:, j]
+    return pd.DataFrame(cols, index=g.index)
+
+
+def baseline(df: pd.DataFrame) -> pd.DataFrame:
+    """The usual pandas way: groupby().apply of a NumPy per-track function, back on the rows."""
+    res = df.groupby("track", group_keys=False)[["t", *XYZ]].apply(_per_track)
+    return res.reindex(df.index)
+
+
+def _kernel_order(df: pd.DataFrame, res: pd.DataFrame) -> dict[str, np.ndarray]:
+    """Result columns → the per-field arrays of ``check.compare``, grouped by track and time."""
+    order = np.lexsort((df["t"].to_numpy(), df["track"].to_numpy()))
+    out = {}
+    for name in reference.FIELDS:
+        if name in res.columns:
+            out[name] = res[name].to_numpy()[order]
+        else:
+            comps = [c for c in (f"{name}_{a}" for a in "xyz") if c in res.columns]
+            out[name] = res[comps].to_numpy()[order]
+    return out
+
+
+def verify(df: pd.DataFrame, quick: bool) -> dict[str, Any]:
+    """Both results hold the same numbers (check.compare's tolerances); the accessor's rows."""
+    mine, theirs = accessor(df), baseline(df)
+    if not mine.index.equals(df.index) or not theirs.index.equals(df.index):
+        raise AssertionError("a result is not on the caller's rows")
+    order = np.lexsort((df["t"].to_numpy(), df["track"].to_numpy()))
+    counts = np.bincount(df["track"].to_numpy())
+    offsets = np.zeros(len(counts) + 1, dtype=np.int64)
+    np.cumsum(counts, out=offsets[1:])
+    figures = check.compare(
+        _kernel_order(df, mine),
+        _kernel_order(df, theirs),
+        df["t"].to_numpy()[order],
+        df[XYZ].to_numpy()[order],
+        offsets,
+        {},
+        f"accessor vs groupby-apply ({'quick' if quick else 'full'})",
+    )
+    return {"samples": figures["samples"], "flags_identical": figures["flags_identical"]}
+
+
+def _timed(fn: Any, df: pd.DataFrame, repeats: int) -> dict[str, float]:
+    times = []
+    for _ in range(repeats):
+        start = time.perf_counter()
+        fn(df)
+        times.append(time.perf_counter() - start)
+    return {"median_s": statistics.median(times), "min_s": min(times), "repeats": repeats}
+
+
+def _peak_job(quick: bool) -> dict[str, Any]:
+    """In a fresh interpreter: resident-set growth during one accessor call (VmHWM reset)."""
+
+    def status_kib(field: str) -> int:
+        with open("/proc/self/status") as f:
+            for line in f:
+                if line.startswith(field + ":"):
+                    return int(line.split()[1])
+        raise OSError(field)
+
+    df = make_frame(*SIZES[quick])
+    accessor(df.iloc[:1000])  # warm-up: imports, thread pool
+    input_bytes = int(df.memory_usage(index=True, deep=True).sum())
+    with open("/proc/self/clear_refs", "w") as f:
+        f.write("5")
+    before = status_kib("VmRSS")
+    res = accessor(df)
+    growth = (status_kib("VmHWM") - before) * 1024
+    return {
+        "input_bytes": input_bytes,
+        "output_bytes": int(res.memory_usage(index=False).sum()),
+        "peak_growth_bytes": growth,
+    }
+
+
+def run(quick: bool) -> dict[str, Any]:
+    """Check, time and measure; return the figures and the PASS / MISS of each target."""
+    m, mean_len = SIZES[quick]
+    df = make_frame(m, mean_len)
+    result: dict[str, Any] = {"rows": len(df), "tracks": m, "check": verify(df, quick)}
+    result["accessor"] = _timed(accessor, df, 2 if quick else 5)
+    result["groupby_apply"] = _timed(baseline, df, 1)
+    speedup = result["groupby_apply"]["median_s"] / result["accessor"]["median_s"]
+    result["speedup"] = {
+        "measured": speedup,
+        "target": TARGET_SPEEDUP,
+        "status": "PASS" if speedup >= TARGET_SPEEDUP else "MISS",
+    }
+    try:
+        job = subprocess.run(
+            [sys.executable, __file__, "--peak-job", *(["--quick"] if quick else [])],
+            capture_output=True,
+            text=True,
+            check=True,
+            timeout=600,
+        )
+        peak = json.loads(job.stdout.strip().splitlines()[-1])
+        ratio = peak["peak_growth_bytes"] / peak["input_bytes"]
+        result["peak_memory"] = {
+            **peak,
+            "ratio_to_input": ratio,
+            "target": TARGET_PEAK_RATIO,
+            "status": "PASS" if ratio <= TARGET_PEAK_RATIO else "MISS",
+        }
+    except (OSError, subprocess.SubprocessError, ValueError) as err:  # not Linux, or it failed
+        result["peak_memory"] = {"status": "NOT MEASURED", "why": str(err)}
+    return result
+
+
+def main() -> None:
+    """Command line: print the figures as JSON (and write them with --out)."""
+    p = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    p.add_argument("--quick", action="store_true", help="100 tracks instead of 1000")
+    p.add_argument("--out", type=Path, help="also write the JSON here")
+    p.add_argument("--peak-job", action="store_true", help=argparse.SUPPRESS)
+    args = p.parse_args()
+    if args.peak_job:
+        print(json.dumps(_peak_job(args.quick)))
+        return
+    figures = run(args.quick)
+    text = json.dumps(figures, indent=2)
+    print(text)
+    if args.out is not None:
+        args.out.write_text(text + "\n")
+
+
+if __name__ == "__main__":
+    main()

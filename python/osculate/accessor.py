@@ -1,0 +1,563 @@
+"""The pandas accessor ``DataFrame.osc``: kinematics of every track of a frame, on the frame's rows.
+
+Importing :mod:`osculate` registers the accessor when pandas is importable.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+from collections.abc import Hashable, Sequence
+from typing import Any, Optional
+
+import numpy as np
+import numpy.typing as npt
+
+try:
+    import pandas as pd
+except ImportError as exc:  # pragma: no cover - depends on the environment
+    raise ImportError(
+        "the DataFrame.osc accessor needs pandas: pip install 'osculate[pandas]'"
+    ) from exc
+
+from . import _core
+from ._validate import Grouping
+from .geodesy import enu_and_origins
+from .intrinsic import Kinematics
+from .intrinsic import kinematics as _kinematics
+
+__all__ = ["OscAccessor", "result_columns", "track_time_order"]
+
+F64 = npt.NDArray[np.float64]
+CRS = ("cartesian", "geodetic")
+_SKIP = ("t", "position")  # the caller's own input
+
+
+def _input_error(message: str, argument: str, row: Optional[int] = None, label: Any = None) -> Any:
+    err = _core.InputError(message)
+    err.argument, err.track, err.row, err.detail = argument, None, row, message
+    setattr(err, "label", label)  # noqa: B010  (InputError has no declared `label`)
+    return err
+
+
+def _values(df: pd.DataFrame, name: Hashable, role: str) -> Any:
+    """Return column ``name`` of ``df``, or the index level of that name (errors name the role)."""
+    if name in df.columns:
+        col = df[name]
+        if isinstance(col, pd.DataFrame):
+            raise _input_error(f"{role}: column {name!r} appears {col.shape[1]} times", str(name))
+        return col
+    if name is not None and name in df.index.names:
+        return pd.Series(df.index.get_level_values(name), index=df.index)
+    shown = ", ".join(repr(c) for c in list(df.columns)[:20])
+    more = ", ..." if len(df.columns) > 20 else ""
+    raise _input_error(
+        f"{role}: column {name!r} not found (columns: {shown}{more})", str(name), None
+    )
+
+
+def _numbers(s: pd.Series, role: str) -> F64:
+    if pd.api.types.is_bool_dtype(s.dtype) or not pd.api.types.is_numeric_dtype(s.dtype):
+        raise TypeError(f"{role}: column {s.name!r} holds {s.dtype} values, expected real numbers")
+    if pd.api.types.is_complex_dtype(s.dtype):
+        raise TypeError(f"{role}: column {s.name!r} holds complex values, expected real numbers")
+    return np.ascontiguousarray(s.to_numpy(dtype=np.float64, na_value=np.nan))
+
+
+@dataclasses.dataclass(frozen=True)
+class _Times:
+    """A time column as a sort key plus how to turn it into seconds."""
+
+    key: np.ndarray  # float64 seconds, or int64 ticks for datetimes
+    ticks_per_second: Optional[float]  # set for datetimes: seconds are relative to each track
+    missing: npt.NDArray[np.bool_]
+
+
+def _times(s: pd.Series) -> _Times:
+    dtype = s.dtype
+    if isinstance(dtype, pd.DatetimeTZDtype):
+        s = s.dt.tz_convert("UTC").dt.tz_localize(None)
+        dtype = s.dtype
+    if dtype.kind in "Mm":
+        a = s.to_numpy()
+        unit, count = np.datetime_data(a.dtype)
+        per_second = float(np.array(1, "m8[s]") / np.array(count, f"m8[{unit}]"))
+        missing = np.isnat(a)
+        ticks = a.view(np.int64)
+        if dtype.kind == "m":  # durations: seconds as they are
+            sec = ticks / per_second
+            sec[missing] = np.nan
+            return _Times(sec, None, missing)
+        return _Times(ticks, per_second, missing)
+    sec = _numbers(s, "time")
+    return _Times(sec, None, np.isnan(sec))
+
+
+def track_time_order(
+    codes: npt.NDArray[np.intp], key: np.ndarray, n_tracks: int
+) -> Optional[npt.NDArray[np.intp]]:
+    """Permutation that sorts rows stably by (track code, time key); None if they already are.
+
+    Equal to ``numpy.lexsort((key, codes))``, computed faster: rows already time-ordered within
+    each track (the usual log, tracks interleaved) need one stable sort of the small-integer codes
+    (a radix sort); otherwise a stable sort by time comes first, then the stable sort by track.
+    """
+    if len(codes) < 2:
+        return None
+    same = codes[1:] == codes[:-1]
+    if np.all((codes[1:] > codes[:-1]) | (same & (key[1:] >= key[:-1]))):
+        return None
+    small = codes.astype(np.uint16 if n_tracks <= 1 << 16 else np.int64)
+    order = np.argsort(small, kind="stable")
+    c, k = codes[order], key[order]
+    if np.all((c[1:] != c[:-1]) | (k[1:] >= k[:-1])):
+        return order
+    by_time = np.argsort(key, kind="stable")
+    return by_time[np.argsort(small[by_time], kind="stable")]
+
+
+class _Prepared:
+    """Rows of a frame grouped by track and sorted by time, ready for one kernel call."""
+
+    def __init__(
+        self,
+        df: pd.DataFrame,
+        time: Hashable,
+        position: Sequence[Hashable],
+        by: Optional[Hashable],
+        crs: str,
+        origin: Any,
+    ) -> None:
+        if crs not in CRS:
+            raise _input_error(f"crs: expected one of {CRS}, got {crs!r}", "crs")
+        if isinstance(position, (str, bytes)) or len(position) not in (2, 3):
+            raise _input_error(
+                f"position: expected 2 or 3 column names, got {position!r}", "position"
+            )
+        if crs == "cartesian" and origin is not None:
+            raise _input_error("origin: only used with crs='geodetic'", "origin")
+        self.index = df.index
+        self.n = n = len(df)
+        self.time, self.position, self.by, self.crs = time, tuple(position), by, crs
+        self.time_values = _values(df, time, "time")
+        times = _times(self.time_values)
+        coords = [_numbers(_values(df, c, "position"), "position") for c in self.position]
+        if by is None:
+            codes = np.zeros(n, dtype=np.intp)
+            self.labels: pd.Index = pd.Index([0], name="track")
+        else:
+            ids = _values(df, by, "by")
+            try:
+                c, uniques = pd.factorize(ids, sort=True)
+            except TypeError:  # labels of mixed types cannot be sorted: first-seen order
+                c, uniques = pd.factorize(ids, sort=False)
+            codes = np.asarray(c, dtype=np.intp)
+            self.labels = pd.Index(uniques, name=by)
+            if n and codes.min() < 0:
+                pos = int(np.argmax(codes < 0))
+                raise self.row_error(by, pos, "the track id is missing")
+        if times.missing.any():
+            pos = int(np.argmax(times.missing))
+            raise self.row_error(time, pos, "the time is missing (NaN or NaT)")
+        self.n_tracks = m = len(self.labels) if n else 0
+        key = times.key
+        self.order: Optional[npt.NDArray[np.intp]] = track_time_order(codes, key, m)
+        self._inverse: Optional[npt.NDArray[np.intp]] = None
+        counts = np.bincount(codes, minlength=m)
+        self.offsets = np.zeros(m + 1, dtype=np.int64)
+        np.cumsum(counts, out=self.offsets[1:])
+        self.grouping = Grouping(self.offsets, None, np.arange(m))
+        key = self.to_kernel(key)
+        if times.ticks_per_second is not None:  # datetimes: seconds since each track's first time
+            first = np.repeat(key[self.offsets[:-1]], counts)
+            self.t = (key - first) / times.ticks_per_second
+        else:
+            self.t = np.ascontiguousarray(key, dtype=np.float64)
+        x = np.column_stack([self.to_kernel(c) for c in coords]) if n else np.empty((0, 3))
+        self.origins: Optional[F64] = None
+        self.enu: Optional[F64] = None
+        if crs == "geodetic" and n:
+            llh = x if x.shape[1] == 3 else np.column_stack([x, np.zeros(n)])
+            try:
+                enu, self.origins = enu_and_origins(llh, self.grouping, origin)
+            except _core.InputError as err:
+                raise self.relabel(err) from None
+            self.enu = enu
+            x = enu if x.shape[1] == 3 else np.ascontiguousarray(enu[:, :2])
+        self.x = np.ascontiguousarray(x, dtype=np.float64)
+
+    # -- rows ------------------------------------------------------------------------------------
+    def to_kernel(self, a: np.ndarray) -> np.ndarray:
+        """Caller rows → kernel rows (grouped by track, sorted by time)."""
+        return a if self.order is None else a[self.order]
+
+    def to_caller(self, a: np.ndarray) -> np.ndarray:
+        """Kernel rows → caller rows, for a 1-D array (a gather, faster than a scatter)."""
+        if self.order is None:
+            return a
+        if self._inverse is None:
+            inv = np.empty(self.n, dtype=np.intp)
+            inv[self.order] = np.arange(self.n)
+            self._inverse = inv
+        return np.take(a, self._inverse)
+
+    def caller_pos(self, kernel_row: int) -> int:
+        """Return the caller's positional row of a kernel row."""
+        return kernel_row if self.order is None else int(self.order[kernel_row])
+
+    # -- errors ----------------------------------------------------------------------------------
+    def row_error(self, column: Hashable, pos: int, detail: str, track: Any = None) -> Any:
+        """Make an InputError naming the column, the index label of caller row ``pos``, a track."""
+        label = self.index[pos]
+        where = f"column {column!r}, row {label!r}"
+        if track is not None:
+            where += f" (track {track!r})"
+        return _input_error(f"{where}: {detail}", str(column), pos, label)
+
+    def column_of(self, argument: str) -> Hashable:
+        """Return the caller's column behind a kernel argument name."""
+        if argument == "t":
+            return self.time
+        if argument == "lat":
+            return self.position[0]
+        if argument in ("positions", "llh"):
+            return ", ".join(str(p) for p in self.position)
+        return argument
+
+    def relabel(self, err: Any) -> Any:
+        """Re-word a kernel error with the caller's column, index label and track label."""
+        track, row = getattr(err, "track", None), getattr(err, "row", None)
+        if track is None or track >= self.n_tracks:
+            return err
+        label = self.labels[track]
+        label = label.item() if isinstance(label, np.generic) else label
+        column = self.column_of(getattr(err, "argument", ""))
+        detail = getattr(err, "detail", str(err))
+        if row is not None:
+            new = self.row_error(column, self.caller_pos(row), detail, label)
+        else:
+            first = self.index[self.caller_pos(int(self.offsets[track]))]
+            new = _input_error(
+                f"track {label!r} (column {self.by!r}, first row {first!r}): {detail}",
+                str(self.by),
+                None,
+                first,
+            )
+        new.track = label
+        return new
+
+    def run(self, options: dict[str, Any]) -> Kinematics:
+        """One call of :func:`osculate.kinematics` on all tracks."""
+        for bad in ("tracks", "offsets"):
+            if bad in options:
+                raise TypeError(f"{bad}: not an option of the accessor; name the column with by=")
+        if self.enu is not None and self.x.shape[1] == 3:
+            options = {"up": (0.0, 0.0, 1.0), **options}
+        try:
+            return _kinematics(self.t, self.x, offsets=self.offsets, **options)
+        except _core.InputError as err:
+            raise self.relabel(err) from None
+
+
+def _quantities(k: Kinematics) -> list[tuple[str, np.ndarray]]:
+    """Per-sample results of ``k`` (any estimator), in field order, without the input."""
+    n = len(k)
+    out = []
+    for f in dataclasses.fields(k):
+        if f.name.startswith("_") or f.name in _SKIP:
+            continue
+        a = getattr(k, f.name)
+        if isinstance(a, np.ndarray) and a.ndim in (1, 2) and a.shape[0] == n and a.dtype != object:
+            out.append((f.name, a))
+    # The track labels of Kinematics are batch positions here; the caller has the real column.
+    return [(name, a) for name, a in out if name != "tracks"]
+
+
+def result_columns(k: Kinematics) -> list[str]:
+    """Names of the accessor's result columns for the quantities of ``k``.
+
+    Parameters
+    ----------
+    k : Kinematics
+        A result of :func:`osculate.kinematics`.
+
+    Returns
+    -------
+    list of str
+        Scalars keep their name; vectors get ``_x``, ``_y`` (and ``_z``) suffixes.
+    """
+    names = []
+    for name, a in _quantities(k):
+        if a.ndim == 1:
+            names.append(name)
+        else:
+            names.extend(f"{name}_{axis}" for axis in "xyz"[: a.shape[1]])
+    return names
+
+
+def _select(
+    available: list[str], quantities: list[str], enu: tuple[str, ...], columns: Any
+) -> set[str]:
+    if columns is None:
+        return set(available)
+    wanted = [columns] if isinstance(columns, str) else list(columns)
+    chosen: set[str] = set()
+    for w in wanted:
+        hits = [c for c in available if c == w or (w in quantities and c.startswith(f"{w}_"))]
+        if w == "position":
+            hits = list(enu)
+        if not hits:
+            raise _input_error(
+                f"columns: unknown result {w!r}; choose from {', '.join(quantities)} "
+                f"or one of their components",
+                "columns",
+            )
+        chosen.update(hits)
+    return chosen
+
+
+def _synthetic(prep: _Prepared, options: dict[str, Any]) -> Kinematics:
+    """Run on a small made-up path with the same options: the layout for zero-row frames."""
+    t = np.arange(24, dtype=np.float64)
+    x = np.column_stack([np.cos(0.1 * t), np.sin(0.1 * t), 0.01 * t])[:, : len(prep.position)]
+    if prep.crs == "geodetic" and x.shape[1] == 3:
+        options = {"up": (0.0, 0.0, 1.0), **options}
+    return _kinematics(t, x, **options)
+
+
+def _frame(prep: _Prepared, k: Kinematics, columns: Any) -> pd.DataFrame:
+    quantities = _quantities(k)
+    if prep.n == 0:  # k is a synthetic run: keep its layout and dtypes, none of its rows
+        quantities = [(name, a[:0]) for name, a in quantities]
+    names = [q for q, _ in quantities]
+    enu_names = ("east", "north", "up")[: len(prep.position)] if prep.crs == "geodetic" else ()
+    available = [*enu_names, *result_columns(k)]
+    chosen = _select(available, names, enu_names, columns)
+    cols: dict[str, np.ndarray] = {}
+    if enu_names and not chosen.isdisjoint(enu_names):
+        enu = prep.enu if prep.enu is not None else np.empty((0, 3))
+        for j, name in enumerate(enu_names):
+            if name in chosen:
+                cols[name] = prep.to_caller(enu[:, j])
+    for name, a in quantities:
+        if a.ndim == 1:
+            if name in chosen:
+                cols[name] = prep.to_caller(a)
+            continue
+        for j, axis in enumerate("xyz"[: a.shape[1]]):
+            if f"{name}_{axis}" in chosen:
+                cols[f"{name}_{axis}"] = prep.to_caller(a[:, j])
+    return pd.DataFrame(cols, index=prep.index, copy=False)
+
+
+@pd.api.extensions.register_dataframe_accessor("osc")
+class OscAccessor:
+    """``DataFrame.osc``: intrinsic kinematics of the tracks of a frame.
+
+    Parameters
+    ----------
+    df : pandas.DataFrame
+        The frame; registered as ``df.osc`` when :mod:`osculate` is imported.
+    """
+
+    def __init__(self, df: pd.DataFrame) -> None:
+        self._df = df
+
+    def kinematics(
+        self,
+        *,
+        time: Hashable,
+        position: Sequence[Hashable],
+        by: Optional[Hashable] = None,
+        crs: str = "cartesian",
+        origin: npt.ArrayLike | None = None,
+        columns: str | Sequence[str] | None = None,
+        keep: bool = False,
+        **options: Any,
+    ) -> pd.DataFrame:
+        """Kinematics of every row, on the frame's own rows and index.
+
+        All tracks go to Rust in one call of :func:`osculate.kinematics`: rows are grouped by
+        track and sorted by time (stable, ``numpy.lexsort``) inside, and every result is put back
+        on the caller's row. The rows of a track may be scattered through the frame and in any
+        time order; the index may be anything (non-unique, datetime, MultiIndex).
+
+        Parameters
+        ----------
+        time : hashable
+            Column (or index level) of sample times: numbers (seconds, or your time unit),
+            ``datetime64`` (naive or timezone-aware) or ``timedelta64``. Datetimes become
+            seconds since the first time of each track (timezone-aware ones via UTC), timedeltas
+            seconds as they are. A missing time (NaN, NaT) is an error.
+        position : sequence of 2 or 3 hashables
+            Columns (or index levels) of the coordinates: x, y[, z] with ``crs="cartesian"``, or
+            latitude, longitude[, ellipsoidal height] in degrees and metres with
+            ``crs="geodetic"``. Rows with a missing coordinate are kept, flagged INVALID, NaN.
+        by : hashable, optional
+            Column (or index level) of track ids; without it the frame is one track.
+        crs : {"cartesian", "geodetic"}
+            ``"geodetic"``: WGS 84 positions are converted to local east-north-up metres
+            (:func:`osculate.geodetic_to_enu`) before differentiating. Each track is anchored at
+            its own first finite fix unless ``origin`` is given (then one origin for all tracks).
+            Without a height column the height is taken as 0 and the path as planar (east,
+            north). For 3-D geodetic paths ``up`` defaults to (0, 0, 1), so ``signed_curvature``
+            is positive for left turns seen from above.
+        origin : (lat, lon, h), optional
+            Global origin of the local frame for ``crs="geodetic"``.
+        columns : str or sequence of str, optional
+            Keep only these results: quantity names (``"speed"``, ``"tangent"``) or component
+            columns (``"tangent_x"``); ``"position"`` selects ``east, north, up``.
+        keep : bool, default False
+            Return the frame's own columns followed by the results (input columns with a result's
+            name are replaced).
+        **options
+            Passed unchanged to :func:`osculate.kinematics` (``method``, ``order``,
+            ``min_speed``, ``min_curvature``, ``gap_factor``, ``up``, and any option of later
+            estimators).
+
+        Returns
+        -------
+        pandas.DataFrame
+            On ``df.index``, one column per result: scalars by name (``speed``, ``arclength``,
+            ``curvature``, ``radius``, ``torsion``, ``accel_tangential``, ...), vectors by
+            component (``velocity_x``, ``tangent_y``, ``binormal_z``, ...; x, y, z are east,
+            north, up for geodetic input, which also gives ``east``, ``north``, ``up``) and
+            ``flags`` (bits of :class:`osculate.Flag`).
+
+        Raises
+        ------
+        InputError
+            A missing column, a missing time or track id, times that repeat within a track, a
+            track too short for the method, bad options. The message names the column, the
+            caller's index label of the row and the track.
+        TypeError
+            A column of non-numeric values, or an unknown option.
+
+        See Also
+        --------
+        osculate.kinematics : The array function behind the accessor.
+
+        Notes
+        -----
+        Speed, frame, curvature, torsion and the acceleration split are those of
+        :func:`osculate.kinematics` with the same ``method`` (see its Notes for the estimator and
+        its reference); geodetic conversion as in :func:`osculate.geodetic_to_enu` (WGS 84,
+        NIMA TR8350.2).
+
+        Examples
+        --------
+        Two tracks whose rows are interleaved and out of time order, on a non-unique index:
+
+        >>> import numpy as np
+        >>> import pandas as pd
+        >>> import osculate as osc
+        >>> t = np.arange(6.0)
+        >>> df = pd.DataFrame(
+        ...     {
+        ...         "car": ["a", "b"] * 6,
+        ...         "t": np.repeat(t, 2),
+        ...         "x": np.column_stack([t, 2 * t]).ravel(),
+        ...         "y": np.column_stack([0.5 * t**2, 0 * t]).ravel(),
+        ...     },
+        ...     index=["r"] * 12,
+        ... ).iloc[::-1]
+        >>> res = df.osc.kinematics(time="t", position=["x", "y"], by="car")
+        >>> res[["speed", "accel_normal"]].iloc[:4].round(3)
+           speed  accel_normal
+        r  2.000         0.000
+        r  5.099         0.196
+        r  2.000         0.000
+        r  4.123         0.243
+
+        Track ``b`` runs straight: flagged STRAIGHT, curvature 0. A missing coordinate is kept
+        on its row, flagged INVALID:
+
+        >>> bool((res["flags"].iloc[::2] & int(osc.Flag.STRAIGHT)).all())
+        True
+        >>> df.loc[:, "x"] = df["x"].where(df["t"] != 2.0)
+        >>> res = df.osc.kinematics(time="t", position=["x", "y"], by="car")
+        >>> [osc.Flag.INVALID in osc.Flag(int(f)) for f in res["flags"].iloc[6:8]]
+        [True, True]
+        """
+        df = self._df
+        prep = _Prepared(df, time, position, by, crs, origin)
+        k = prep.run(options) if prep.n else _synthetic(prep, options)
+        res = _frame(prep, k, columns)
+        if not keep:
+            return res
+        own = df.drop(columns=[c for c in res.columns if c in df.columns])
+        return pd.concat([own, res], axis=1)
+
+    def summary(
+        self,
+        *,
+        time: Hashable,
+        position: Sequence[Hashable],
+        by: Optional[Hashable] = None,
+        crs: str = "cartesian",
+        origin: npt.ArrayLike | None = None,
+        **options: Any,
+    ) -> pd.DataFrame:
+        """One row per track: length, duration, speeds, accelerations, radius, jerk, turning.
+
+        Parameters
+        ----------
+        time, position, by, crs, origin, **options
+            As in :meth:`kinematics`.
+
+        Returns
+        -------
+        pandas.DataFrame
+            Indexed by track label (named after ``by``; a single track is labelled 0), with
+            ``start`` and ``end`` (first and last time, in the time column's own type), the
+            columns of :meth:`osculate.Kinematics.summary_arrays` (``samples``, ``length``,
+            ``duration`` in seconds, ``mean_speed``, ``max_speed``, ``max_accel_normal``,
+            ``min_radius``, ...) and, for geodetic input, the origin of each track's local frame
+            (``origin_lat``, ``origin_lon``, ``origin_h``).
+
+        Raises
+        ------
+        InputError
+            As in :meth:`kinematics`.
+
+        Notes
+        -----
+        The figures come from the per-sample results of :meth:`kinematics` (one Rust call for
+        all tracks). Lateral acceleration, jerk and radius estimated from logged data are
+        indicative only: local codes and licensed engineers decide whether a road, track, ride or
+        vehicle is acceptable.
+
+        Examples
+        --------
+        >>> import numpy as np
+        >>> import pandas as pd
+        >>> import osculate as osc
+        >>> t = np.linspace(0.0, 2 * np.pi, 201)
+        >>> df = pd.DataFrame({"t": t, "x": 5 * np.cos(t), "y": 5 * np.sin(t)})
+        >>> s = df.osc.summary(time="t", position=["x", "y"], order=4)
+        >>> s.loc[0, ["samples", "length", "min_radius"]].round(4).tolist()
+        [201.0, 31.4146, 5.0]
+
+        (The length is that of the polyline through the 201 samples; the circle's is
+        10π = 31.4159.) A frame with no rows gives a summary with no rows:
+
+        >>> len(df.iloc[:0].osc.summary(time="t", position=["x", "y"]))
+        0
+        """
+        df = self._df
+        prep = _Prepared(df, time, position, by, crs, origin)
+        if prep.n == 0:  # layout and dtypes of a synthetic run, none of its rows
+            data = {c: v[:0] for c, v in _synthetic(prep, options).summary_arrays().items()}
+        else:
+            data = prep.run(options).summary_arrays()
+        data.pop("track", None)
+        out = pd.DataFrame(data, index=prep.labels[: prep.n_tracks])
+        first = prep.offsets[:-1] if prep.order is None else prep.order[prep.offsets[:-1]]
+        last = prep.offsets[1:] - 1 if prep.order is None else prep.order[prep.offsets[1:] - 1]
+        raw = prep.time_values
+        out.insert(0, "start", raw.iloc[first].array)
+        out.insert(1, "end", raw.iloc[last].array)
+        if prep.crs == "geodetic":
+            o = prep.origins if prep.origins is not None else np.empty((0, 3))
+            for j, name in enumerate(("origin_lat", "origin_lon", "origin_h")):
+                out[name] = o[:, j]
+        return out

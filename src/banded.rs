@@ -1,0 +1,394 @@
+//! Banded linear algebra: symmetric positive definite band matrices (LDLᵀ, solves and the band of
+//! the inverse) and tridiagonal systems with several right-hand sides.
+//!
+//! The band of the inverse uses the recurrence of M. F. Hutchinson and F. R. de Hoog, "Smoothing
+//! noisy data with spline functions", Numer. Math. 47 (1985) 99–106: from M = L D Lᵀ,
+//! Σ = D⁻¹ L⁻¹ + (I − Lᵀ) Σ, evaluated from the last row upwards, touches only entries inside the
+//! band, so it costs O(n b²) like the factorization itself.
+
+use crate::error::{try_filled, Result};
+
+/// Symmetric band matrix of order `n` and half-bandwidth `b`, lower band stored row by row:
+/// `a[i * (b + 1) + d]` holds M[i][i − d].
+#[derive(Debug, Clone, PartialEq)]
+pub struct SymBand {
+    /// Order.
+    pub n: usize,
+    /// Half-bandwidth.
+    pub b: usize,
+    /// Lower band, row-major.
+    pub a: Vec<f64>,
+}
+
+impl SymBand {
+    /// A zero matrix.
+    pub fn zeros(n: usize, b: usize) -> Result<Self> {
+        Ok(SymBand {
+            n,
+            b,
+            a: try_filled(n * (b + 1), 0.0)?,
+        })
+    }
+
+    /// M[i][j] for |i − j| ≤ b (callers stay inside the band).
+    #[inline]
+    pub fn get(&self, i: usize, j: usize) -> f64 {
+        let (r, c) = if i >= j { (i, j) } else { (j, i) };
+        self.a[r * (self.b + 1) + (r - c)]
+    }
+
+    /// M[i][j] += v for i ≥ j, i − j ≤ b.
+    #[inline]
+    pub fn add_lower(&mut self, i: usize, j: usize, v: f64) {
+        self.a[i * (self.b + 1) + (i - j)] += v;
+    }
+
+    /// Factor in place as L D Lᵀ (L unit lower, stored below the diagonal; D on the diagonal).
+    /// Returns false if a pivot is not positive (the matrix is not numerically positive definite).
+    pub fn ldlt_in_place(&mut self) -> bool {
+        let (n, b) = (self.n, self.b);
+        let w = b + 1;
+        for i in 0..n {
+            let lo = i.saturating_sub(b);
+            for j in lo..i {
+                // L[i][j] = (M[i][j] − Σ_{k<j} L[i][k] D[k] L[j][k]) / D[j]
+                let mut s = self.a[i * w + (i - j)];
+                for k in lo.max(j.saturating_sub(b))..j {
+                    s -= self.a[i * w + (i - k)] * self.a[k * w] * self.a[j * w + (j - k)];
+                }
+                self.a[i * w + (i - j)] = s / self.a[j * w];
+            }
+            let mut d = self.a[i * w];
+            for k in lo..i {
+                let l = self.a[i * w + (i - k)];
+                d -= l * l * self.a[k * w];
+            }
+            if d.is_nan() || d <= 0.0 {
+                return false;
+            }
+            self.a[i * w] = d;
+        }
+        true
+    }
+
+    /// Solve M x = y in place for `nrhs` right-hand sides stored row-major (`y[i * nrhs + r]`),
+    /// given the factor from [`SymBand::ldlt_in_place`].
+    pub fn ldlt_solve(&self, y: &mut [f64], nrhs: usize) {
+        let (n, b) = (self.n, self.b);
+        let w = b + 1;
+        for i in 0..n {
+            for k in i.saturating_sub(b)..i {
+                let l = self.a[i * w + (i - k)];
+                for r in 0..nrhs {
+                    y[i * nrhs + r] -= l * y[k * nrhs + r];
+                }
+            }
+        }
+        for i in 0..n {
+            let d = self.a[i * w];
+            for r in 0..nrhs {
+                y[i * nrhs + r] /= d;
+            }
+        }
+        for i in (0..n).rev() {
+            for k in i + 1..(i + w).min(n) {
+                let l = self.a[k * w + (k - i)];
+                for r in 0..nrhs {
+                    y[i * nrhs + r] -= l * y[k * nrhs + r];
+                }
+            }
+        }
+    }
+
+    /// The band of M⁻¹ (same layout), from the factor (Hutchinson & de Hoog 1985).
+    pub fn inverse_band(&self) -> Result<SymBand> {
+        let (n, b) = (self.n, self.b);
+        let w = b + 1;
+        let mut s = SymBand::zeros(n, b)?;
+        let sig = |s: &SymBand, p: usize, q: usize| s.get(p, q);
+        for i in (0..n).rev() {
+            let hi = (i + b).min(n - 1);
+            // Off-diagonal entries Σ[j][i], j > i, first; then the diagonal.
+            for j in (i + 1..=hi).rev() {
+                let mut v = 0.0;
+                for k in i + 1..=hi {
+                    v -= self.a[k * w + (k - i)] * sig(&s, k, j);
+                }
+                s.a[j * w + (j - i)] = v;
+            }
+            let mut v = 1.0 / self.a[i * w];
+            for k in i + 1..=hi {
+                v -= self.a[k * w + (k - i)] * sig(&s, k, i);
+            }
+            s.a[i * w] = v;
+        }
+        Ok(s)
+    }
+}
+
+/// Solve a tridiagonal system in place by elimination without pivoting (as de Boor's CUBSPL does
+/// for spline end conditions): `sub[i]` = M[i][i−1] (sub[0] unused), `diag[i]`, `sup[i]` = M[i][i+1]
+/// (last unused); `y` holds `nrhs` right-hand sides row-major and receives the solution.
+/// `diag` is overwritten.
+pub fn tridiagonal_solve(sub: &[f64], diag: &mut [f64], sup: &[f64], y: &mut [f64], nrhs: usize) {
+    let n = diag.len();
+    for i in 1..n {
+        let m = sub[i] / diag[i - 1];
+        diag[i] -= m * sup[i - 1];
+        for r in 0..nrhs {
+            y[i * nrhs + r] -= m * y[(i - 1) * nrhs + r];
+        }
+    }
+    for r in 0..nrhs {
+        y[(n - 1) * nrhs + r] /= diag[n - 1];
+    }
+    for i in (0..n - 1).rev() {
+        for r in 0..nrhs {
+            y[i * nrhs + r] = (y[i * nrhs + r] - sup[i] * y[(i + 1) * nrhs + r]) / diag[i];
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use approx::assert_relative_eq;
+
+    fn dense_inverse(m: &[Vec<f64>]) -> Vec<Vec<f64>> {
+        // Gauss–Jordan, for the test only.
+        let n = m.len();
+        let mut a: Vec<Vec<f64>> = m
+            .iter()
+            .enumerate()
+            .map(|(i, r)| {
+                let mut row = r.clone();
+                row.extend((0..n).map(|j| if i == j { 1.0 } else { 0.0 }));
+                row
+            })
+            .collect();
+        for c in 0..n {
+            let p = (c..n)
+                .max_by(|&i, &j| a[i][c].abs().total_cmp(&a[j][c].abs()))
+                .unwrap();
+            a.swap(c, p);
+            let piv = a[c][c];
+            for v in a[c].iter_mut() {
+                *v /= piv;
+            }
+            for r in 0..n {
+                if r != c {
+                    let f = a[r][c];
+                    let row_c = a[c].clone();
+                    for (v, rc) in a[r].iter_mut().zip(row_c) {
+                        *v -= f * rc;
+                    }
+                }
+            }
+        }
+        a.into_iter().map(|r| r[n..].to_vec()).collect()
+    }
+
+    fn example(n: usize, b: usize) -> (SymBand, Vec<Vec<f64>>) {
+        let mut m = SymBand::zeros(n, b).unwrap();
+        let mut dense = vec![vec![0.0; n]; n];
+        for i in 0..n {
+            for d in 0..=b.min(i) {
+                let v = if d == 0 {
+                    4.0 + (i as f64).sin()
+                } else {
+                    0.5 / (d as f64 + (i as f64 * 0.3).cos().abs())
+                };
+                m.add_lower(i, i - d, v);
+                dense[i][i - d] = v;
+                dense[i - d][i] = v;
+            }
+        }
+        (m, dense)
+    }
+
+    #[test]
+    fn solve_and_inverse_band_match_dense() {
+        let (n, b) = (12, 3);
+        let (mut m, dense) = example(n, b);
+        assert!(m.ldlt_in_place());
+        let inv = dense_inverse(&dense);
+        let sig = m.inverse_band().unwrap();
+        for i in 0..n {
+            for j in i.saturating_sub(b)..=i {
+                assert_relative_eq!(
+                    sig.get(i, j),
+                    inv[i][j],
+                    max_relative = 1e-12,
+                    epsilon = 1e-14
+                );
+            }
+        }
+        let mut y: Vec<f64> = (0..2 * n).map(|k| (k as f64).cos()).collect();
+        let y0 = y.clone();
+        m.ldlt_solve(&mut y, 2);
+        for i in 0..n {
+            for r in 0..2 {
+                let x: f64 = (0..n).map(|k| inv[i][k] * y0[k * 2 + r]).sum();
+                assert_relative_eq!(y[i * 2 + r], x, max_relative = 1e-12, epsilon = 1e-14);
+            }
+        }
+    }
+
+    #[test]
+    fn indefinite_matrix_is_reported() {
+        let mut m = SymBand::zeros(2, 1).unwrap();
+        m.add_lower(0, 0, 1.0);
+        m.add_lower(1, 0, 2.0);
+        m.add_lower(1, 1, 1.0);
+        assert!(!m.ldlt_in_place());
+    }
+
+    #[test]
+    fn tridiagonal_matches_direct() {
+        let sub = [0.0, 1.0, 1.0];
+        let mut diag = [4.0, 4.0, 4.0];
+        let sup = [1.0, 1.0, 0.0];
+        let mut y = [5.0, 6.0, 5.0];
+        tridiagonal_solve(&sub, &mut diag, &sup, &mut y, 1);
+        for v in y {
+            assert_relative_eq!(v, 1.0, max_relative = 1e-15);
+        }
+    }
+}
+
+/// Least squares with banded rows by Givens rotations (the approach of P. Dierckx, *Curve and
+/// Surface Fitting with Splines*, Oxford 1993, ch. 4): rows with `b + 1` consecutive non-zeros,
+/// added in order of their first column, are rotated into an upper-triangular band R, so that
+/// RᵀR equals the normal matrix without ever forming it. The error grows with the square root of
+/// the normal matrix's condition number instead of the condition number itself.
+#[derive(Debug, Clone)]
+pub struct BandQr {
+    nb: usize,
+    b: usize,
+    nrhs: usize,
+    /// `r[j * (b + 1) + c]` = R[j][j + c].
+    r: Vec<f64>,
+    /// Rotated right-hand sides, `nb × nrhs`.
+    z: Vec<f64>,
+}
+
+impl BandQr {
+    /// An empty system with `nb` unknowns, half-bandwidth `b`, `nrhs` right-hand sides.
+    pub fn new(nb: usize, b: usize, nrhs: usize) -> Result<Self> {
+        Ok(BandQr {
+            nb,
+            b,
+            nrhs,
+            r: try_filled(nb * (b + 1), 0.0)?,
+            z: try_filled(nb * nrhs, 0.0)?,
+        })
+    }
+
+    /// Rotate in the row whose non-zeros `vals` (b + 1 of them) start at column `first`, with
+    /// right-hand sides `rhs` (`nrhs` values). Both are consumed as scratch.
+    pub fn add_row(&mut self, first: usize, vals: &mut [f64], rhs: &mut [f64]) {
+        let (b, w, nrhs) = (self.b, self.b + 1, self.nrhs);
+        for p in first..(first + w).min(self.nb) {
+            let x = vals[0];
+            if x != 0.0 {
+                let piv = self.r[p * w];
+                let rr = piv.hypot(x);
+                let (c, s) = (piv / rr, x / rr);
+                self.r[p * w] = rr;
+                for q in 1..w {
+                    let a = self.r[p * w + q];
+                    self.r[p * w + q] = c * a + s * vals[q];
+                    vals[q] = c * vals[q] - s * a;
+                }
+                for (k, h) in rhs.iter_mut().enumerate().take(nrhs) {
+                    let a = self.z[p * nrhs + k];
+                    self.z[p * nrhs + k] = c * a + s * *h;
+                    *h = c * *h - s * a;
+                }
+            }
+            vals.copy_within(1.., 0);
+            vals[b] = 0.0;
+        }
+    }
+
+    /// Solve R x = z by back substitution; `None` if a diagonal entry of R vanishes.
+    pub fn solve(&self) -> Option<Vec<f64>> {
+        let (nb, w, nrhs) = (self.nb, self.b + 1, self.nrhs);
+        let mut x = self.z.clone();
+        for j in (0..nb).rev() {
+            let d = self.r[j * w];
+            if d == 0.0 || !d.is_finite() {
+                return None;
+            }
+            for k in 0..nrhs {
+                let mut v = x[j * nrhs + k];
+                for c in 1..w.min(nb - j) {
+                    v -= self.r[j * w + c] * x[(j + c) * nrhs + k];
+                }
+                x[j * nrhs + k] = v / d;
+            }
+        }
+        Some(x)
+    }
+
+    /// The same normal matrix RᵀR as an L D Lᵀ factor (for [`SymBand::inverse_band`]).
+    pub fn to_ldlt(&self) -> Result<SymBand> {
+        let (nb, b, w) = (self.nb, self.b, self.b + 1);
+        let mut f = SymBand::zeros(nb, b)?;
+        for j in 0..nb {
+            let d = self.r[j * w];
+            f.a[j * w] = d * d;
+            for c in 1..w.min(nb - j) {
+                // L[j + c][j] = R[j][j + c] / R[j][j]
+                f.a[(j + c) * w + c] = self.r[j * w + c] / d;
+            }
+        }
+        Ok(f)
+    }
+}
+
+#[cfg(test)]
+mod qr_tests {
+    use super::*;
+    use approx::assert_relative_eq;
+
+    #[test]
+    fn qr_matches_normal_equations() {
+        // Fit rows with 3 consecutive non-zeros; compare with LDLᵀ of the normal equations.
+        let (nb, b) = (6, 2);
+        let mut qr = BandQr::new(nb, b, 1).unwrap();
+        let mut normal = SymBand::zeros(nb, b).unwrap();
+        let mut rhs = vec![0.0; nb];
+        for first in 0..nb - b {
+            for rep in 0..3 {
+                let vals: Vec<f64> = (0..=b)
+                    .map(|c| 1.0 + ((first * 3 + rep + c * 5) % 7) as f64)
+                    .collect();
+                let y = (first + rep) as f64 * 0.7 - 1.0;
+                for r in 0..=b {
+                    for s in 0..=r {
+                        normal.add_lower(first + r, first + s, vals[r] * vals[s]);
+                    }
+                    rhs[first + r] += vals[r] * y;
+                }
+                qr.add_row(first, &mut vals.clone(), &mut [y]);
+            }
+        }
+        let x = qr.solve().unwrap();
+        let inv_qr = qr.to_ldlt().unwrap().inverse_band().unwrap();
+        assert!(normal.ldlt_in_place());
+        normal.ldlt_solve(&mut rhs, 1);
+        let inv = normal.inverse_band().unwrap();
+        for j in 0..nb {
+            assert_relative_eq!(x[j], rhs[j], max_relative = 1e-10, epsilon = 1e-12);
+            for i in j..(j + b + 1).min(nb) {
+                assert_relative_eq!(
+                    inv_qr.get(i, j),
+                    inv.get(i, j),
+                    max_relative = 1e-10,
+                    epsilon = 1e-12
+                );
+            }
+        }
+    }
+}

@@ -1,0 +1,255 @@
+//! Bindings of fitted paths: spline, smoothing spline and local-polynomial estimators.
+
+use super::error::{contiguous, detached};
+use super::kinematics::to_dict;
+use crate::fit::{fit_batch, Fits, Method};
+use crate::frame::Thresholds;
+use crate::kinematics::{of_fits, of_fits_at, Options};
+use crate::local::Window;
+use crate::smooth::Smoothing;
+use crate::spline::EndCondition;
+use crate::KernelError;
+use numpy::ndarray::Array2;
+use numpy::{
+    IntoPyArray, PyArray1, PyArray2, PyReadonlyArray1, PyReadonlyArray2, PyUntypedArrayMethods,
+};
+use pyo3::prelude::*;
+use pyo3::types::PyDict;
+
+/// Fitted tracks, evaluable anywhere. Built by `fit_paths`.
+#[pyclass(module = "osculate._core", frozen)]
+pub struct FittedPaths {
+    fits: Fits,
+}
+
+fn bad(argument: &'static str, detail: String) -> KernelError {
+    KernelError::Option { argument, detail }
+}
+
+#[allow(clippy::too_many_arguments)]
+fn method(
+    name: &str,
+    bc: &str,
+    bc_start: Option<Vec<f64>>,
+    bc_end: Option<Vec<f64>>,
+    degree: usize,
+    smoothing: Option<f64>,
+    noise: Option<f64>,
+    window: Option<usize>,
+    window_span: Option<f64>,
+    derivative: usize,
+) -> crate::Result<Method> {
+    Ok(match name {
+        "spline" => Method::Spline(match bc {
+            "not-a-knot" => EndCondition::NotAKnot,
+            "natural" => EndCondition::Natural,
+            "clamped" => match (bc_start, bc_end) {
+                (Some(start), Some(end)) => EndCondition::Clamped { start, end },
+                _ => {
+                    return Err(bad(
+                        "bc",
+                        "\"clamped\" needs the start and end velocities".into(),
+                    ))
+                }
+            },
+            other => {
+                return Err(bad(
+                    "bc",
+                    format!("expected \"not-a-knot\", \"natural\" or \"clamped\", got {other:?}"),
+                ))
+            }
+        }),
+        "smooth" => {
+            if derivative > 3 {
+                return Err(bad(
+                    "derivative",
+                    format!("must be 0, 1, 2 or 3, got {derivative}"),
+                ));
+            }
+            let smoothing = match (smoothing, noise) {
+                (Some(_), Some(_)) => {
+                    return Err(bad("smoothing", "give smoothing or noise, not both".into()))
+                }
+                (Some(l), None) if l.is_nan() || l < 0.0 || l.is_infinite() => {
+                    return Err(bad(
+                        "smoothing",
+                        format!("must be finite and >= 0, got {l}"),
+                    ))
+                }
+                (Some(l), None) => Smoothing::Fixed(l),
+                (None, Some(s)) if s.is_nan() || s <= 0.0 || s.is_infinite() => {
+                    return Err(bad("noise", format!("must be finite and > 0, got {s}")))
+                }
+                (None, Some(s)) => Smoothing::Noise(s),
+                (None, None) => Smoothing::Gcv,
+            };
+            Method::Smooth {
+                degree,
+                smoothing,
+                derivative,
+            }
+        }
+        "local" => Method::Local {
+            degree,
+            window: match (window, window_span) {
+                (Some(_), Some(_)) => {
+                    return Err(bad(
+                        "window",
+                        "give a sample count or a time span, not both".into(),
+                    ))
+                }
+                (Some(w), None) => Window::Samples(w),
+                (None, Some(s)) => Window::Span(s),
+                (None, None) => Window::Auto,
+            },
+        },
+        other => return Err(bad("method", format!("unknown method {other:?}"))),
+    })
+}
+
+fn options(min_speed: f64, min_curvature: f64, gap_factor: f64, up: Option<[f64; 3]>) -> Options {
+    Options {
+        thresholds: Thresholds {
+            min_speed,
+            min_curvature,
+        },
+        gap_factor,
+        up,
+        ..Options::default()
+    }
+}
+
+/// Fit every track of a batch (arrays validated by the Python layer).
+#[pyfunction]
+#[pyo3(signature = (t, positions, offsets, *, method, bc="not-a-knot", bc_start=None, bc_end=None,
+    degree=5, smoothing=None, noise=None, window=None, window_span=None, weights=None,
+    derivative=2))]
+#[allow(clippy::too_many_arguments)]
+pub fn fit_paths<'py>(
+    py: Python<'py>,
+    t: PyReadonlyArray1<'py, f64>,
+    positions: PyReadonlyArray2<'py, f64>,
+    offsets: PyReadonlyArray1<'py, i64>,
+    method: &str,
+    bc: &str,
+    bc_start: Option<Vec<f64>>,
+    bc_end: Option<Vec<f64>>,
+    degree: usize,
+    smoothing: Option<f64>,
+    noise: Option<f64>,
+    window: Option<usize>,
+    window_span: Option<f64>,
+    weights: Option<PyReadonlyArray1<'py, f64>>,
+    derivative: usize,
+) -> PyResult<FittedPaths> {
+    let dim = positions.shape()[1];
+    let t = contiguous("t", t.as_slice())?;
+    let x = contiguous("positions", positions.as_slice())?;
+    let off = contiguous("offsets", offsets.as_slice())?;
+    let w = match &weights {
+        Some(w) => Some(contiguous("weights", w.as_slice())?),
+        None => None,
+    };
+    let name = method.to_owned();
+    let bc = bc.to_owned();
+    let fits = detached(py, move || {
+        let m = self::method(
+            &name,
+            &bc,
+            bc_start,
+            bc_end,
+            degree,
+            smoothing,
+            noise,
+            window,
+            window_span,
+            derivative,
+        )?;
+        fit_batch(t, x, dim, off, w, &m)
+    })?;
+    Ok(FittedPaths { fits })
+}
+
+#[pymethods]
+impl FittedPaths {
+    /// Number of tracks.
+    fn __len__(&self) -> usize {
+        self.fits.tracks.len()
+    }
+
+    /// Coordinates (2 or 3).
+    #[getter]
+    fn dim(&self) -> usize {
+        self.fits.dim
+    }
+
+    /// Kinematics at the fitted samples, on the rows of the fit.
+    #[pyo3(signature = (*, min_speed, min_curvature, gap_factor, up=None))]
+    fn kinematics<'py>(
+        &self,
+        py: Python<'py>,
+        min_speed: f64,
+        min_curvature: f64,
+        gap_factor: f64,
+        up: Option<[f64; 3]>,
+    ) -> PyResult<Bound<'py, PyDict>> {
+        let opts = options(min_speed, min_curvature, gap_factor, up);
+        let k = detached(py, || of_fits(&self.fits, &opts))?;
+        to_dict(py, k)
+    }
+
+    /// Kinematics at times `t` grouped by track with `query_offsets`.
+    #[pyo3(signature = (t, query_offsets, *, min_speed, min_curvature, up=None))]
+    fn kinematics_at<'py>(
+        &self,
+        py: Python<'py>,
+        t: PyReadonlyArray1<'py, f64>,
+        query_offsets: PyReadonlyArray1<'py, i64>,
+        min_speed: f64,
+        min_curvature: f64,
+        up: Option<[f64; 3]>,
+    ) -> PyResult<Bound<'py, PyDict>> {
+        let t = contiguous("t", t.as_slice())?;
+        let q = contiguous("query_offsets", query_offsets.as_slice())?;
+        let opts = options(min_speed, min_curvature, f64::INFINITY, up);
+        let k = detached(py, || of_fits_at(&self.fits, t, q, &opts))?;
+        to_dict(py, k)
+    }
+
+    /// Derivative `nu` (0 to 3) of every track at times `t` grouped with `query_offsets`.
+    fn evaluate<'py>(
+        &self,
+        py: Python<'py>,
+        t: PyReadonlyArray1<'py, f64>,
+        query_offsets: PyReadonlyArray1<'py, i64>,
+        nu: usize,
+    ) -> PyResult<Bound<'py, PyArray2<f64>>> {
+        let t = contiguous("t", t.as_slice())?;
+        let q = contiguous("query_offsets", query_offsets.as_slice())?;
+        let d = self.fits.dim;
+        let v = detached(py, || {
+            if nu > 3 {
+                return Err(bad("nu", format!("must be 0, 1, 2 or 3, got {nu}")));
+            }
+            crate::fit::evaluate(&self.fits, t, q, nu)
+        })?;
+        let a = Array2::from_shape_vec((t.len(), d), v)
+            .map_err(|e| pyo3::exceptions::PyRuntimeError::new_err(e.to_string()))?;
+        Ok(a.into_pyarray(py))
+    }
+
+    /// Per-track choices: dimensionless smoothing λ*, effective degrees of freedom, criterion,
+    /// window.
+    fn info<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyDict>> {
+        let infos: Vec<_> = self.fits.tracks.iter().map(|f| f.info()).collect();
+        let out = PyDict::new(py);
+        let col = |f: fn(&crate::fit::FitInfo) -> f64| -> Bound<'py, PyArray1<f64>> {
+            infos.iter().map(f).collect::<Vec<f64>>().into_pyarray(py)
+        };
+        out.set_item("smoothing", col(|i| i.smoothing))?;
+        out.set_item("edf", col(|i| i.edf))?;
+        out.set_item("criterion", col(|i| i.criterion))?;
+        out.set_item("window", col(|i| i.window))?;
+        Ok(out)
+    }
+}

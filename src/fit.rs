@@ -1,0 +1,409 @@
+//! Fitted paths: one estimator per track (interpolating spline, smoothing spline, local
+//! polynomials), fitted once and evaluated anywhere, batched over tracks in parallel.
+//!
+//! Rows with a non-finite position are left out of the fit (their track is fitted on the finite
+//! rows); a track with too few finite rows has no fit and all its rows are INVALID.
+
+use crate::batch::{check_offsets, check_times, track_rows};
+use crate::error::{KernelError, Result};
+use crate::local::{local, LocalFit, Window};
+use crate::piecewise::PiecewisePoly;
+use crate::smooth::{self, smooth, Smoothing};
+use crate::spline::{interpolate, EndCondition};
+use rayon::prelude::*;
+
+/// Gauss–Legendre points per interval for arc length on splines.
+pub const LENGTH_NODES: usize = 5;
+
+/// A derivative estimator that fits the whole track.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Method {
+    /// Interpolating cubic spline.
+    Spline(EndCondition),
+    /// Penalized smoothing spline of degree 3 or 5.
+    Smooth {
+        /// 3 or 5.
+        degree: usize,
+        /// How λ is chosen.
+        smoothing: Smoothing,
+        /// Derivative order the automatic choice is tuned for (0 = positions).
+        derivative: usize,
+    },
+    /// Local polynomial least squares.
+    Local {
+        /// Polynomial degree.
+        degree: usize,
+        /// Window.
+        window: Window,
+    },
+}
+
+impl Method {
+    /// Fewest samples per track.
+    pub fn min_samples(&self) -> usize {
+        match self {
+            Method::Spline(_) => 2,
+            Method::Smooth { degree, .. } => smooth::min_samples(*degree),
+            Method::Local { degree, .. } => degree + 1,
+        }
+    }
+
+    /// Public name.
+    pub fn name(&self) -> &'static str {
+        match self {
+            Method::Spline(_) => "spline",
+            Method::Smooth { .. } => "smooth",
+            Method::Local { .. } => "local",
+        }
+    }
+}
+
+/// What was chosen for a track (NaN where it does not apply).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct FitInfo {
+    /// Dimensionless λ* of a smoothing spline.
+    pub smoothing: f64,
+    /// Effective degrees of freedom of a smoothing spline.
+    pub edf: f64,
+    /// Selection criterion at the choice (GCV score or unbiased risk).
+    pub criterion: f64,
+    /// Window of local fits: samples, or a time span.
+    pub window: f64,
+}
+
+/// The fit of one track.
+#[derive(Debug, Clone, PartialEq)]
+pub enum TrackFit {
+    /// Too few finite rows: nothing fitted.
+    Invalid,
+    /// A piecewise polynomial (splines); `edge` samples from each end are flagged EDGE.
+    Poly {
+        /// The path.
+        poly: PiecewisePoly,
+        /// Choices made.
+        info: FitInfo,
+        /// Samples at each end influenced by the end conditions.
+        edge: usize,
+    },
+    /// Local polynomial fits.
+    Local(LocalFit),
+}
+
+impl TrackFit {
+    /// The fitted sample times.
+    pub fn times(&self) -> &[f64] {
+        match self {
+            TrackFit::Invalid => &[],
+            TrackFit::Poly { poly, .. } => &poly.x,
+            TrackFit::Local(f) => &f.t,
+        }
+    }
+
+    /// Derivatives 0..=3 (`out[nu * dim + d]`) at fitted sample `j`.
+    pub fn at_sample(&self, j: usize, out: &mut [f64]) {
+        match self {
+            TrackFit::Invalid => out.iter_mut().for_each(|v| *v = f64::NAN),
+            TrackFit::Poly { poly, .. } => {
+                let i = j.min(poly.intervals() - 1);
+                poly.eval_on(i, poly.x[j], 3, out);
+            }
+            TrackFit::Local(f) => {
+                let w = 4 * f.dim;
+                out.copy_from_slice(&f.deriv[j * w..(j + 1) * w]);
+            }
+        }
+    }
+
+    /// Derivatives 0..=3 at any time (splines extrapolate with their end pieces).
+    pub fn at_time(&self, t: f64, out: &mut [f64]) {
+        match self {
+            TrackFit::Invalid => out.iter_mut().for_each(|v| *v = f64::NAN),
+            TrackFit::Poly { poly, .. } => poly.eval(t, 3, out),
+            TrackFit::Local(f) => f.eval(t, out),
+        }
+    }
+
+    /// Whether fitted sample `j` is an end estimate.
+    pub fn is_edge(&self, j: usize) -> bool {
+        match self {
+            TrackFit::Invalid => false,
+            TrackFit::Poly { poly, edge, .. } => j < *edge || j + *edge >= poly.x.len(),
+            TrackFit::Local(f) => f.edge[j],
+        }
+    }
+
+    /// Path length between fitted samples j − 1 and j.
+    pub fn segment(&self, j: usize) -> f64 {
+        match self {
+            TrackFit::Invalid => f64::NAN,
+            TrackFit::Poly { poly, .. } => {
+                poly.length_on(j - 1, poly.x[j - 1], poly.x[j], LENGTH_NODES)
+            }
+            TrackFit::Local(f) => {
+                // Trapezoid of the speed with the Euler–Maclaurin end correction
+                // h (v₀ + v₁)/2 − h² (v̇₁ − v̇₀)/12, v̇ = a_t = r′·r″/v.
+                let d = f.dim;
+                let w = 4 * d;
+                let sv = |k: usize| {
+                    let r = &f.deriv[k * w..(k + 1) * w];
+                    let v = r[d..2 * d].iter().map(|a| a * a).sum::<f64>().sqrt();
+                    let at = if v > 0.0 {
+                        r[d..2 * d]
+                            .iter()
+                            .zip(&r[2 * d..3 * d])
+                            .map(|(a, b)| a * b)
+                            .sum::<f64>()
+                            / v
+                    } else {
+                        0.0
+                    };
+                    (v, at)
+                };
+                let ((v0, a0), (v1, a1)) = (sv(j - 1), sv(j));
+                let h = f.t[j] - f.t[j - 1];
+                h * 0.5 * (v0 + v1) - h * h * (a1 - a0) / 12.0
+            }
+        }
+    }
+
+    /// Cumulative length at the fitted samples (empty for an invalid track).
+    pub fn cumulative_length(&self) -> Vec<f64> {
+        let n = self.times().len();
+        let mut cum = Vec::with_capacity(n);
+        let mut acc = 0.0;
+        for j in 0..n {
+            if j > 0 {
+                acc += self.segment(j);
+            }
+            cum.push(acc);
+        }
+        cum
+    }
+
+    /// Arc length from the first fitted sample to time `t`, given [`TrackFit::cumulative_length`];
+    /// negative before the first sample.
+    pub fn length_to(&self, cum: &[f64], t: f64) -> f64 {
+        let ts = self.times();
+        if ts.is_empty() {
+            return f64::NAN;
+        }
+        let j = ts
+            .partition_point(|&v| v <= t)
+            .saturating_sub(1)
+            .min(ts.len() - 1);
+        let base = cum[j];
+        match self {
+            TrackFit::Invalid => f64::NAN,
+            TrackFit::Poly { poly, .. } => {
+                let i = j.min(poly.intervals() - 1);
+                // Partial length from break j (the end break when t is past the last one).
+                base + poly.length_on(i, poly.x[j], t, LENGTH_NODES)
+            }
+            TrackFit::Local(f) => {
+                let (xs, ws) = crate::piecewise::gauss_legendre(3);
+                let (a, b) = (ts[j], t);
+                let (mid, half) = (0.5 * (a + b), 0.5 * (b - a));
+                let mut buf = [0.0; 12];
+                let d = f.dim;
+                let mut s = 0.0;
+                for (&xq, &wq) in xs.iter().zip(ws) {
+                    f.eval(mid + half * xq, &mut buf[..4 * d]);
+                    s += wq * buf[d..2 * d].iter().map(|v| v * v).sum::<f64>().sqrt();
+                }
+                base + half * s
+            }
+        }
+    }
+
+    /// Choices made for the track.
+    pub fn info(&self) -> FitInfo {
+        let nan = f64::NAN;
+        match self {
+            TrackFit::Invalid => FitInfo {
+                smoothing: nan,
+                edf: nan,
+                criterion: nan,
+                window: nan,
+            },
+            TrackFit::Poly { info, .. } => *info,
+            TrackFit::Local(f) => FitInfo {
+                smoothing: nan,
+                edf: nan,
+                criterion: f.criterion,
+                window: match f.window {
+                    Window::Samples(w) => w as f64,
+                    Window::Span(s) => s,
+                    Window::Auto => nan,
+                },
+            },
+        }
+    }
+}
+
+/// Fit one track whose rows are all finite.
+pub fn fit_track(
+    t: &[f64],
+    x: &[f64],
+    dim: usize,
+    w: Option<&[f64]>,
+    method: &Method,
+) -> Result<TrackFit> {
+    let nan = f64::NAN;
+    Ok(match method {
+        Method::Spline(bc) => TrackFit::Poly {
+            poly: interpolate(t, x, dim, bc)?,
+            info: FitInfo {
+                smoothing: nan,
+                edf: nan,
+                criterion: nan,
+                window: nan,
+            },
+            edge: 2,
+        },
+        Method::Smooth {
+            degree,
+            smoothing,
+            derivative,
+        } => {
+            let f = smooth(t, x, dim, w, *degree, *smoothing, *derivative)?;
+            // The natural end conditions bias derivatives over about one smoothing bandwidth.
+            let m = degree.div_ceil(2);
+            let band = f.lambda.powf(0.5 / m as f64).ceil().max(1.0) as usize;
+            TrackFit::Poly {
+                poly: f.path,
+                info: FitInfo {
+                    smoothing: f.lambda,
+                    edf: f.edf,
+                    criterion: f.criterion,
+                    window: nan,
+                },
+                edge: band.min(t.len()),
+            }
+        }
+        Method::Local { degree, window } => TrackFit::Local(local(t, x, dim, *degree, *window)?),
+    })
+}
+
+/// Fits of a batch of tracks, and which rows of each track they cover.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Fits {
+    /// Coordinates.
+    pub dim: usize,
+    /// Row offsets of the tracks.
+    pub offsets: Vec<usize>,
+    /// One fit per track.
+    pub tracks: Vec<TrackFit>,
+    /// For tracks with non-finite rows, the local indices of the fitted rows.
+    pub rows: Vec<Option<Vec<usize>>>,
+}
+
+/// Check per-sample weights: finite and > 0, one per row.
+fn check_weights(w: &[f64], n: usize, offsets: &[usize]) -> Result<()> {
+    if w.len() != n {
+        return Err(KernelError::Shape {
+            argument: "weights",
+            detail: format!("has {} values but there are {n} rows", w.len()),
+        });
+    }
+    match w
+        .iter()
+        .position(|v| v.is_nan() || *v <= 0.0 || v.is_infinite())
+    {
+        None => Ok(()),
+        Some(row) => Err(KernelError::Row {
+            argument: "weights",
+            track: offsets.partition_point(|&o| o <= row) - 1,
+            row,
+            detail: format!("weights must be finite and > 0, got {}", w[row]),
+        }),
+    }
+}
+
+/// Fit every track of a batch in parallel.
+pub fn fit_batch(
+    t: &[f64],
+    x: &[f64],
+    dim: usize,
+    offsets: &[i64],
+    weights: Option<&[f64]>,
+    method: &Method,
+) -> Result<Fits> {
+    let n = t.len();
+    if x.len() != n * dim || !(dim == 2 || dim == 3) {
+        return Err(KernelError::Shape {
+            argument: "positions",
+            detail: format!(
+                "expected {n} rows of 2 or 3 values, got {} values of width {dim}",
+                x.len()
+            ),
+        });
+    }
+    let offsets = check_offsets(offsets, n)?;
+    check_times(t, &offsets, method.min_samples(), method.name())?;
+    if let Some(w) = weights {
+        check_weights(w, n, &offsets)?;
+    }
+    let m = offsets.len() - 1;
+    let results: Vec<Result<(TrackFit, Option<Vec<usize>>)>> = (0..m)
+        .into_par_iter()
+        .map(|k| {
+            let r = track_rows(&offsets, k);
+            let (tk, xk) = (&t[r.clone()], &x[r.start * dim..r.end * dim]);
+            let wk = weights.map(|w| &w[r.clone()]);
+            let finite = |i: usize| xk[i * dim..(i + 1) * dim].iter().all(|v| v.is_finite());
+            if (0..tk.len()).all(finite) {
+                return Ok((
+                    fit_track(tk, xk, dim, wk, method).map_err(|e| e.in_track(k))?,
+                    None,
+                ));
+            }
+            let keep: Vec<usize> = (0..tk.len()).filter(|&i| finite(i)).collect();
+            if keep.len() < method.min_samples() {
+                return Ok((TrackFit::Invalid, Some(keep)));
+            }
+            let tv: Vec<f64> = keep.iter().map(|&i| tk[i]).collect();
+            let xv: Vec<f64> = keep
+                .iter()
+                .flat_map(|&i| xk[i * dim..(i + 1) * dim].iter().copied())
+                .collect();
+            let wv: Option<Vec<f64>> = wk.map(|w| keep.iter().map(|&i| w[i]).collect());
+            let fit = fit_track(&tv, &xv, dim, wv.as_deref(), method).map_err(|e| e.in_track(k))?;
+            Ok((fit, Some(keep)))
+        })
+        .collect();
+    let mut tracks = Vec::with_capacity(m);
+    let mut rows = Vec::with_capacity(m);
+    for r in results {
+        let (f, k) = r?;
+        tracks.push(f);
+        rows.push(k);
+    }
+    Ok(Fits {
+        dim,
+        offsets,
+        tracks,
+        rows,
+    })
+}
+
+/// Derivative `nu` (0..=3) of every track at times `t` grouped by track with `query_offsets`
+/// (row-major, `dim` columns). NaN for non-finite times and invalid tracks.
+pub fn evaluate(fits: &Fits, t: &[f64], query_offsets: &[i64], nu: usize) -> Result<Vec<f64>> {
+    let q = crate::batch::check_query_offsets(query_offsets, t.len(), fits.tracks.len())?;
+    let d = fits.dim;
+    let mut out = crate::error::try_filled(t.len() * d, f64::NAN)?;
+    let m = q.len() - 1;
+    crate::batch::partition(&mut out[..], (0..m).map(|k| (q[k + 1] - q[k]) * d))
+        .into_par_iter()
+        .enumerate()
+        .for_each(|(k, o)| {
+            let mut buf = [0.0; 12];
+            for (j, &tq) in t[q[k]..q[k + 1]].iter().enumerate() {
+                if tq.is_finite() {
+                    fits.tracks[k].at_time(tq, &mut buf[..4 * d]);
+                    o[j * d..(j + 1) * d].copy_from_slice(&buf[nu * d..(nu + 1) * d]);
+                }
+            }
+        });
+    Ok(out)
+}
