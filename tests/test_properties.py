@@ -768,9 +768,10 @@ def test_results_do_not_depend_on_the_number_of_threads():
 
 def test_the_first_bad_track_is_reported_whatever_the_threads():
     # check_times documents "Reports the first offending track and row"; with several bad tracks
-    # the error must name the first one on every call and for any thread count. Tracks 31 (at its
-    # last row) and 32..63 (at row 1) are bad: a thread that starts on the second half finds one
-    # long before the first track's scan ends.
+    # the error must name the first one on every call and for any thread count (regression: it
+    # named whichever bad track a worker reached first). Tracks 31 (at its last row) and 32..63 (at
+    # row 1) are bad: a thread that starts on the second half finds one long before the first
+    # track's scan ends.
     script = textwrap.dedent(
         """
         import numpy as np, osculate as osc
