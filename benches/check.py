@@ -124,7 +124,7 @@ def compare(
     # 2. The formulas, on osculate's own derivatives.
     up = options.get("up")
     u = None if up is None else np.asarray(up, dtype=np.float64) / np.linalg.norm(up)
-    again = reference.frenet(
+    again = reference.frenet_rows(
         a_all["velocity"],
         a_all["acceleration"],
         a_all["jerk"],

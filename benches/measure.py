@@ -21,6 +21,7 @@ Jobs (``spec["job"]``):
 
 from __future__ import annotations
 
+import ctypes
 import gc
 import hashlib
 import json
@@ -92,6 +93,14 @@ def _peak_bytes() -> int:
         if sys.platform == "darwin":
             kib //= 1024
     return kib * 1024
+
+
+def _release_free_heap() -> None:
+    """Give freed heap memory back to the OS (glibc), so RSS growth counts new memory only."""
+    try:
+        ctypes.CDLL(None).malloc_trim(0)
+    except (OSError, AttributeError):
+        pass
 
 
 def _usage() -> tuple[float, float, int]:
@@ -179,6 +188,7 @@ def job_time(spec: Mapping[str, Any]) -> dict[str, Any]:
     inputs_bytes = t.nbytes + x.nbytes + (offsets.nbytes if len(offsets) > 2 else 0)
 
     gc.collect()
+    _release_free_heap()
     rss0 = _rss_bytes()
     peak_reset = _reset_peak()
     t0 = time.perf_counter()

@@ -122,7 +122,7 @@ def perf(n: int, env: dict[str, str], work: Path, top: int, extension: Path) -> 
     _run_driver(
         ["perf", "record", "-q", "-e", "cpu-clock", "-F", "2000", "-o", str(out)], n, repeats, env
     )
-    for key in ("dso", "sym"):
+    for key in ("dso", "pid", "pid,sym"):
         report = subprocess.run(
             ["perf", "report", "-i", str(out), "--no-children", "--sort", key, "--stdio"],
             capture_output=True,
@@ -130,7 +130,8 @@ def perf(n: int, env: dict[str, str], work: Path, top: int, extension: Path) -> 
             check=True,
         ).stdout
         rows = [ln for ln in report.splitlines() if "%" in ln and not ln.startswith("#")]
-        print(f"\nperf, CPU time by {key} ({repeats} calls on {n} samples, set-up included):")
+        what = {"pid": "thread", "pid,sym": "thread and function"}.get(key, "shared object")
+        print(f"\nperf, CPU time by {what} ({repeats} calls on {n} samples, set-up included):")
         print("\n".join(rows[:top]))
     print(f"\nraw profile: {out} (extension: {extension})")
 

@@ -68,7 +68,8 @@ MIN_SAMPLES = 5
 
 
 # --------------------------------------------------------------------------------------------
-# Stencils on a block of tracks: arrays of shape (B, L[, 3]), track b holds lengths[b] samples.
+# A block of tracks: times (B, L), positions component-major (3, B, L) so that every array
+# operation runs along contiguous memory; track b holds its samples in [0, lengths[b]).
 # --------------------------------------------------------------------------------------------
 
 
@@ -88,62 +89,58 @@ def _stencil_node(a: np.ndarray, lengths: np.ndarray, width: int, j: int) -> np.
 
 
 def _apply_stencil(weights: Sequence[F64], x: F64, lengths: np.ndarray, width: int) -> F64:
-    """Σ_j weights[j] · x[node j], summed in node order like the kernel."""
-    length = x.shape[1]
+    """Σ_j weights[j] · x[:, node j] for x of shape (3, B, L), summed in node order."""
+    length = x.shape[2]
     half = width // 2
     right = width - 1 - half
     out = np.empty_like(x)
     mid = slice(half, length - right)
-    acc = weights[0][:, mid, None] * x[:, 0 : length - width + 1]
+    acc = weights[0][:, mid] * x[:, :, 0 : length - width + 1]
     for j in range(1, width):
-        acc += weights[j][:, mid, None] * x[:, j : length - width + 1 + j]
-    out[:, mid] = acc
+        acc += weights[j][:, mid] * x[:, :, j : length - width + 1 + j]
+    out[:, :, mid] = acc
     for i in range(half):
-        acc = weights[0][:, i, None] * x[:, 0]
+        acc = weights[0][:, i] * x[:, :, 0]
         for j in range(1, width):
-            acc += weights[j][:, i, None] * x[:, j]
-        out[:, i] = acc
+            acc += weights[j][:, i] * x[:, :, j]
+        out[:, :, i] = acc
     for i in range(length - right, length):  # only padding rows of shorter tracks end up here
-        acc = weights[0][:, i, None] * x[:, length - width]
+        acc = weights[0][:, i] * x[:, :, length - width]
         for j in range(1, width):
-            acc += weights[j][:, i, None] * x[:, length - width + j]
-        out[:, i] = acc
-    rows = np.arange(x.shape[0])
+            acc += weights[j][:, i] * x[:, :, length - width + j]
+        out[:, :, i] = acc
+    rows = np.arange(x.shape[1])
     for e in range(right):
         i = lengths - 1 - e
-        acc = weights[0][rows, i, None] * x[rows, lengths - width]
+        acc = weights[0][rows, i] * x[:, rows, lengths - width]
         for j in range(1, width):
-            acc += weights[j][rows, i, None] * x[rows, lengths - width + j]
-        out[rows, i] = acc
+            acc += weights[j][rows, i] * x[:, rows, lengths - width + j]
+        out[:, rows, i] = acc
     return out
 
 
-def _weights(h: Sequence[F64], derivative: int) -> list[F64]:
-    """Lagrange-basis derivative weights (1st and 2nd on 3 nodes, 3rd on 5) at offset 0."""
-    w = len(h)
-    out = []
-    for j in range(w):
-        others = [h[k] for k in range(w) if k != j]
+def _lagrange(h: Sequence[F64]) -> tuple[list[F64], list[F64]]:
+    """1 / Π_{k≠j} (h_j − h_k) and Σ_{k≠j} h_k for every node j."""
+    inv, sums = [], []
+    for j in range(len(h)):
+        others = [h[k] for k in range(len(h)) if k != j]
         d = h[j] - others[0]
-        for hk in others[1:]:
-            d = d * (h[j] - hk)
-        if derivative == 2:
-            out.append(2.0 / d)
-            continue
         s = others[0]
         for hk in others[1:]:
+            d = d * (h[j] - hk)
             s = s + hk
-        out.append(-s / d if derivative == 1 else -6.0 * s / d)
-    return out
+        inv.append(1.0 / d)
+        sums.append(s)
+    return inv, sums
 
 
 def derivatives_block(t: F64, x: F64, lengths: np.ndarray) -> tuple[F64, F64, F64]:
-    """r′, r″ (3 points) and r‴ (5 points) of a (B, L) block of times and (B, L, 3) positions."""
-    h3 = [_stencil_node(t, lengths, 3, j) - t for j in range(3)]
-    h5 = [_stencil_node(t, lengths, 5, j) - t for j in range(5)]
-    d1 = _apply_stencil(_weights(h3, 1), x, lengths, 3)
-    d2 = _apply_stencil(_weights(h3, 2), x, lengths, 3)
-    d3 = _apply_stencil(_weights(h5, 3), x, lengths, 5)
+    """r′, r″ (3 points) and r‴ (5 points) of times (B, L) and positions (3, B, L)."""
+    inv3, sum3 = _lagrange([_stencil_node(t, lengths, 3, j) - t for j in range(3)])
+    inv5, sum5 = _lagrange([_stencil_node(t, lengths, 5, j) - t for j in range(5)])
+    d1 = _apply_stencil([-s * r for s, r in zip(sum3, inv3)], x, lengths, 3)
+    d2 = _apply_stencil([2.0 * r for r in inv3], x, lengths, 3)
+    d3 = _apply_stencil([-6.0 * s * r for s, r in zip(sum5, inv5)], x, lengths, 5)
     return d1, d2, d3
 
 
@@ -172,7 +169,15 @@ def _gap_and_edge_block(t: F64, lengths: np.ndarray, gap_factor: float) -> np.nd
 
 
 def _dot(a: F64, b: F64) -> F64:
-    return np.einsum("ij,ij->i", a, b)
+    return a[0] * b[0] + a[1] * b[1] + a[2] * b[2]
+
+
+def _cross(a: F64, b: F64) -> F64:
+    out = np.empty_like(a)
+    np.subtract(a[1] * b[2], a[2] * b[1], out=out[0])
+    np.subtract(a[2] * b[0], a[0] * b[2], out=out[1])
+    np.subtract(a[0] * b[1], a[1] * b[0], out=out[2])
+    return out
 
 
 def frenet(
@@ -184,10 +189,13 @@ def frenet(
     min_speed: float,
     min_curvature: float,
 ) -> Outputs:
-    """Frenet apparatus and acceleration split of (N, 3) rows of r′, r″, r‴, as src/frame.rs."""
+    """Frenet apparatus and acceleration split from r′, r″, r‴, as src/frame.rs does it.
+
+    Vectors are component-major, shape (3, N), in and out.
+    """
     nan = np.nan
     speed = np.sqrt(_dot(d1, d1))
-    c = np.cross(d1, d2)
+    c = _cross(d1, d2)
     cn = np.sqrt(_dot(c, c))
     with np.errstate(divide="ignore", invalid="ignore"):
         moving = speed > 0.0
@@ -200,25 +208,25 @@ def frenet(
         parallel = cn <= PARALLEL_EPS * speed * np.sqrt(_dot(d2, d2))
         straight = ~stopped & (~(kappa >= min_curvature) | parallel)
         turning = ~stopped & ~straight
-        t_ = turning[:, None]
-        tangent = np.where(stopped[:, None], nan, d1 / speed[:, None])
-        binormal = np.where(t_, c / cn[:, None], nan)
-        normal = np.cross(binormal, tangent)
+        tangent = np.where(stopped, nan, d1 / speed)
+        binormal = np.where(turning, c / cn, nan)
+        normal = _cross(binormal, tangent)
         curvature = np.where(turning, kappa, np.where(straight, 0.0, nan))
         if up is None:
             signed = np.full_like(speed, nan)
         else:
-            signed = np.where(turning, (c @ up) / v3, np.where(straight, 0.0, nan))
+            c_up = c[0] * up[0] + c[1] * up[1] + c[2] * up[2]
+            signed = np.where(turning, c_up / v3, np.where(straight, 0.0, nan))
         torsion = np.where(turning, _dot(c, d3) / (cn * cn), nan)
         radius = np.where(turning, 1.0 / kappa, np.where(straight, np.inf, nan))
         accel_normal = np.where(straight, 0.0, a_n)
         omega = np.where(turning, cn / v2, np.where(straight, 0.0, nan))
         alpha = np.where(
             turning,
-            _dot(c, np.cross(d1, d3)) / (cn * v2) - 2.0 * cn * a_t / v3,
+            _dot(c, _cross(d1, d3)) / (cn * v2) - 2.0 * cn * a_t / v3,
             nan,
         )
-        center = position + normal * radius[:, None]
+        center = position + normal * radius
     flags = np.where(stopped, np.uint8(STOPPED), np.uint8(0)) | np.where(
         straight, np.uint8(STRAIGHT), np.uint8(0)
     )
@@ -247,6 +255,20 @@ def _unit(up: Optional[Sequence[float]]) -> Optional[F64]:
     return u / np.sqrt(u @ u)
 
 
+def frenet_rows(
+    d1: F64,
+    d2: F64,
+    d3: F64,
+    position: F64,
+    up: Optional[F64],
+    min_speed: float,
+    min_curvature: float,
+) -> Outputs:
+    """:func:`frenet` for row-major (N, 3) vectors, returning (N, 3) vectors."""
+    out = frenet(d1.T, d2.T, d3.T, position.T, up, min_speed, min_curvature)
+    return {name: a.T if a.ndim == 2 else a for name, a in out.items()}
+
+
 def kinematics_block(
     t: F64,
     x: F64,
@@ -257,45 +279,50 @@ def kinematics_block(
     min_curvature: float = 1e-6,
     gap_factor: float = 5.0,
 ) -> Outputs:
-    """Kinematics of a padded block: times (B, L), positions (B, L, 3), ``lengths`` (B,).
+    """Kinematics of a padded block: times (B, L), positions (3, B, L), ``lengths`` (B,).
 
     Row b holds a track in its first ``lengths[b]`` entries; the rest is padding, which must be
     finite with increasing times (it is computed on and then dropped). Returns the outputs of the
-    real rows, track after track, like the kernel's concatenated rows.
+    real rows, track after track, like the kernel's concatenated rows; vectors have shape (N, 3)
+    (views of component-major arrays: the same values as the kernel's, in another memory order).
     """
     lengths = np.asarray(lengths, dtype=np.intp)
     nb, length = t.shape
     valid = np.arange(length) < lengths[:, None]
-    steps = np.diff(t, axis=1)[valid[:, 1:]]
+    whole = bool(valid.all())
     if lengths.min() < MIN_SAMPLES:
         raise ValueError(f"every track needs at least {MIN_SAMPLES} samples")
-    if not (np.isfinite(t[valid]).all() and (steps > 0).all()):
+    steps = np.diff(t, axis=1)
+    if not whole:
+        steps = steps[valid[:, 1:]]
+    if not (np.isfinite(t).all() and (steps > 0).all()):
         raise ValueError("t: times must be finite and strictly increasing within a track")
-    if not np.isfinite(x[valid]).all():
+    if not np.isfinite(x).all():
         raise ValueError("positions: non-finite rows are outside this reference")
 
     d1, d2, d3 = derivatives_block(t, x, lengths)
     edge_gap = _gap_and_edge_block(t, lengths, gap_factor)
+    dx = np.diff(x, axis=2)
     seg = np.zeros((nb, length))
-    dx = np.diff(x, axis=1)
-    seg[:, 1:] = np.sqrt(np.einsum("bij,bij->bi", dx, dx))
+    seg[:, 1:] = np.sqrt(dx[0] * dx[0] + dx[1] * dx[1] + dx[2] * dx[2])
     arclength = np.cumsum(seg, axis=1)
 
-    whole = bool(valid.all())
-
     def rows(a: np.ndarray) -> np.ndarray:
-        return a.reshape(nb * length, *a.shape[2:]) if whole else a[valid]
+        if whole:
+            return a.reshape(*a.shape[:-2], nb * length)
+        return a[..., valid]
 
     d1, d2, d3, pos = rows(d1), rows(d2), rows(d3), rows(x)
     out = frenet(d1, d2, d3, pos, _unit(up), min_speed, min_curvature)
     out["flags"] |= rows(edge_gap)
     out.update(velocity=d1, acceleration=d2, jerk=d3, arclength=rows(arclength))
-    return {name: out[name] for name in FIELDS}
+    return {name: out[name].T if out[name].ndim == 2 else out[name] for name in FIELDS}
 
 
 def kinematics(t: F64, x: F64, **options: Any) -> Outputs:
     """Kinematics of one track: times (n,), positions (n, 3)."""
-    return kinematics_block(t[None, :], x[None, :, :], np.array([len(t)]), **options)
+    xc = np.ascontiguousarray(x.T)[:, None, :]
+    return kinematics_block(t[None, :], xc, np.array([len(t)]), **options)
 
 
 def kinematics_loop(t: F64, x: F64, offsets: np.ndarray, **options: Any) -> Outputs:
@@ -309,7 +336,7 @@ def kinematics_loop(t: F64, x: F64, offsets: np.ndarray, **options: Any) -> Outp
 
 
 def _pad(t: F64, x: F64, offsets: np.ndarray) -> tuple[F64, F64, np.ndarray]:
-    """Concatenated tracks → padded (m, L) times, (m, L, 3) positions and the lengths."""
+    """Concatenated tracks → padded times (m, L), positions (3, m, L), and the track lengths."""
     offsets = np.asarray(offsets, dtype=np.intp)
     lengths = np.diff(offsets)
     length = int(lengths.max())
@@ -319,11 +346,11 @@ def _pad(t: F64, x: F64, offsets: np.ndarray) -> tuple[F64, F64, np.ndarray]:
     pad = j >= lengths[:, None]
     # Padding: the last position repeated at later, unit-spaced times (finite, increasing).
     tb = np.where(pad, t[last] + (j - lengths[:, None] + 1), t[idx])
-    return tb, x[idx], lengths
+    return tb, np.ascontiguousarray(x.T)[:, idx], lengths
 
 
 def kinematics_padded(t: F64, x: F64, offsets: np.ndarray, **options: Any) -> Outputs:
-    """Many tracks in one vectorized pass over a padded (m, L, 3) block."""
+    """Many tracks in one vectorized pass over a padded block."""
     tb, xb, lengths = _pad(t, x, offsets)
     return kinematics_block(tb, xb, lengths, **options)
 
@@ -337,11 +364,15 @@ def stencil_magnitudes(t: F64, x: F64, offsets: np.ndarray) -> tuple[F64, F64, F
     """
     tb, xb, lengths = _pad(t, x, offsets)
     valid = np.arange(tb.shape[1]) < lengths[:, None]
-    h3 = [_stencil_node(tb, lengths, 3, j) - tb for j in range(3)]
-    h5 = [_stencil_node(tb, lengths, 5, j) - tb for j in range(5)]
+    inv3, sum3 = _lagrange([_stencil_node(tb, lengths, 3, j) - tb for j in range(3)])
+    inv5, sum5 = _lagrange([_stencil_node(tb, lengths, 5, j) - tb for j in range(5)])
+    weights = (
+        [s * r for s, r in zip(sum3, inv3)],
+        [2.0 * r for r in inv3],
+        [6.0 * s * r for s, r in zip(sum5, inv5)],
+    )
     ax = np.abs(xb)
-    out = []
-    for h, k in ((h3, 1), (h3, 2), (h5, 3)):
-        w = [np.abs(wj) for wj in _weights(h, k)]
-        out.append(_apply_stencil(w, ax, lengths, len(h))[valid])
+    out = [
+        _apply_stencil([np.abs(w) for w in ws], ax, lengths, len(ws))[:, valid].T for ws in weights
+    ]
     return out[0], out[1], out[2]

@@ -12,8 +12,10 @@ use crate::smooth::{self, smooth, Smoothing};
 use crate::spline::{interpolate, EndCondition};
 use rayon::prelude::*;
 
-/// Gauss–Legendre points per interval for arc length on splines.
-pub const LENGTH_NODES: usize = 5;
+/// Gauss–Legendre points per interval for arc length on splines; a 5-point rule beside it gives
+/// the error estimate.
+pub const LENGTH_NODES: usize = 8;
+const LENGTH_NODES_LOW: usize = 5;
 
 /// A derivative estimator that fits the whole track.
 #[derive(Debug, Clone, PartialEq)]
@@ -36,6 +38,8 @@ pub enum Method {
         /// Window.
         window: Window,
     },
+    /// The polyline through the samples, traversed at constant speed on each segment.
+    Linear,
 }
 
 impl Method {
@@ -45,6 +49,7 @@ impl Method {
             Method::Spline(_) => 2,
             Method::Smooth { degree, .. } => smooth::min_samples(*degree),
             Method::Local { degree, .. } => degree + 1,
+            Method::Linear => 2,
         }
     }
 
@@ -54,6 +59,7 @@ impl Method {
             Method::Spline(_) => "spline",
             Method::Smooth { .. } => "smooth",
             Method::Local { .. } => "local",
+            Method::Linear => "linear",
         }
     }
 }
@@ -69,6 +75,8 @@ pub struct FitInfo {
     pub criterion: f64,
     /// Window of local fits: samples, or a time span.
     pub window: f64,
+    /// Estimated error of the track's arc length (NaN where not estimated).
+    pub length_error: f64,
 }
 
 /// The fit of one track.
@@ -87,6 +95,15 @@ pub enum TrackFit {
     },
     /// Local polynomial fits.
     Local(LocalFit),
+    /// The polyline through the samples (`x` row-major with `dim` columns).
+    Linear {
+        /// Sample times.
+        t: Vec<f64>,
+        /// Positions.
+        x: Vec<f64>,
+        /// Coordinates.
+        dim: usize,
+    },
 }
 
 impl TrackFit {
@@ -96,6 +113,7 @@ impl TrackFit {
             TrackFit::Invalid => &[],
             TrackFit::Poly { poly, .. } => &poly.x,
             TrackFit::Local(f) => &f.t,
+            TrackFit::Linear { t, .. } => t,
         }
     }
 
@@ -111,6 +129,7 @@ impl TrackFit {
                 let w = 4 * f.dim;
                 out.copy_from_slice(&f.deriv[j * w..(j + 1) * w]);
             }
+            TrackFit::Linear { t, .. } => self.at_time(t[j], out),
         }
     }
 
@@ -120,6 +139,23 @@ impl TrackFit {
             TrackFit::Invalid => out.iter_mut().for_each(|v| *v = f64::NAN),
             TrackFit::Poly { poly, .. } => poly.eval(t, 3, out),
             TrackFit::Local(f) => f.eval(t, out),
+            TrackFit::Linear { t: ts, x, dim } => {
+                // Segment holding t (the right one at a sample), extrapolating at the ends.
+                let d = *dim;
+                let i = ts
+                    .partition_point(|&v| v <= t)
+                    .saturating_sub(1)
+                    .min(ts.len() - 2);
+                let h = ts[i + 1] - ts[i];
+                for k in 0..d {
+                    let (a, b) = (x[i * d + k], x[(i + 1) * d + k]);
+                    let v = (b - a) / h;
+                    out[k] = a + v * (t - ts[i]);
+                    out[d + k] = v;
+                    out[2 * d + k] = 0.0;
+                    out[3 * d + k] = 0.0;
+                }
+            }
         }
     }
 
@@ -129,6 +165,7 @@ impl TrackFit {
             TrackFit::Invalid => false,
             TrackFit::Poly { poly, edge, .. } => j < *edge || j + *edge >= poly.x.len(),
             TrackFit::Local(f) => f.edge[j],
+            TrackFit::Linear { .. } => false,
         }
     }
 
@@ -140,29 +177,50 @@ impl TrackFit {
                 poly.length_on(j - 1, poly.x[j - 1], poly.x[j], LENGTH_NODES)
             }
             TrackFit::Local(f) => {
-                // Trapezoid of the speed with the Euler–Maclaurin end correction
-                // h (v₀ + v₁)/2 − h² (v̇₁ − v̇₀)/12, v̇ = a_t = r′·r″/v.
-                let d = f.dim;
-                let w = 4 * d;
-                let sv = |k: usize| {
-                    let r = &f.deriv[k * w..(k + 1) * w];
-                    let v = r[d..2 * d].iter().map(|a| a * a).sum::<f64>().sqrt();
-                    let at = if v > 0.0 {
-                        r[d..2 * d]
-                            .iter()
-                            .zip(&r[2 * d..3 * d])
-                            .map(|(a, b)| a * b)
-                            .sum::<f64>()
-                            / v
-                    } else {
-                        0.0
-                    };
-                    (v, at)
-                };
-                let ((v0, a0), (v1, a1)) = (sv(j - 1), sv(j));
+                let w = 4 * f.dim;
                 let h = f.t[j] - f.t[j - 1];
-                h * 0.5 * (v0 + v1) - h * h * (a1 - a0) / 12.0
+                trapezoid_em(
+                    &f.deriv[(j - 1) * w..j * w],
+                    &f.deriv[j * w..(j + 1) * w],
+                    f.dim,
+                    h,
+                )
             }
+            TrackFit::Linear { x, dim, .. } => {
+                let (p, q) = (&x[(j - 1) * dim..j * dim], &x[j * dim..(j + 1) * dim]);
+                p.iter()
+                    .zip(q)
+                    .map(|(a, b)| (b - a) * (b - a))
+                    .sum::<f64>()
+                    .sqrt()
+            }
+        }
+    }
+
+    /// Coordinates of the fitted path (0 for an invalid track).
+    pub fn dim(&self) -> usize {
+        match self {
+            TrackFit::Invalid => 0,
+            TrackFit::Poly { poly, .. } => poly.dim,
+            TrackFit::Local(f) => f.dim,
+            TrackFit::Linear { dim, .. } => *dim,
+        }
+    }
+
+    /// Σ over intervals of |L₈ − L₅|, the difference of the 8- and 5-point Gauss–Legendre lengths
+    /// (a conservative estimate of the 8-point rule's error); NaN for other kinds of fit.
+    pub fn length_error(&self) -> f64 {
+        match self {
+            TrackFit::Poly { poly, .. } => (0..poly.intervals())
+                .map(|i| {
+                    let (a, b) = (poly.x[i], poly.x[i + 1]);
+                    (poly.length_on(i, a, b, LENGTH_NODES)
+                        - poly.length_on(i, a, b, LENGTH_NODES_LOW))
+                    .abs()
+                })
+                .sum(),
+            TrackFit::Linear { .. } => 0.0,
+            _ => f64::NAN,
         }
     }
 
@@ -200,17 +258,18 @@ impl TrackFit {
                 base + poly.length_on(i, poly.x[j], t, LENGTH_NODES)
             }
             TrackFit::Local(f) => {
-                let (xs, ws) = crate::piecewise::gauss_legendre(3);
-                let (a, b) = (ts[j], t);
-                let (mid, half) = (0.5 * (a + b), 0.5 * (b - a));
+                // The same rule as between samples, so that lengths are continuous at samples.
+                let w = 4 * f.dim;
                 let mut buf = [0.0; 12];
-                let d = f.dim;
-                let mut s = 0.0;
-                for (&xq, &wq) in xs.iter().zip(ws) {
-                    f.eval(mid + half * xq, &mut buf[..4 * d]);
-                    s += wq * buf[d..2 * d].iter().map(|v| v * v).sum::<f64>().sqrt();
-                }
-                base + half * s
+                f.eval(t, &mut buf[..w]);
+                base + trapezoid_em(&f.deriv[j * w..(j + 1) * w], &buf[..w], f.dim, t - ts[j])
+            }
+            TrackFit::Linear { .. } => {
+                let mut buf = [0.0; 12];
+                self.at_time(t, &mut buf);
+                let dim = self.dim();
+                let v = buf[dim..2 * dim].iter().map(|a| a * a).sum::<f64>().sqrt();
+                base + v * (t - ts[j])
             }
         }
     }
@@ -219,13 +278,17 @@ impl TrackFit {
     pub fn info(&self) -> FitInfo {
         let nan = f64::NAN;
         match self {
-            TrackFit::Invalid => FitInfo {
+            TrackFit::Invalid | TrackFit::Linear { .. } => FitInfo {
                 smoothing: nan,
                 edf: nan,
                 criterion: nan,
                 window: nan,
+                length_error: self.length_error(),
             },
-            TrackFit::Poly { info, .. } => *info,
+            TrackFit::Poly { info, .. } => FitInfo {
+                length_error: self.length_error(),
+                ..*info
+            },
             TrackFit::Local(f) => FitInfo {
                 smoothing: nan,
                 edf: nan,
@@ -235,9 +298,26 @@ impl TrackFit {
                     Window::Span(s) => s,
                     Window::Auto => nan,
                 },
+                length_error: nan,
             },
         }
     }
+}
+
+/// Trapezoid of the speed with the Euler–Maclaurin end correction over a step h:
+/// h (v₀ + v₁)/2 − h² (v̇₁ − v̇₀)/12 with v̇ = a_t = r′·r″/v, from derivative blocks 0..=3.
+fn trapezoid_em(a: &[f64], b: &[f64], d: usize, h: f64) -> f64 {
+    let sv = |r: &[f64]| {
+        let v = r[d..2 * d].iter().map(|x| x * x).sum::<f64>().sqrt();
+        let dot: f64 = r[d..2 * d]
+            .iter()
+            .zip(&r[2 * d..3 * d])
+            .map(|(x, y)| x * y)
+            .sum();
+        (v, if v > 0.0 { dot / v } else { 0.0 })
+    };
+    let ((v0, a0), (v1, a1)) = (sv(a), sv(b));
+    h * 0.5 * (v0 + v1) - h * h * (a1 - a0) / 12.0
 }
 
 /// Fit one track whose rows are all finite.
@@ -257,6 +337,7 @@ pub fn fit_track(
                 edf: nan,
                 criterion: nan,
                 window: nan,
+                length_error: nan,
             },
             edge: 2,
         },
@@ -276,11 +357,17 @@ pub fn fit_track(
                     edf: f.edf,
                     criterion: f.criterion,
                     window: nan,
+                    length_error: nan,
                 },
                 edge: band.min(t.len()),
             }
         }
         Method::Local { degree, window } => TrackFit::Local(local(t, x, dim, *degree, *window)?),
+        Method::Linear => TrackFit::Linear {
+            t: t.to_vec(),
+            x: x.to_vec(),
+            dim,
+        },
     })
 }
 

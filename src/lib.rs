@@ -19,6 +19,8 @@ pub mod geodesy;
 pub mod kinematics;
 pub mod local;
 pub mod piecewise;
+pub mod resample;
+pub mod rmf;
 pub mod smooth;
 pub mod spline;
 

@@ -9,6 +9,8 @@ import pytest
 
 MODULES = [
     "osculate.intrinsic",
+    "osculate.paths",
+    "osculate.reparam",
     "osculate.flags",
     "osculate.demo",
     "osculate.geodesy",

@@ -15,7 +15,10 @@ fn at<const D: usize>(t: &[f64], x: &[f64], i: usize, order: FdOrder) {
     let (d1, d2, d3, _edge) = derivatives_at::<D>(t, x, i, order);
     assert_eq!((d1.len(), d2.len(), d3.len()), (D, D, D));
     let (lo, hi) = reach(i, t.len(), order);
-    assert!(lo <= i && i <= hi && hi < t.len(), "reach {lo}..={hi} of row {i}");
+    assert!(
+        lo <= i && i <= hi && hi < t.len(),
+        "reach {lo}..={hi} of row {i}"
+    );
 }
 
 fuzz_target!(|data: &[u8]| {
@@ -30,7 +33,11 @@ fuzz_target!(|data: &[u8]| {
     }
     let dim = (b.u8() % 6) as usize;
     let n = 1 + (b.u8() as usize % 12);
-    let order = if b.chance(128) { FdOrder::Two } else { FdOrder::Four };
+    let order = if b.chance(128) {
+        FdOrder::Two
+    } else {
+        FdOrder::Four
+    };
     let t = b.times(n);
     let x = b.values(n * dim);
     let i = b.u8() as usize % n;

@@ -20,9 +20,17 @@ fuzz_target!(|data: &[u8]| {
     } else {
         b.u16() as usize % 200
     };
-    let order = if b.chance(128) { FdOrder::Two } else { FdOrder::Four };
+    let order = if b.chance(128) {
+        FdOrder::Two
+    } else {
+        FdOrder::Four
+    };
     let t = b.times(n);
-    let len = if b.chance(8) { b.u16() as usize % 600 } else { n * dim };
+    let len = if b.chance(8) {
+        b.u16() as usize % 600
+    } else {
+        n * dim
+    };
     let x = b.values(len);
     let offsets = b.offsets(n);
     let thresholds = Thresholds {
@@ -57,7 +65,10 @@ fuzz_target!(|data: &[u8]| {
             assert_eq!(col.len(), n * w, "{name}");
         }
         assert_eq!(k.flags.len(), n);
-        assert!(k.flags.iter().all(|f| f & !31 == 0), "undocumented flag bit");
+        assert!(
+            k.flags.iter().all(|f| f & !31 == 0),
+            "undocumented flag bit"
+        );
         // A row with a non-finite coordinate is INVALID (documented in the Flag docs).
         for i in 0..n {
             if x[i * dim..(i + 1) * dim].iter().any(|v| !v.is_finite()) {

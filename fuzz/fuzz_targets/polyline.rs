@@ -12,7 +12,11 @@ fuzz_target!(|data: &[u8]| {
     let mut b = Bytes::new(data);
     let dim = (b.u8() % 6) as usize;
     let rows = b.u16() as usize % 300;
-    let len = if b.chance(16) { b.u16() as usize % 1000 } else { rows * dim };
+    let len = if b.chance(16) {
+        b.u16() as usize % 1000
+    } else {
+        rows * dim
+    };
     let x = b.values(len);
     let n = if dim == 0 { rows } else { len / dim };
     let offsets = b.offsets(n);
@@ -21,8 +25,14 @@ fuzz_target!(|data: &[u8]| {
         for w in offsets.windows(2) {
             let track = &s[w[0] as usize..w[1] as usize];
             let finite: Vec<f64> = track.iter().copied().filter(|v| !v.is_nan()).collect();
-            assert!(finite.first().is_none_or(|&v| v == 0.0), "track starts at {finite:?}");
-            assert!(finite.windows(2).all(|p| p[1] >= p[0]), "length decreases: {finite:?}");
+            assert!(
+                finite.first().is_none_or(|&v| v == 0.0),
+                "track starts at {finite:?}"
+            );
+            assert!(
+                finite.windows(2).all(|p| p[1] >= p[0]),
+                "length decreases: {finite:?}"
+            );
         }
     }
 });

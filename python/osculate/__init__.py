@@ -9,8 +9,17 @@ from __future__ import annotations
 from ._core import InputError, __version__
 from .flags import Flag
 from .geodesy import enu_to_geodetic, geodetic_to_enu
-from .intrinsic import Derivatives, Kinematics, arclength, derivatives, kinematics
+from .intrinsic import (
+    Derivatives,
+    Frames,
+    Kinematics,
+    arclength,
+    derivatives,
+    frames,
+    kinematics,
+)
 from .paths import Path, fit
+from .reparam import Resampled, resample
 
 try:  # the DataFrame.osc accessor registers itself when pandas is importable
     from . import accessor as _accessor  # noqa: F401
@@ -20,16 +29,20 @@ except ImportError:  # pragma: no cover - numpy-only installs
 __all__ = [
     "Derivatives",
     "Flag",
+    "Frames",
     "InputError",
     "Kinematics",
     "Path",
+    "Resampled",
     "__version__",
     "arclength",
     "derivatives",
     "enu_to_geodetic",
     "fit",
+    "frames",
     "geodetic_to_enu",
     "kinematics",
+    "resample",
 ]
 
 # Optional submodules that need an extra, imported on first use: ``osculate.dask`` needs

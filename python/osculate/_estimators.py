@@ -12,7 +12,7 @@ from ._validate import Grouping, call_kernel
 
 __all__ = ["FIT_METHODS", "METHODS", "EstimatorOptions", "fit_core"]
 
-METHODS = ("fd", "spline", "smooth", "local")
+METHODS = ("fd", "spline", "smooth", "local", "linear")
 FIT_METHODS = METHODS[1:]
 _BCS = ("not-a-knot", "natural", "clamped")
 
@@ -54,6 +54,7 @@ class EstimatorOptions:
             "spline": {"bc", "bc_velocity"},
             "smooth": {"degree", "smoothing", "noise", "weights", "derivative"},
             "local": {"degree", "window", "window_span"},
+            "linear": set(),
         }[method]
         for name, value in given.items():
             if value is not None and name not in allowed:
@@ -87,6 +88,8 @@ class EstimatorOptions:
             return f"fd (order {self.order})"
         if self.method == "spline":
             return f"spline (bc {self.bc})"
+        if self.method == "linear":
+            return "linear"
         return f"{self.method} (degree {self.degree})"
 
 

@@ -13,7 +13,15 @@ from ._estimators import EstimatorOptions, fit_core
 from ._validate import Grouping, as_positions, as_times, call_kernel, group_rows
 from .flags import Flag
 
-__all__ = ["Derivatives", "Kinematics", "arclength", "derivatives", "kinematics"]
+__all__ = [
+    "Derivatives",
+    "Frames",
+    "Kinematics",
+    "arclength",
+    "derivatives",
+    "frames",
+    "kinematics",
+]
 
 F64 = npt.NDArray[np.float64]
 
@@ -74,7 +82,13 @@ class Kinematics:
         For fitted estimators, one value per track: ``smoothing`` (dimensionless λ* of
         ``"smooth"``), ``edf`` (effective degrees of freedom per coordinate), ``criterion`` (GCV
         score or unbiased risk at the choice) and ``window`` (samples or time span of
-        ``"local"``); NaN where a value does not apply.
+        ``"local"``) and ``length_error`` (estimated error of the arc length of spline
+        methods); NaN where a value does not apply.
+    frame : str
+        ``"frenet"``, or ``"rotation-minimizing"`` when ``normal`` and ``binormal`` hold that frame.
+    twist : ndarray or None
+        With the rotation-minimizing frame: its angle from the Frenet normal (radians, positive
+        about T), NaN where the Frenet normal is undefined.
     """
 
     t: F64
@@ -101,6 +115,8 @@ class Kinematics:
     method: str
     estimator: str
     fit_info: Optional[dict[str, np.ndarray]]
+    frame: str
+    twist: Optional[F64]
     _grouping: Grouping = dataclasses.field(repr=False)
 
     @property
@@ -224,10 +240,19 @@ def _threshold(name: str, value: float) -> float:
 def _up(up: Any, dim: int) -> tuple[float, float, float] | None:
     if up is None:
         return None
-    u = np.asarray(up, dtype=float).reshape(-1)
-    if dim != 3 or u.shape != (3,):
+    if dim != 3:
         raise _core.InputError(f"up: expected a 3-vector for a 3-D path, got {up!r} (dim {dim})")
-    return (float(u[0]), float(u[1]), float(u[2]))
+    return _vector3("up", up, 3)
+
+
+def _vector3(name: str, v: Any, dim: int) -> tuple[float, float, float]:
+    """Return a vector of the path's dimension as a 3-tuple (z = 0 for planar paths)."""
+    u = np.asarray(v, dtype=float).reshape(-1)
+    if u.shape != (dim,):
+        raise _core.InputError(f"{name}: expected a {dim}-vector, got {v!r}")
+    w = np.zeros(3)
+    w[:dim] = u
+    return (float(w[0]), float(w[1]), float(w[2]))
 
 
 def kinematics(
@@ -244,12 +269,15 @@ def kinematics(
     weights: npt.ArrayLike | None = None,
     window: int | None = None,
     window_span: float | None = None,
+    derivative: int | None = None,
     tracks: npt.ArrayLike | None = None,
     offsets: npt.ArrayLike | None = None,
     min_speed: float = 1e-3,
     min_curvature: float = 1e-6,
     gap_factor: float = 5.0,
     up: npt.ArrayLike | None = None,
+    frame: str = "frenet",
+    initial: npt.ArrayLike | None = None,
 ) -> Kinematics:
     """Speed, Frenet frame, curvature, torsion and acceleration split of sampled paths.
 
@@ -293,6 +321,10 @@ def kinematics(
     window_span : float
         ``"local"``: window as a time span (all samples within ± span/2). With neither window
         option the length in samples is chosen by generalized cross-validation.
+    derivative : {0, 1, 2, 3}, default 2
+        ``"smooth"`` with automatic λ: the derivative order the choice is tuned for. 0 keeps the
+        GCV (or unbiased-risk) choice, which is best for positions; ν > 0 rescales it for the
+        ν-th derivative by a plug-in rule (see Notes), never by more than 100×.
     tracks : array_like, shape (n,), optional
         Track id of each row; rows of a track need not be contiguous (they keep their order).
     offsets : array_like of int, shape (m + 1,), optional
@@ -310,6 +342,16 @@ def kinematics(
     up : array_like, shape (3,), optional
         For 3-D paths, the axis about which ``signed_curvature`` is measured (left turns positive),
         e.g. ``(0, 0, 1)`` for vehicles in an east-north-up frame. Planar paths always use +z.
+    frame : {"frenet", "rotation-minimizing"}
+        Which normal and binormal to return. ``"rotation-minimizing"`` replaces them with the
+        rotation-minimizing frame (double reflection; Wang, Jüttler, Zheng & Liu, ACM TOG 27(1),
+        2008), defined wherever the tangent is, so it stays continuous through straight stretches
+        and inflections; ``twist`` then holds its angle from the Frenet normal (radians, positive
+        about T; its arc-length derivative is −τ, Bishop 1975). It starts from the Frenet normal
+        at the first sample that has one (or from ``initial``).
+    initial : array_like, optional
+        Starting normal of the rotation-minimizing frame, projected onto the normal plane of each
+        track's first sample with a tangent.
 
     Returns
     -------
@@ -385,7 +427,16 @@ def kinematics(
         weights=weights,
         window=window,
         window_span=window_span,
+        derivative=derivative,
     )
+    if method == "linear":
+        raise _core.InputError(
+            "method: 'linear' has no curvature; use it with resample() or fit() only"
+        )
+    if frame not in ("frenet", "rotation-minimizing"):
+        raise _core.InputError(f"frame: expected 'frenet' or 'rotation-minimizing', got {frame!r}")
+    if initial is not None and frame != "rotation-minimizing":
+        raise _core.InputError("initial: only applies to frame='rotation-minimizing'")
     if method == "local" and opts.degree < 3:
         raise _core.InputError(
             f"degree: torsion and jerk need r‴, so local fits need degree >= 3, got {opts.degree}"
@@ -393,7 +444,7 @@ def kinematics(
     tt = as_times(t)
     x = as_positions(positions, len(tt))
     g = group_rows(len(tt), tracks, offsets)
-    frame = {
+    options = {
         "min_speed": _threshold("min_speed", min_speed),
         "min_curvature": _threshold("min_curvature", min_curvature),
         "gap_factor": float(gap_factor),
@@ -402,12 +453,27 @@ def kinematics(
     tk, xk = g.to_kernel(tt), g.to_kernel(x)
     info = None
     if method == "fd":
-        raw = call_kernel(g, _core.fd_kinematics, tk, xk, g.offsets, order=opts.order, **frame)
+        raw = call_kernel(g, _core.fd_kinematics, tk, xk, g.offsets, order=opts.order, **options)
+        fitted_x = xk
     else:
         fitted = fit_core(opts, g, tk, xk)
-        raw = call_kernel(g, fitted.kinematics, **frame)
+        raw = call_kernel(g, fitted.kinematics, **options)
         info = fitted.info()
-    return _assemble(tt, x, g, raw, opts, info, grouped=tracks is not None or offsets is not None)
+        fitted_x = fitted.evaluate(tk, g.offsets, 0)
+    if frame == "rotation-minimizing":
+        start = None if initial is None else _vector3("initial", initial, x.shape[1])
+        rmf = call_kernel(
+            g,
+            _core.rotation_minimizing,
+            fitted_x,
+            raw["tangent"],
+            raw["normal"],
+            g.offsets,
+            initial=start,
+        )
+        raw.update(rmf)
+    grouped = tracks is not None or offsets is not None
+    return _assemble(tt, x, g, raw, opts, info, grouped=grouped, frame=frame)
 
 
 def _assemble(
@@ -419,9 +485,11 @@ def _assemble(
     info: dict[str, np.ndarray] | None,
     *,
     grouped: bool,
+    frame: str = "frenet",
 ) -> Kinematics:
     """Kinematics on the caller's rows from the kernel's dictionary (kernel row order)."""
     res = {name: g.to_caller(a) for name, a in raw.items()}
+    res.setdefault("twist", None)
     return Kinematics(
         t=t,
         position=x,
@@ -429,6 +497,7 @@ def _assemble(
         method=opts.method,
         estimator=opts.describe(),
         fit_info=info,
+        frame=frame,
         _grouping=g,
         **res,
     )
@@ -548,3 +617,76 @@ def arclength(
     g = group_rows(len(tt), tracks, offsets)
     s = call_kernel(g, _core.polyline_arclength, g.to_kernel(tt), g.to_kernel(x), g.offsets)
     return g.to_caller(s)
+
+
+class Frames(NamedTuple):
+    """A moving frame on the caller's rows: unit tangent, normal and binormal, twist and flags."""
+
+    tangent: F64
+    normal: F64
+    binormal: F64
+    twist: Optional[F64]
+    flags: npt.NDArray[np.uint8]
+
+
+def frames(
+    t: npt.ArrayLike,
+    positions: npt.ArrayLike,
+    *,
+    frame: str = "rotation-minimizing",
+    initial: npt.ArrayLike | None = None,
+    method: str = "fd",
+    tracks: npt.ArrayLike | None = None,
+    offsets: npt.ArrayLike | None = None,
+    **options: Any,
+) -> Frames:
+    """Compute moving frames along sampled paths: rotation-minimizing (default) or Frenet.
+
+    Parameters
+    ----------
+    t, positions, method, tracks, offsets
+        As in :func:`kinematics`.
+    frame : {"rotation-minimizing", "frenet"}
+        The frame; see :func:`kinematics`.
+    initial : array_like, optional
+        Starting normal of the rotation-minimizing frame.
+    **options
+        Estimator options and thresholds, as in :func:`kinematics`.
+
+    Returns
+    -------
+    Frames
+        ``tangent`` and ``normal`` of shape (n, dim), ``binormal`` (n, 3), ``twist`` (angle from
+        the Frenet normal, rotation-minimizing frame only) and ``flags``.
+
+    Notes
+    -----
+    Double reflection method: W. Wang, B. Jüttler, D. Zheng and Y. Liu, ACM Trans. Graph. 27(1)
+    (2008). Along a space curve the rotation-minimizing normal turns against the Frenet normal at
+    the rate of the torsion: d(twist)/ds = −τ (R. L. Bishop, Amer. Math. Monthly 82 (1975)).
+
+    Examples
+    --------
+    A path with a straight middle: the Frenet normal is undefined there, the rotation-minimizing
+    one is not.
+
+    >>> import numpy as np
+    >>> import osculate as osc
+    >>> s = np.linspace(-3, 3, 61)
+    >>> xy = np.column_stack([s, np.where(np.abs(s) > 1, np.sign(s) * (np.abs(s) - 1) ** 3, 0)])
+    >>> f = osc.frames(s, xy)
+    >>> frenet = osc.frames(s, xy, frame="frenet")
+    >>> bool(np.isfinite(f.normal).all()), bool(np.isnan(frenet.normal[30]).all())
+    (True, True)
+    """
+    k = kinematics(
+        t,
+        positions,
+        method=method,
+        tracks=tracks,
+        offsets=offsets,
+        frame=frame,
+        initial=initial,
+        **options,
+    )
+    return Frames(k.tangent, k.normal, k.binormal, k.twist, k.flags)

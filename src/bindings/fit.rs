@@ -6,6 +6,7 @@ use crate::fit::{fit_batch, Fits, Method};
 use crate::frame::Thresholds;
 use crate::kinematics::{of_fits, of_fits_at, Options};
 use crate::local::Window;
+use crate::resample::{resample, Spacing};
 use crate::smooth::Smoothing;
 use crate::spline::EndCondition;
 use crate::KernelError;
@@ -103,6 +104,7 @@ fn method(
                 (None, None) => Window::Auto,
             },
         },
+        "linear" => Method::Linear,
         other => return Err(bad("method", format!("unknown method {other:?}"))),
     })
 }
@@ -238,6 +240,54 @@ impl FittedPaths {
         Ok(a.into_pyarray(py))
     }
 
+    /// Points at uniform arc-length `step`, or `count` points, or the arc lengths `at` on every
+    /// track; `t` and `extra` are the fitted rows (kernel order). Returns a dict of arrays.
+    #[pyo3(signature = (t, extra, *, step=None, count=None, at=None, endpoint=true))]
+    #[allow(clippy::too_many_arguments)]
+    fn resample<'py>(
+        &self,
+        py: Python<'py>,
+        t: PyReadonlyArray1<'py, f64>,
+        extra: PyReadonlyArray2<'py, f64>,
+        step: Option<f64>,
+        count: Option<usize>,
+        at: Option<PyReadonlyArray1<'py, f64>>,
+        endpoint: bool,
+    ) -> PyResult<Bound<'py, PyDict>> {
+        let ncols = extra.shape()[1];
+        let t = contiguous("t", t.as_slice())?;
+        let e = contiguous("extra", extra.as_slice())?;
+        let at = match &at {
+            Some(a) => Some(contiguous("at", a.as_slice())?.to_vec()),
+            None => None,
+        };
+        let d = self.fits.dim;
+        let r = detached(py, move || {
+            let spacing = match (step, count, at) {
+                (Some(step), None, None) => Spacing::Step { step, endpoint },
+                (None, Some(c), None) => Spacing::Count(c),
+                (None, None, Some(a)) => Spacing::At(a),
+                _ => return Err(bad("step", "give exactly one of step, count and at".into())),
+            };
+            resample(&self.fits, t, e, ncols, &spacing)
+        })?;
+        let total = r.t.len();
+        let out = PyDict::new(py);
+        let rows = |v: Vec<f64>, w: usize| -> PyResult<Bound<'py, PyArray2<f64>>> {
+            Ok(Array2::from_shape_vec((total, w), v)
+                .map_err(|e| pyo3::exceptions::PyRuntimeError::new_err(e.to_string()))?
+                .into_pyarray(py))
+        };
+        let offsets: Vec<i64> = r.offsets.iter().map(|&o| o as i64).collect();
+        out.set_item("offsets", offsets.into_pyarray(py))?;
+        out.set_item("s", r.s.into_pyarray(py))?;
+        out.set_item("t", r.t.into_pyarray(py))?;
+        out.set_item("position", rows(r.x, d)?)?;
+        out.set_item("extra", rows(r.extra, ncols)?)?;
+        out.set_item("length", r.lengths.into_pyarray(py))?;
+        Ok(out)
+    }
+
     /// Per-track choices: dimensionless smoothing λ*, effective degrees of freedom, criterion,
     /// window.
     fn info<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyDict>> {
@@ -250,6 +300,39 @@ impl FittedPaths {
         out.set_item("edf", col(|i| i.edf))?;
         out.set_item("criterion", col(|i| i.criterion))?;
         out.set_item("window", col(|i| i.window))?;
+        out.set_item("length_error", col(|i| i.length_error))?;
         Ok(out)
     }
+}
+
+/// Rotation-minimizing frames from positions, tangents and Frenet normals (kernel order).
+#[pyfunction]
+#[pyo3(signature = (positions, tangent, frenet_normal, offsets, *, initial=None))]
+pub fn rotation_minimizing<'py>(
+    py: Python<'py>,
+    positions: PyReadonlyArray2<'py, f64>,
+    tangent: PyReadonlyArray2<'py, f64>,
+    frenet_normal: PyReadonlyArray2<'py, f64>,
+    offsets: PyReadonlyArray1<'py, i64>,
+    initial: Option<[f64; 3]>,
+) -> PyResult<Bound<'py, PyDict>> {
+    let d = positions.shape()[1];
+    let n = positions.shape()[0];
+    let x = contiguous("positions", positions.as_slice())?;
+    let t = contiguous("tangent", tangent.as_slice())?;
+    let nf = contiguous("frenet_normal", frenet_normal.as_slice())?;
+    let off = contiguous("offsets", offsets.as_slice())?;
+    let r = detached(py, || {
+        crate::rmf::rotation_minimizing(x, t, nf, d, off, initial)
+    })?;
+    let out = PyDict::new(py);
+    let rows = |v: Vec<f64>, w: usize| -> PyResult<Bound<'py, PyArray2<f64>>> {
+        Ok(Array2::from_shape_vec((n, w), v)
+            .map_err(|e| pyo3::exceptions::PyRuntimeError::new_err(e.to_string()))?
+            .into_pyarray(py))
+    };
+    out.set_item("normal", rows(r.normal, d)?)?;
+    out.set_item("binormal", rows(r.binormal, 3)?)?;
+    out.set_item("twist", r.twist.into_pyarray(py))?;
+    Ok(out)
 }

@@ -19,6 +19,7 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(kinematics::polyline_arclength, m)?)?;
     m.add_function(wrap_pyfunction!(fit::fit_paths, m)?)?;
     m.add_class::<fit::FittedPaths>()?;
+    m.add_function(wrap_pyfunction!(fit::rotation_minimizing, m)?)?;
     m.add_function(wrap_pyfunction!(geodesy::geodetic_to_enu, m)?)?;
     m.add_function(wrap_pyfunction!(geodesy::enu_to_geodetic, m)?)?;
     Ok(())

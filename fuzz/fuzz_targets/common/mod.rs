@@ -105,7 +105,11 @@ impl<'a> Bytes<'a> {
             return (0..n).map(|_| self.f64_any()).collect();
         }
         let mut t = Vec::with_capacity(n);
-        let mut now = if self.chance(128) { 0.0 } else { self.f64_any() };
+        let mut now = if self.chance(128) {
+            0.0
+        } else {
+            self.f64_any()
+        };
         for _ in 0..n {
             t.push(now);
             now += self.step();
