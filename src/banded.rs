@@ -267,6 +267,9 @@ mod tests {
 /// added in order of their first column, are rotated into an upper-triangular band R, so that
 /// RᵀR equals the normal matrix without ever forming it. The error grows with the square root of
 /// the normal matrix's condition number instead of the condition number itself.
+/// Widest band [`BandQr`] handles (half-bandwidth + 1).
+pub const MAX_BAND: usize = 8;
+
 #[derive(Debug, Clone)]
 pub struct BandQr {
     nb: usize,
@@ -279,8 +282,10 @@ pub struct BandQr {
 }
 
 impl BandQr {
-    /// An empty system with `nb` unknowns, half-bandwidth `b`, `nrhs` right-hand sides.
+    /// An empty system with `nb` unknowns, half-bandwidth `b` (< [`MAX_BAND`]), `nrhs`
+    /// right-hand sides.
     pub fn new(nb: usize, b: usize, nrhs: usize) -> Result<Self> {
+        assert!(b < MAX_BAND, "band too wide");
         Ok(BandQr {
             nb,
             b,
@@ -291,31 +296,37 @@ impl BandQr {
     }
 
     /// Rotate in the row whose non-zeros `vals` (b + 1 of them) start at column `first`, with
-    /// right-hand sides `rhs` (`nrhs` values). Both are consumed as scratch.
-    pub fn add_row(&mut self, first: usize, vals: &mut [f64], rhs: &mut [f64]) {
-        let (b, w, nrhs) = (self.b, self.b + 1, self.nrhs);
-        for p in first..(first + w).min(self.nb) {
-            let x = vals[0];
-            if x != 0.0 {
-                let piv = self.r[p * w];
-                // Entries stay far from overflow (scaled data, λ* ≤ 1e24), so the plain root is
-                // safe and much cheaper than `hypot`.
-                let rr = (piv * piv + x * x).sqrt();
-                let (c, s) = (piv / rr, x / rr);
-                self.r[p * w] = rr;
-                for q in 1..w {
-                    let a = self.r[p * w + q];
-                    self.r[p * w + q] = c * a + s * vals[q];
-                    vals[q] = c * vals[q] - s * a;
-                }
-                for (k, h) in rhs.iter_mut().enumerate().take(nrhs) {
-                    let a = self.z[p * nrhs + k];
-                    self.z[p * nrhs + k] = c * a + s * *h;
-                    *h = c * *h - s * a;
-                }
+    /// right-hand sides `rhs` (`nrhs` values). `rhs` is consumed as scratch.
+    pub fn add_row(&mut self, first: usize, vals: &[f64], rhs: &mut [f64]) {
+        let (w, nrhs) = (self.b + 1, self.nrhs);
+        // The row as it sweeps right: entry `off + c` is column `p + c` while eliminating column
+        // p = first + off; fill-in lands past the original b + 1 entries, so the window is 2w.
+        let mut row = [0.0; 2 * MAX_BAND];
+        row[..w].copy_from_slice(&vals[..w]);
+        for (off, p) in (first..(first + w).min(self.nb)).enumerate() {
+            let x = row[off];
+            if x == 0.0 {
+                continue;
             }
-            vals.copy_within(1.., 0);
-            vals[b] = 0.0;
+            let rp = &mut self.r[p * w..(p + 1) * w];
+            let piv = rp[0];
+            // Entries stay far from overflow (scaled data, λ* ≤ 1e24), so the plain root is
+            // safe and much cheaper than `hypot`.
+            let rr = (piv * piv + x * x).sqrt();
+            let (c, s) = (piv / rr, x / rr);
+            rp[0] = rr;
+            for q in 1..w {
+                let a = rp[q];
+                let v = row[off + q];
+                rp[q] = c * a + s * v;
+                row[off + q] = c * v - s * a;
+            }
+            let zp = &mut self.z[p * nrhs..(p + 1) * nrhs];
+            for (a, h) in zp.iter_mut().zip(rhs.iter_mut()) {
+                let z = *a;
+                *a = c * z + s * *h;
+                *h = c * *h - s * z;
+            }
         }
     }
 
@@ -379,7 +390,7 @@ mod qr_tests {
                     }
                     rhs[first + r] += vals[r] * y;
                 }
-                qr.add_row(first, &mut vals.clone(), &mut [y]);
+                qr.add_row(first, &vals, &mut [y]);
             }
         }
         let x = qr.solve().unwrap();

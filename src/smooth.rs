@@ -173,7 +173,7 @@ impl Problem {
             for c in 0..dim {
                 rhs[c] = sw * self.y[i * dim + c];
             }
-            qr.add_row(*first, &mut vals[..=k], &mut rhs[..dim]);
+            qr.add_row(*first, &vals[..=k], &mut rhs[..dim]);
         };
         for iv in 0..n - 1 {
             add_sample(&mut qr, iv);
@@ -182,7 +182,7 @@ impl Problem {
                 for r in 0..=k {
                     v[r] = sl * row[r];
                 }
-                qr.add_row(iv, &mut v[..=k], &mut [0.0; 3][..dim]);
+                qr.add_row(iv, &v[..=k], &mut [0.0; 3][..dim]);
             }
         }
         add_sample(&mut qr, n - 1);
@@ -222,6 +222,13 @@ impl Problem {
         };
         let n = self.n as f64;
         let d = self.dim as f64;
+        // The influence matrix reproduces the m polynomials of the penalty's null space and
+        // shrinks everything else: m ≤ tr A ≤ n. A trace outside that range means the band of
+        // the inverse lost its accuracy (very large λ*): the evaluation is rejected.
+        let m = self.k.div_ceil(2) as f64;
+        if !(e.trace >= m - 0.01 && e.trace <= n + 0.01) {
+            return Ok(f64::INFINITY);
+        }
         Ok(match how {
             Smoothing::Noise(sigma) => e.rss / n + 2.0 * d * sigma * sigma * e.trace / n,
             _ => {
