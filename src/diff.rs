@@ -74,6 +74,21 @@ pub fn fornberg(z: f64, x: &[f64], m: usize) -> Weights {
     if n == 0 {
         return c;
     }
+    fornberg_into(z, x, m, &mut c[..n]);
+    c
+}
+
+/// Fornberg's recursion with a stencil width known at compile time (the hot path).
+#[inline]
+fn fornberg_fixed<const N: usize>(z: f64, x: &[f64], m: usize) -> [[f64; MAX_DERIV + 1]; N] {
+    let mut c = [[0.0; MAX_DERIV + 1]; N];
+    fornberg_into(z, &x[..N], m, &mut c);
+    c
+}
+
+#[inline(always)]
+fn fornberg_into(z: f64, x: &[f64], m: usize, c: &mut [[f64; MAX_DERIV + 1]]) {
+    let n = x.len();
     let mut c1 = 1.0;
     let mut c4 = x[0] - z;
     c[0][0] = 1.0;
@@ -84,21 +99,22 @@ pub fn fornberg(z: f64, x: &[f64], m: usize) -> Weights {
         c4 = x[i] - z;
         for j in 0..i {
             let c3 = x[i] - x[j];
+            let inv3 = 1.0 / c3;
             c2 *= c3;
             if j == i - 1 {
+                let f = c1 / c2;
                 for k in (1..=mn).rev() {
-                    c[i][k] = c1 * (k as f64 * c[i - 1][k - 1] - c5 * c[i - 1][k]) / c2;
+                    c[i][k] = f * (k as f64 * c[i - 1][k - 1] - c5 * c[i - 1][k]);
                 }
-                c[i][0] = -c1 * c5 * c[i - 1][0] / c2;
+                c[i][0] = -f * c5 * c[i - 1][0];
             }
             for k in (1..=mn).rev() {
-                c[j][k] = (c4 * c[j][k] - k as f64 * c[j][k - 1]) / c3;
+                c[j][k] = (c4 * c[j][k] - k as f64 * c[j][k - 1]) * inv3;
             }
-            c[j][0] = c4 * c[j][0] / c3;
+            c[j][0] = c4 * c[j][0] * inv3;
         }
         c1 = c2;
     }
-    c
 }
 
 /// Where a stencil of `width` nodes sits for sample `i` of a track of `n` samples.
@@ -129,28 +145,40 @@ pub fn derivatives_at<const D: usize>(
 
     let (s, centred) = place(i, wl, n);
     edge |= !centred;
-    let w = fornberg(t[i], &t[s..s + wl], 2);
     let mut d1 = [0.0; D];
     let mut d2 = [0.0; D];
-    for (j, wj) in w.iter().take(wl).enumerate() {
-        let row = &x[(s + j) * D..(s + j + 1) * D];
-        for k in 0..D {
-            d1[k] += wj[1] * row[k];
-            d2[k] += wj[2] * row[k];
+    let mut low = |w: &[[f64; MAX_DERIV + 1]]| {
+        for (j, wj) in w.iter().enumerate() {
+            let row = &x[(s + j) * D..(s + j + 1) * D];
+            for k in 0..D {
+                d1[k] += wj[1] * row[k];
+                d2[k] += wj[2] * row[k];
+            }
         }
+    };
+    match wl {
+        3 => low(&fornberg_fixed::<3>(t[i], &t[s..], 2)),
+        5 => low(&fornberg_fixed::<5>(t[i], &t[s..], 2)),
+        _ => low(&fornberg(t[i], &t[s..s + wl], 2)[..wl]),
     }
 
     let mut d3 = [f64::NAN; D];
     if wh > MAX_DERIV {
         let (s, centred) = place(i, wh, n);
         edge |= !centred;
-        let w = fornberg(t[i], &t[s..s + wh], 3);
         d3 = [0.0; D];
-        for (j, wj) in w.iter().take(wh).enumerate() {
-            let row = &x[(s + j) * D..(s + j + 1) * D];
-            for k in 0..D {
-                d3[k] += wj[3] * row[k];
+        let mut high = |w: &[[f64; MAX_DERIV + 1]]| {
+            for (j, wj) in w.iter().enumerate() {
+                let row = &x[(s + j) * D..(s + j + 1) * D];
+                for k in 0..D {
+                    d3[k] += wj[3] * row[k];
+                }
             }
+        };
+        match wh {
+            5 => high(&fornberg_fixed::<5>(t[i], &t[s..], 3)),
+            7 => high(&fornberg_fixed::<7>(t[i], &t[s..], 3)),
+            _ => high(&fornberg(t[i], &t[s..s + wh], 3)[..wh]),
         }
     }
     (d1, d2, d3, edge)

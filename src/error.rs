@@ -148,3 +148,25 @@ pub fn try_filled<T: Clone>(len: usize, value: T) -> Result<Vec<T>> {
     v.resize(len, value);
     Ok(v)
 }
+
+/// A vector of `len` zeros taken from zeroed pages (no write pass; the pages are touched by the
+/// caller's first write), or [`KernelError::OutOfMemory`] instead of an abort.
+pub fn try_zeroed(len: usize) -> Result<Vec<f64>> {
+    let oom = || KernelError::OutOfMemory {
+        bytes: len.saturating_mul(8),
+    };
+    if len == 0 {
+        return Ok(Vec::new());
+    }
+    let layout = std::alloc::Layout::array::<f64>(len).map_err(|_| oom())?;
+    // SAFETY: the layout has a non-zero size; the all-zero bit pattern is the f64 value 0.0; the
+    // pointer comes from the global allocator with exactly the layout `Vec<f64>` uses for a
+    // capacity of `len`, so the vector may own and free it.
+    unsafe {
+        let p = std::alloc::alloc_zeroed(layout) as *mut f64;
+        if p.is_null() {
+            return Err(oom());
+        }
+        Ok(Vec::from_raw_parts(p, len, len))
+    }
+}

@@ -7,7 +7,7 @@
 
 use crate::batch::{self, partition, plan_jobs, track_rows, SplitRows};
 use crate::diff::{derivatives_at, reach, FdOrder};
-use crate::error::{try_filled, KernelError, Result};
+use crate::error::{try_filled, try_zeroed, KernelError, Result};
 use crate::fit::Fits;
 use crate::frame::{flag, frenet, Thresholds};
 use nalgebra::Vector3;
@@ -82,12 +82,32 @@ macro_rules! columns {
                 })
             }
 
+            /// Outputs for `n` rows on zeroed pages: every row must then be written (by
+            /// `emit` or `fill_nan`), which saves a pass over the memory.
+            fn alloc_zeroed(n: usize, dim: usize) -> Result<Self> {
+                Ok(Kinematics {
+                    n,
+                    dim,
+                    $($name: try_zeroed(n * width!($w, dim))?,)*
+                    flags: try_filled(n, 0u8)?,
+                })
+            }
+
             fn rows(&mut self) -> Rows<'_> {
                 Rows { dim: self.dim, $($name: &mut self.$name[..],)* flags: &mut self.flags[..] }
             }
         }
 
         impl Rows<'_> {
+            /// Set every value of local row `j` to NaN.
+            fn fill_nan(&mut self, j: usize) {
+                let d = self.dim;
+                $(
+                    let w = width!($w, d);
+                    self.$name[j * w..(j + 1) * w].fill(f64::NAN);
+                )*
+            }
+
             /// Copy row `src_row` of `src` into local row `dst_row`.
             fn copy_row(&mut self, dst_row: usize, src: &Kinematics, src_row: usize) {
                 let d = self.dim;
@@ -266,7 +286,7 @@ fn run<const D: usize>(
         })
         .collect();
 
-    let mut out = Kinematics::alloc(n, D)?;
+    let mut out = Kinematics::alloc_zeroed(n, D)?;
     let jobs = plan_jobs(&offsets, |k| prep[k].has_invalid);
     let parts = partition(out.rows(), jobs.iter().map(|j| j.rows.len()));
     jobs.par_iter()
@@ -536,6 +556,7 @@ fn compacted<const D: usize>(
         .filter(|&i| x[i * D..(i + 1) * D].iter().all(|v| v.is_finite()))
         .collect();
     for i in 0..t.len() {
+        out.fill_nan(i);
         out.flags[i] = flag::INVALID;
     }
     let m = valid.len();
