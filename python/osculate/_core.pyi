@@ -1,8 +1,11 @@
 # Type stubs of the compiled extension module. Arrays are validated by the Python layer first.
+from typing import Any, final
+
 import numpy as np
 import numpy.typing as npt
 
 __version__: str
+__all__: list[str]
 
 class InputError(ValueError):
     argument: str
@@ -26,6 +29,69 @@ def polyline_arclength(
     positions: npt.NDArray[np.float64],
     offsets: npt.NDArray[np.int64],
 ) -> npt.NDArray[np.float64]: ...
+def fit_paths(
+    t: npt.NDArray[np.float64],
+    positions: npt.NDArray[np.float64],
+    offsets: npt.NDArray[np.int64],
+    *,
+    method: str,
+    bc: str = "not-a-knot",
+    bc_start: list[float] | None = None,
+    bc_end: list[float] | None = None,
+    degree: int = 5,
+    smoothing: float | None = None,
+    noise: float | None = None,
+    window: int | None = None,
+    window_span: float | None = None,
+    weights: npt.NDArray[np.float64] | None = None,
+    derivative: int = 2,
+) -> FittedPaths: ...
+
+@final
+class FittedPaths:
+    def __len__(self) -> int: ...
+    @property
+    def dim(self) -> int: ...
+    def kinematics(
+        self,
+        *,
+        min_speed: float,
+        min_curvature: float,
+        gap_factor: float,
+        up: tuple[float, float, float] | None = None,
+    ) -> dict[str, npt.NDArray[np.float64] | npt.NDArray[np.uint8]]: ...
+    def kinematics_at(
+        self,
+        t: npt.NDArray[np.float64],
+        query_offsets: npt.NDArray[np.int64],
+        *,
+        min_speed: float,
+        min_curvature: float,
+        up: tuple[float, float, float] | None = None,
+    ) -> dict[str, npt.NDArray[np.float64] | npt.NDArray[np.uint8]]: ...
+    def evaluate(
+        self, t: npt.NDArray[np.float64], query_offsets: npt.NDArray[np.int64], nu: int
+    ) -> npt.NDArray[np.float64]: ...
+    def resample(
+        self,
+        t: npt.NDArray[np.float64],
+        extra: npt.NDArray[np.float64],
+        *,
+        step: float | None = None,
+        count: int | None = None,
+        at: npt.NDArray[np.float64] | None = None,
+        endpoint: bool = True,
+    ) -> dict[str, npt.NDArray[np.float64] | npt.NDArray[np.int64]]: ...
+    def info(self) -> dict[str, npt.NDArray[np.float64]]: ...
+
+def rotation_minimizing(
+    positions: npt.NDArray[np.float64],
+    tangent: npt.NDArray[np.float64],
+    frenet_normal: npt.NDArray[np.float64],
+    offsets: npt.NDArray[np.int64],
+    *,
+    initial: tuple[float, float, float] | None = None,
+) -> dict[str, npt.NDArray[np.float64]]: ...
 def geodetic_to_enu(
     llh: npt.NDArray[np.float64],
     offsets: npt.NDArray[np.int64],
@@ -37,4 +103,63 @@ def enu_to_geodetic(
     offsets: npt.NDArray[np.int64],
     *,
     origin: npt.NDArray[np.float64],
+) -> npt.NDArray[np.float64]: ...
+
+# Line integrals (osculate.work): dict keys total, error, cumulative (or None), skipped.
+def line_integral_sampled(
+    positions: npt.NDArray[np.float64],
+    values: npt.NDArray[np.float64],
+    offsets: npt.NDArray[np.int64],
+    *,
+    t: npt.NDArray[np.float64] | None = None,
+    rule: str,
+    kind: str,
+    closed: bool,
+    cumulative: bool,
+    estimate: bool,
+) -> dict[str, Any]: ...
+def line_integral_grid(
+    positions: npt.NDArray[np.float64],
+    offsets: npt.NDArray[np.int64],
+    values: npt.NDArray[np.float64],
+    *,
+    t: npt.NDArray[np.float64] | None = None,
+    grid_ndim: int,
+    origin: list[float],
+    spacing: list[float],
+    outside: str,
+    nodes: int,
+    kind: str,
+    closed: bool,
+    cumulative: bool,
+    estimate: bool,
+) -> dict[str, Any]: ...
+def segment_nodes(
+    positions: npt.NDArray[np.float64],
+    offsets: npt.NDArray[np.int64],
+    *,
+    t: npt.NDArray[np.float64] | None = None,
+    nodes: int,
+    closed: bool,
+    estimate: bool,
+) -> tuple[npt.NDArray[np.float64], npt.NDArray[np.float64] | None]: ...
+def line_integral_values(
+    positions: npt.NDArray[np.float64],
+    offsets: npt.NDArray[np.int64],
+    values: npt.NDArray[np.float64],
+    *,
+    nodes: int,
+    kind: str,
+    closed: bool,
+    cumulative: bool,
+    estimate: bool,
+) -> dict[str, Any]: ...
+def grid_eval(
+    values: npt.NDArray[np.float64],
+    points: npt.NDArray[np.float64],
+    *,
+    grid_ndim: int,
+    origin: list[float],
+    spacing: list[float],
+    outside: str,
 ) -> npt.NDArray[np.float64]: ...
