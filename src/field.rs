@@ -194,10 +194,9 @@ impl<'a> GridField<'a> {
             if !u.is_finite() {
                 return None;
             }
-            if !(-BOUNDARY_SLACK..=top + BOUNDARY_SLACK).contains(&u) {
-                if self.outside != Outside::Clamp {
-                    return None;
-                }
+            let inside = (-BOUNDARY_SLACK..=top + BOUNDARY_SLACK).contains(&u);
+            if !inside && self.outside != Outside::Clamp {
+                return None;
             }
             u = u.clamp(0.0, top);
             // Last cell for points on the upper face, so that the fraction stays in [0, 1].
@@ -206,6 +205,14 @@ impl<'a> GridField<'a> {
             c.frac[a] = u - i as f64;
         }
         Some(c)
+    }
+
+    /// Whether `p` lies in the grid box (within [`BOUNDARY_SLACK`] cells).
+    pub fn contains(&self, p: &[f64]) -> bool {
+        (0..self.ndim).all(|a| {
+            let u = (p[a] - self.origin[a]) * self.inv_spacing[a];
+            (-BOUNDARY_SLACK..=(self.shape[a] - 1) as f64 + BOUNDARY_SLACK).contains(&u)
+        })
     }
 
     /// Interpolate at `p` (at least `ndim` coordinates) into `out` (`comps` values). Returns false,
@@ -276,12 +283,20 @@ impl<'a> GridField<'a> {
             .find_map_first(|r| r);
         match bad {
             None => Ok(out),
-            Some(row) => Err(self.outside_error("points", 0, row, &points[row * dim..(row + 1) * dim])),
+            Some(row) => {
+                Err(self.outside_error("points", 0, row, &points[row * dim..(row + 1) * dim]))
+            }
         }
     }
 
     /// The error for a point that could not be evaluated (outside, or not finite).
-    pub fn outside_error(&self, argument: &'static str, track: usize, row: usize, p: &[f64]) -> KernelError {
+    pub fn outside_error(
+        &self,
+        argument: &'static str,
+        track: usize,
+        row: usize,
+        p: &[f64],
+    ) -> KernelError {
         let p = &p[..self.ndim];
         let detail = if p.iter().all(|v| v.is_finite()) {
             let hi: Vec<f64> = (0..self.ndim)
@@ -349,7 +364,12 @@ mod tests {
         let v = sample(&shape, &origin, &spacing, 2, f);
         let g = GridField::new(&v, &shape, 2, &origin, &spacing, Outside::Error).unwrap();
         let mut out = [0.0; 2];
-        for p in [[-1.0, 0.5, 2.0], [0.3, 1.1, 4.9], [0.5, 1.5, 5.0], [-0.77, 0.61, 2.2]] {
+        for p in [
+            [-1.0, 0.5, 2.0],
+            [0.3, 1.1, 4.9],
+            [0.5, 1.5, 5.0],
+            [-0.77, 0.61, 2.2],
+        ] {
             assert!(g.eval(&p, &mut out));
             let e = f(&p);
             assert_relative_eq!(out[0], e[0], max_relative = 1e-14);
@@ -404,11 +424,15 @@ mod tests {
         assert!(bad(&[3, 2], &[0.0, 0.0], &[1.0, f64::NAN])
             .to_string()
             .contains("spacing"));
-        assert!(bad(&[3, 2], &[0.0], &[1.0, 1.0]).to_string().contains("origin"));
+        assert!(bad(&[3, 2], &[0.0], &[1.0, 1.0])
+            .to_string()
+            .contains("origin"));
         assert!(bad(&[3, 3], &[0.0, 0.0], &[1.0, 1.0])
             .to_string()
             .contains("do not fill"));
-        assert!(bad(&[6], &[0.0], &[1.0]).to_string().contains("2 or 3 axes"));
+        assert!(bad(&[6], &[0.0], &[1.0])
+            .to_string()
+            .contains("2 or 3 axes"));
         assert!(Outside::parse("wrap").is_err());
     }
 

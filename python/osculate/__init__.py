@@ -20,6 +20,7 @@ from .intrinsic import (
 )
 from .paths import Path, fit
 from .reparam import Resampled, resample
+from .work import GridField, LineIntegral, line_integral, power, work
 
 try:  # the DataFrame.osc accessor registers itself when pandas is importable
     from . import accessor as _accessor  # noqa: F401
@@ -30,8 +31,10 @@ __all__ = [
     "Derivatives",
     "Flag",
     "Frames",
+    "GridField",
     "InputError",
     "Kinematics",
+    "LineIntegral",
     "Path",
     "Resampled",
     "__version__",
@@ -42,12 +45,15 @@ __all__ = [
     "frames",
     "geodetic_to_enu",
     "kinematics",
+    "line_integral",
+    "power",
     "resample",
+    "work",
 ]
 
 # Optional submodules that need an extra, imported on first use: ``osculate.dask`` needs
-# ``pip install 'osculate[dask]'``.
-_LAZY_SUBMODULES = ("dask",)
+# ``pip install 'osculate[dask]'``, ``osculate.plot`` needs ``pip install 'osculate[plot]'``.
+_LAZY_SUBMODULES = ("dask", "plot")
 
 
 def __getattr__(name: str) -> object:

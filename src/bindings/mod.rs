@@ -5,6 +5,7 @@ mod error;
 mod fit;
 mod geodesy;
 mod kinematics;
+mod line_integral;
 
 use pyo3::prelude::*;
 
@@ -22,5 +23,10 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(fit::rotation_minimizing, m)?)?;
     m.add_function(wrap_pyfunction!(geodesy::geodetic_to_enu, m)?)?;
     m.add_function(wrap_pyfunction!(geodesy::enu_to_geodetic, m)?)?;
+    m.add_function(wrap_pyfunction!(line_integral::line_integral_sampled, m)?)?;
+    m.add_function(wrap_pyfunction!(line_integral::line_integral_grid, m)?)?;
+    m.add_function(wrap_pyfunction!(line_integral::segment_nodes, m)?)?;
+    m.add_function(wrap_pyfunction!(line_integral::line_integral_values, m)?)?;
+    m.add_function(wrap_pyfunction!(line_integral::grid_eval, m)?)?;
     Ok(())
 }
