@@ -1,6 +1,7 @@
 #!/usr/bin/env bash
 # Run every cargo-fuzz (libFuzzer) target of fuzz/ for SECONDS each (default 60), one after another,
-# and print the executions and findings of each. Exits non-zero if any target found a crash, a
+# and print the executions and findings of each. First every input kept in fuzz/regressions/<target>/
+# (crashes found earlier, minimized) is replayed once; a failing one counts as a finding. Exits non-zero if any target found a crash, a
 # timeout or an out-of-memory input; the reproducers are then in fuzz/artifacts/<target>/ (replay
 # one with `cargo fuzz run <target> artifacts/<target>/<file>` from fuzz/).
 #
@@ -49,6 +50,15 @@ rm -f "$build_log"
 triple=$(rustc -vV | sed -n 's/^host: //p')
 
 status=0
+for t in "${targets[@]}"; do
+  for f in regressions/"$t"/*; do
+    [ -f "$f" ] || continue
+    if ! "target/$triple/release/$t" "$f" >/dev/null 2>&1; then
+      echo "regression input $f still fails: replay with target/$triple/release/$t $f"
+      status=1
+    fi
+  done
+done
 printf '%-16s %12s %8s %10s  %s\n' target executions seconds exec/s finding
 for t in "${targets[@]}"; do
   mkdir -p "corpus/$t" "artifacts/$t"

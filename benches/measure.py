@@ -6,11 +6,14 @@ standard output (prefixed with ``RESULT``); :func:`in_subprocess` does that from
 Jobs (``spec["job"]``):
 
 ``time``
-    Build the inputs, call the implementation once (warm-up, and the memory measurement), then
-    ``repeats`` timed calls; report the median and the spread, the growth of the resident set
-    during the first call (the peak, VmHWM, reset through /proc/self/clear_refs just before it),
-    the peak of Python allocations traced by tracemalloc (one more call), and per call the minor
-    page faults and user / system CPU time from getrusage.
+    Build the inputs; call each implementation once (warm-up), then in rounds, every
+    implementation once per round in a rotating order (so that a change of load on a shared
+    machine hits them alike); report per implementation the median, the spread, and per call the
+    minor page faults and user / system CPU time from getrusage.
+``memory``
+    One implementation, one call: the growth of the resident set during it (its peak, VmHWM,
+    reset through /proc/self/clear_refs just before the call, after freed heap memory went back
+    to the OS), then the peak of Python allocations traced by tracemalloc during a second call.
 ``check``
     Run osculate and the NumPy references on the same inputs and compare (``check.py``).
 ``pythreads``
@@ -35,7 +38,7 @@ import time
 import tracemalloc
 from collections.abc import Mapping
 from pathlib import Path
-from typing import Any, Callable
+from typing import Any, Callable, Optional
 
 import numpy as np
 
@@ -181,75 +184,99 @@ def _digest(result: Any) -> str:
 # ------------------------------------------------------------------ jobs
 
 
-def job_time(spec: Mapping[str, Any]) -> dict[str, Any]:
-    """Warm-up with memory measurement, timed repeats, tracemalloc peak (module docstring)."""
+def _inputs_bytes(t: np.ndarray, x: np.ndarray, offsets: np.ndarray) -> int:
+    return t.nbytes + x.nbytes + (offsets.nbytes if len(offsets) > 2 else 0)
+
+
+def job_memory(spec: Mapping[str, Any]) -> dict[str, Any]:
+    """Peak memory of one call in this fresh process: RSS growth, then tracemalloc's peak."""
     t, x, offsets = make_inputs(spec["data"])
     fn = implementation(spec["impl"], t, x, offsets)
-    inputs_bytes = t.nbytes + x.nbytes + (offsets.nbytes if len(offsets) > 2 else 0)
-
+    inputs_bytes = _inputs_bytes(t, x, offsets)
     gc.collect()
     _release_free_heap()
     rss0 = _rss_bytes()
     peak_reset = _reset_peak()
-    t0 = time.perf_counter()
     out = fn()
-    first = time.perf_counter() - t0
     growth = _peak_bytes() - rss0
     outputs_bytes = sum(a.nbytes for a in _arrays(out))
-    digest = _digest(out) if spec.get("digest") else None
     del out
-
-    budget = float(spec.get("budget_s", 5.0))
-    repeats = int(min(spec.get("max_repeats", 15), max(spec.get("min_repeats", 3), budget / first)))
-    times, user, system, faults = [], [], [], []
-    for _ in range(repeats):
-        gc.collect()
-        u0, s0, f0 = _usage()
-        t0 = time.perf_counter()
-        out = fn()
-        elapsed = time.perf_counter() - t0
-        u1, s1, f1 = _usage()
-        del out
-        times.append(elapsed)
-        user.append(u1 - u0)
-        system.append(s1 - s0)
-        faults.append(f1 - f0)
-
-    traced = None
-    if spec.get("tracemalloc", True):
-        gc.collect()
-        tracemalloc.start()
-        out = fn()
-        traced = tracemalloc.get_traced_memory()[1]
-        tracemalloc.stop()
-        del out
-
-    median = statistics.median(times)
+    gc.collect()
+    tracemalloc.start()
+    out = fn()
+    traced = tracemalloc.get_traced_memory()[1]
+    tracemalloc.stop()
+    del out
     return {
-        "impl": spec["impl"],
-        "samples": len(t),
-        "tracks": len(offsets) - 1,
-        "repeats": repeats,
-        "median_s": median,
-        "min_s": min(times),
-        "max_s": max(times),
-        "times_s": times,
-        "first_call_s": first,
-        "samples_per_s": len(t) / median,
-        "user_s_per_call": statistics.median(user),
-        "sys_s_per_call": statistics.median(system),
-        "minor_faults_per_call": statistics.median(faults),
         "inputs_bytes": inputs_bytes,
         "outputs_bytes": outputs_bytes,
         "rss_growth_bytes": growth,
-        "rss_peak_method": "VmHWM after clear_refs"
-        if peak_reset
-        else "lifetime peak (upper bound)",
+        "rss_peak_method": "VmHWM reset by clear_refs" if peak_reset else "lifetime peak (bound)",
         "tracemalloc_peak_bytes": traced,
         "peak_over_in_out": (inputs_bytes + growth) / (inputs_bytes + outputs_bytes),
-        "digest": digest,
-        "rayon_threads": os.environ.get("RAYON_NUM_THREADS", "default"),
     }
+
+
+def job_time(spec: Mapping[str, Any]) -> dict[str, Any]:
+    """Time several implementations on the same inputs, interleaved (module docstring).
+
+    One warm-up call each, then rounds in which every implementation is called once, the order
+    rotating from round to round, so that a change of load on a shared machine hits all alike.
+    """
+    t, x, offsets = make_inputs(spec["data"])
+    impls = list(spec["impls"])
+    fns = {impl: implementation(impl, t, x, offsets) for impl in impls}
+    calls: dict[str, list[tuple[float, float, float, int]]] = {impl: [] for impl in impls}
+    first: dict[str, float] = {}
+    digest: dict[str, Optional[str]] = {}
+
+    def call(impl: str) -> tuple[float, Any]:
+        gc.collect()
+        u0, s0, f0 = _usage()
+        t0 = time.perf_counter()
+        out = fns[impl]()
+        elapsed = time.perf_counter() - t0
+        u1, s1, f1 = _usage()
+        calls[impl].append((elapsed, u1 - u0, s1 - s0, f1 - f0))
+        return elapsed, out
+
+    for impl in impls:
+        first[impl], out = call(impl)
+        digest[impl] = _digest(out) if spec.get("digest") else None
+        del out
+        calls[impl].clear()
+
+    budget = float(spec.get("budget_s", 5.0))
+    rounds = budget / sum(first.values())
+    rounds = int(min(spec.get("max_repeats", 15), max(spec.get("min_repeats", 3), rounds)))
+    for r in range(rounds):
+        k = r % len(impls)
+        for impl in impls[k:] + impls[:k]:
+            _, out = call(impl)
+            del out
+
+    results = {}
+    for impl in impls:
+        times = [c[0] for c in calls[impl]]
+        median = statistics.median(times)
+        results[impl] = {
+            "impl": impl,
+            "samples": len(t),
+            "tracks": len(offsets) - 1,
+            "repeats": rounds,
+            "median_s": median,
+            "min_s": min(times),
+            "max_s": max(times),
+            "times_s": times,
+            "first_call_s": first[impl],
+            "samples_per_s": len(t) / median,
+            "user_s_per_call": statistics.median(c[1] for c in calls[impl]),
+            "sys_s_per_call": statistics.median(c[2] for c in calls[impl]),
+            "minor_faults_per_call": statistics.median(c[3] for c in calls[impl]),
+            "digest": digest[impl],
+            "rayon_threads": os.environ.get("RAYON_NUM_THREADS", "default"),
+        }
+    return results
 
 
 def job_check(spec: Mapping[str, Any]) -> dict[str, Any]:
@@ -333,7 +360,12 @@ def job_pythreads(spec: Mapping[str, Any]) -> dict[str, Any]:
     }
 
 
-JOBS = {"time": job_time, "check": job_check, "pythreads": job_pythreads}
+JOBS = {
+    "time": job_time,
+    "memory": job_memory,
+    "check": job_check,
+    "pythreads": job_pythreads,
+}
 
 
 def in_subprocess(

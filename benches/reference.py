@@ -339,6 +339,8 @@ def _pad(t: F64, x: F64, offsets: np.ndarray) -> tuple[F64, F64, np.ndarray]:
     """Concatenated tracks → padded times (m, L), positions (3, m, L), and the track lengths."""
     offsets = np.asarray(offsets, dtype=np.intp)
     lengths = np.diff(offsets)
+    if len(lengths) == 1:
+        return t[None, :], np.ascontiguousarray(x.T)[:, None, :], lengths
     length = int(lengths.max())
     j = np.arange(length)
     last = (offsets[1:] - 1)[:, None]

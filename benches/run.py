@@ -20,6 +20,9 @@ threads
 scaling
     osculate on one track of 1e4 … 1e7 samples: time per sample, the slope of log(time) against
     log(n), and the spread of the time per sample from 1e5 to 1e7.
+NAME (from ``NAME_case.py`` beside this file)
+    Cases that other issues add (e.g. ``accessor``, ``work``): each runs as its own script with
+    ``--quick`` passed on, checks its own pairs, and its targets are listed with the others.
 
 Before any timing, each pair's outputs are checked equal to the tolerances stated in ``check.py``
 (an AssertionError stops the run with a non-zero exit). Every measurement runs in a fresh
@@ -35,7 +38,9 @@ import argparse
 import json
 import os
 import platform
+import subprocess
 import sys
+import tempfile
 import time
 from pathlib import Path
 from typing import Any
@@ -43,9 +48,16 @@ from typing import Any
 import numpy as np
 from measure import in_subprocess
 
-CASES = ("fd-one", "fd-many", "floor", "threads", "scaling")
+HERE = Path(__file__).resolve().parent
+OWN_CASES = ("fd-one", "fd-many", "floor", "threads", "scaling")
+#: Cases that other issues put beside this file as ``NAME_case.py``: each takes ``[--quick]
+#: --out FILE``, checks its own pairs, writes its figures as JSON and marks each target with a
+#: "status". They run in their own interpreter, after the cases above.
+EXTERNAL = {p.name[: -len("_case.py")]: p for p in sorted(HERE.glob("*_case.py"))}
+CASES = OWN_CASES + tuple(EXTERNAL)
 
 FULL: dict[str, Any] = {
+    "quick": False,
     "one_sizes": [1_000_000, 10_000_000],
     "many": {"kind": "many", "m": 10_000, "mean_len": 200},
     "scaling_sizes": [10_000, 30_000, 100_000, 300_000, 1_000_000, 3_000_000, 10_000_000],
@@ -53,6 +65,7 @@ FULL: dict[str, Any] = {
     "min_repeats": 3,
 }
 QUICK: dict[str, Any] = {
+    "quick": True,
     "one_sizes": [100_000, 300_000],
     "many": {"kind": "many", "m": 1_000, "mean_len": 200},
     "scaling_sizes": [10_000, 30_000, 100_000, 300_000],
@@ -118,30 +131,48 @@ def log(msg: str) -> None:
     print(msg, file=sys.stderr, flush=True)
 
 
-#: Measurements of this run by their spec, so that a case reuses what another already measured.
+#: Measurements of this run, so that a case reuses what another already measured.
 _MEASURED: dict[str, dict[str, Any]] = {}
 
 
-def timed(impl: str, data: dict[str, Any], cfg: dict[str, Any], **extra: Any) -> dict[str, Any]:
-    env = extra.pop("env", None)
-    spec = {
-        "job": "time",
-        "impl": impl,
-        "data": data,
-        "budget_s": cfg["budget_s"],
-        "min_repeats": cfg["min_repeats"],
-        **extra,
-    }
-    key = json.dumps([spec, env], sort_keys=True)
-    if key in _MEASURED:
-        return _MEASURED[key]
-    label = f"{impl} {data}" + (f" {env}" if env else "")
-    t0 = time.perf_counter()
-    result = in_subprocess(spec, env=env)
-    log(f"  timed {label}: median {result['median_s']:.4f} s ({time.perf_counter() - t0:.1f} s)")
-    result["data"] = data
-    _MEASURED[key] = result
-    return result
+def measured(
+    impls: list[str],
+    data: dict[str, Any],
+    cfg: dict[str, Any],
+    *,
+    env: dict[str, str] | None = None,
+    memory: bool = True,
+    digest: bool = False,
+) -> dict[str, dict[str, Any]]:
+    """Timings of ``impls`` on ``data``, interleaved in one fresh process, and (``memory``) the
+    peak memory of each in a fresh process of its own."""
+
+    def key(impl: str) -> str:
+        return json.dumps([impl, data, env], sort_keys=True)
+
+    missing = [impl for impl in impls if key(impl) not in _MEASURED]
+    if missing:
+        t0 = time.perf_counter()
+        load = os.getloadavg()[0] if hasattr(os, "getloadavg") else float("nan")
+        spec = {
+            "job": "time",
+            "impls": missing,
+            "data": data,
+            "budget_s": cfg["budget_s"],
+            "min_repeats": cfg["min_repeats"],
+            "digest": digest,
+        }
+        results = in_subprocess(spec, env=env)
+        for impl in missing:
+            if memory:
+                mem = {"job": "memory", "impl": impl, "data": data}
+                results[impl].update(in_subprocess(mem, env=env))
+            results[impl]["data"] = data
+            results[impl]["load_average_before"] = load
+            _MEASURED[key(impl)] = results[impl]
+        medians = ", ".join(f"{i} {results[i]['median_s']:.4f} s" for i in missing)
+        log(f"  {data}{f' {env}' if env else ''}: {medians} ({time.perf_counter() - t0:.1f} s)")
+    return {impl: _MEASURED[key(impl)] for impl in impls}
 
 
 def checked(data: dict[str, Any], impls: list[str]) -> dict[str, Any]:
@@ -154,46 +185,51 @@ def checked(data: dict[str, Any], impls: list[str]) -> dict[str, Any]:
 # ------------------------------------------------------------------------------ the cases
 
 
+def _with_floor(impls: list[str], cfg: dict[str, Any]) -> list[str]:
+    """The floor is timed in the same rounds as the kernels when the floor case is on."""
+    return [*impls, "floor"] if "floor" in cfg["cases"] else impls
+
+
 def case_fd_one(cfg: dict[str, Any]) -> dict[str, Any]:
     out: dict[str, Any] = {}
     for n in cfg["one_sizes"]:
         data = one(n)
+        check = checked(data, ["numpy"])
         out[str(n)] = {
-            "check": checked(data, ["numpy"]),
-            "osculate": timed("osculate", data, cfg),
-            "numpy": timed("numpy", data, cfg),
+            "check": check,
+            **measured(_with_floor(["osculate", "numpy"], cfg), data, cfg),
         }
     return out
 
 
 def case_fd_many(cfg: dict[str, Any]) -> dict[str, Any]:
     data = cfg["many"]
-    return {
-        "check": checked(data, ["numpy-loop", "numpy-padded"]),
-        "osculate": timed("osculate", data, cfg),
-        "numpy-loop": timed("numpy-loop", data, cfg, min_repeats=min(cfg["min_repeats"], 3)),
-        "numpy-padded": timed("numpy-padded", data, cfg),
-    }
+    check = checked(data, ["numpy-loop", "numpy-padded"])
+    impls = _with_floor(["osculate", "numpy-loop", "numpy-padded"], cfg)
+    return {"check": check, **measured(impls, data, cfg)}
 
 
 def case_floor(cfg: dict[str, Any]) -> dict[str, Any]:
-    out = {str(n): timed("floor", one(n), cfg) for n in cfg["one_sizes"]}
-    out["many"] = timed("floor", cfg["many"], cfg)
+    out = {str(n): measured(["floor"], one(n), cfg)["floor"] for n in cfg["one_sizes"]}
+    out["many"] = measured(["floor"], cfg["many"], cfg)["floor"]
     return out
 
 
 def case_threads(cfg: dict[str, Any]) -> dict[str, Any]:
     data = cfg["many"]
     runs = {
-        str(k): timed("osculate", data, cfg, env={"RAYON_NUM_THREADS": str(k)}, digest=True)
+        str(k): measured(
+            ["osculate"], data, cfg, env={"RAYON_NUM_THREADS": str(k)}, memory=False, digest=True
+        )["osculate"]
         for k in (1, 2)
     }
     if runs["1"]["digest"] != runs["2"]["digest"]:
         raise AssertionError("threads: outputs with 1 and 2 rayon threads are not bit-identical")
-    log(f"  two Python threads {data}")
+    t0 = time.perf_counter()
     py = in_subprocess(
         {"job": "pythreads", "data": data, "repeats": 3}, env={"RAYON_NUM_THREADS": "1"}
     )
+    log(f"  two Python threads on {data} ({time.perf_counter() - t0:.1f} s)")
     return {
         "rayon": runs,
         "rayon_speedup": runs["1"]["median_s"] / runs["2"]["median_s"],
@@ -207,7 +243,10 @@ def _slope(ns: list[int], ts: list[float]) -> float:
 
 
 def case_scaling(cfg: dict[str, Any]) -> dict[str, Any]:
-    runs = {str(n): timed("osculate", one(n), cfg) for n in cfg["scaling_sizes"]}
+    runs = {
+        str(n): measured(["osculate"], one(n), cfg, memory=False)["osculate"]
+        for n in cfg["scaling_sizes"]
+    }
     ns = [int(n) for n in runs]
     ts = [runs[str(n)]["median_s"] for n in ns]
     per = {str(n): t / n for n, t in zip(ns, ts)}
@@ -223,6 +262,31 @@ def case_scaling(cfg: dict[str, Any]) -> dict[str, Any]:
         "spread_vs_median": max(abs(p / mid - 1.0) for p in band_per),
         "max_over_min": max(band_per) / min(band_per),
     }
+
+
+def case_external(name: str, cfg: dict[str, Any]) -> dict[str, Any]:
+    """Run ``NAME_case.py`` in a fresh interpreter and return its JSON figures."""
+    with tempfile.TemporaryDirectory() as tmp:
+        out = Path(tmp) / "figures.json"
+        cmd = [sys.executable, str(EXTERNAL[name]), *(["--quick"] if cfg["quick"] else [])]
+        t0 = time.perf_counter()
+        proc = subprocess.run(
+            [*cmd, "--out", str(out)], capture_output=True, text=True, timeout=1800, check=False
+        )
+        if proc.returncode != 0 or not out.exists():
+            raise RuntimeError(f"{' '.join(cmd)} failed ({proc.returncode}):\n{proc.stderr}")
+        log(f"  ran {EXTERNAL[name].name} ({time.perf_counter() - t0:.1f} s)")
+        return json.loads(out.read_text())
+
+
+def _statuses(figures: Any, path: str) -> list[tuple[str, dict[str, Any]]]:
+    """Every dict with a "status" inside an external case's figures, with where it sits."""
+    if not isinstance(figures, dict):
+        return []
+    found = [(path, figures)] if "status" in figures else []
+    for key, value in figures.items():
+        found += _statuses(value, f"{path} / {key}")
+    return found
 
 
 RUNNERS = {
@@ -241,6 +305,10 @@ def _mb(b: float | None) -> str:
     return "-" if b is None else f"{b / 1e6:.0f}"
 
 
+def _ratio(v: float | None) -> str:
+    return "-" if v is None else f"{v:.2f}"
+
+
 def table(results: dict[str, Any]) -> list[str]:
     """The human-readable table."""
     cases = results["cases"]
@@ -248,7 +316,7 @@ def table(results: dict[str, Any]) -> list[str]:
     head = (
         f"{'case':<9} {'data':<13} {'implementation':<22} {'median ms':>10} {'min-max ms':>15} "
         f"{'Msamples/s':>10} {'osc. faster':>11} {'x floor':>8} {'RSS+ MB':>8} "
-        f"{'peak/io':>7} {'tracem. MB':>10} {'faults':>8} {'sys ms':>7}"
+        f"{'peak/io':>7} {'tracem. MB':>10} {'faults':>8} {'sys ms':>7} {'load':>5}"
     )
     lines = [head, "-" * len(head)]
 
@@ -261,9 +329,10 @@ def table(results: dict[str, Any]) -> list[str]:
         lines.append(
             f"{case:<9} {data:<13} {name:<22} {med * 1e3:>10.1f} "
             f"{r['min_s'] * 1e3:>7.1f}-{r['max_s'] * 1e3:<7.1f} {r['samples_per_s'] / 1e6:>10.2f} "
-            f"{faster:>11} {xfloor:>8} {_mb(r['rss_growth_bytes']):>8} "
-            f"{r['peak_over_in_out']:>7.2f} {_mb(r['tracemalloc_peak_bytes']):>10} "
+            f"{faster:>11} {xfloor:>8} {_mb(r.get('rss_growth_bytes')):>8} "
+            f"{_ratio(r.get('peak_over_in_out')):>7} {_mb(r.get('tracemalloc_peak_bytes')):>10} "
             f"{r['minor_faults_per_call']:>8.0f} {r['sys_s_per_call'] * 1e3:>7.1f}"
+            f" {r.get('load_average_before', float('nan')):>5.1f}"
         )
 
     for n, res in cases.get("fd-one", {}).items():
@@ -313,7 +382,8 @@ def table(results: dict[str, Any]) -> list[str]:
         " (threads: / 2 threads);"
         " x floor: median / floor median on the same data; RSS+: growth of the resident set during"
         " one call; peak/io: (inputs + RSS growth) / (inputs + outputs); tracem.: peak of traced"
-        " Python allocations; faults, sys: minor page faults and system CPU time per call."
+        " Python allocations; faults, sys: minor page faults and system CPU time per call;"
+        " load: the machine's 1-minute load average when the measurement started."
     )
     if th:
         py = th["python_threads"]
@@ -412,6 +482,18 @@ def targets(results: dict[str, Any]) -> list[dict[str, Any]]:
             True,
             "x",
         )
+    for name in EXTERNAL:
+        for where, d in _statuses(cases.get(name), name):
+            measured = d.get("measured", d.get("ratio_to_input", float("nan")))
+            out.append(
+                {
+                    "target": where,
+                    "goal": str(d.get("target", "")),
+                    "measured": round(measured, 3) if isinstance(measured, float) else measured,
+                    "status": d["status"],
+                    "note": f"from {EXTERNAL[name].name}",
+                }
+            )
     sc = cases.get("scaling")
     if sc:
         band = f"{sc['band'][0]:.0e}..{sc['band'][1]:.0e}"
@@ -438,7 +520,7 @@ def main(argv: list[str] | None = None) -> int:
     )
     parser.add_argument("--out", type=Path, help="write all results as JSON here")
     args = parser.parse_args(argv)
-    cfg = QUICK if args.quick else FULL
+    cfg = {**(QUICK if args.quick else FULL), "cases": list(args.case)}
 
     started = time.time()
     results: dict[str, Any] = {
@@ -451,7 +533,10 @@ def main(argv: list[str] | None = None) -> int:
     for name in CASES:
         if name in args.case:
             log(f"[{name}]")
-            results["cases"][name] = RUNNERS[name](cfg)
+            if name in EXTERNAL:
+                results["cases"][name] = case_external(name, cfg)
+            else:
+                results["cases"][name] = RUNNERS[name](cfg)
     results["seconds"] = time.time() - started
     if hasattr(os, "getloadavg"):
         results["machine"]["load_average_at_end"] = os.getloadavg()
@@ -463,9 +548,13 @@ def main(argv: list[str] | None = None) -> int:
         f"{int(m.get('memory_kib', '0 kB').split()[0]) / 2**20:.0f} GiB, {m['platform']}, "
         f"Python {m['python']}, NumPy {m['numpy']}, osculate {m.get('osculate')}"
     )
-    print("\n".join(table(results)))
-    print()
-    print("Checks (before timing): every pair's outputs equal to the tolerances of check.py: OK")
+    if any(name in results["cases"] for name in OWN_CASES):
+        print("\n".join(table(results)))
+        print()
+    print(
+        "Checks (before timing): every pair's outputs equal to the tolerances of check.py"
+        " (NAME_case.py: to the tolerances each states): OK"
+    )
     for r in results["targets"]:
         print(
             f"  {r['status']:<4}  {r['target']:<55} {r['goal']:>7}"

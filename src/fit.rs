@@ -12,6 +12,9 @@ use crate::smooth::{self, smooth, Smoothing};
 use crate::spline::{interpolate, EndCondition};
 use rayon::prelude::*;
 
+/// Samples flagged EDGE at each end of a smoothing spline, in smoothing bandwidths.
+pub const EDGE_BANDWIDTHS: f64 = 3.0;
+
 /// Gauss–Legendre points per interval for arc length on splines; a 5-point rule beside it gives
 /// the error estimate.
 pub const LENGTH_NODES: usize = 8;
@@ -347,9 +350,12 @@ pub fn fit_track(
             derivative,
         } => {
             let f = smooth(t, x, dim, w, *degree, *smoothing, *derivative)?;
-            // The natural end conditions bias derivatives over about one smoothing bandwidth.
+            // The natural end conditions bias derivatives over the reach of the equivalent
+            // kernel, about three bandwidths λ*^(1/2m) (in samples) from each end.
             let m = degree.div_ceil(2);
-            let band = f.lambda.powf(0.5 / m as f64).ceil().max(1.0) as usize;
+            let band = (EDGE_BANDWIDTHS * f.lambda.powf(0.5 / m as f64))
+                .ceil()
+                .max(1.0) as usize;
             TrackFit::Poly {
                 poly: f.path,
                 info: FitInfo {

@@ -11,11 +11,13 @@ MODULES = [
     "osculate.intrinsic",
     "osculate.paths",
     "osculate.reparam",
+    "osculate.lineint",
     "osculate.flags",
     "osculate.demo",
     "osculate.geodesy",
     "osculate.accessor",
     "osculate.dask",
+    "osculate.plot",
 ]
 
 
@@ -26,21 +28,13 @@ def test_docstring_examples(name):
     assert result.failed == 0
 
 
-def test_demo_command_writes_report(tmp_path):
-    out = tmp_path / "report"
+def test_demo_command_is_wired():
+    # The full run of `osculate demo` (files, ground truth, timing) is in tests/test_demo.py.
     proc = subprocess.run(
-        [sys.executable, "-m", "osculate.cli", "demo", "--out", str(out)],
+        [sys.executable, "-m", "osculate.cli", "demo", "--help"],
         capture_output=True,
         text=True,
         check=True,
         timeout=120,
     )
-    assert "report written" in proc.stdout
-    for name in ("report.md", "samples.csv", "summary.csv"):
-        assert (out / name).stat().st_size > 0
-    text = (out / "report.md").read_text()
-    assert "local codes and licensed engineers decide" in text
-    # Estimated bend radius within 0.1 % of the scenario's 40 m (ground truth of the generator).
-    line = next(ln for ln in text.splitlines() if ln.startswith("| bend radius"))
-    est = float(line.split("|")[2].split()[0])
-    assert abs(est - 40.0) / 40.0 < 1e-3
+    assert "--out" in proc.stdout and "report.md" in proc.stdout

@@ -1,4 +1,4 @@
-"""Work, line integrals, circulation and power (osculate.work).
+"""Work, line integrals, circulation and power (osculate.lineint).
 
 Every numerical check states where its expected value comes from and its tolerance.
 """

@@ -18,7 +18,7 @@ fuzz_target!(|data: &[u8]| {
         rows * dim
     };
     let x = b.values(len);
-    let n = if dim == 0 { rows } else { len / dim };
+    let n = len.checked_div(dim).unwrap_or(rows);
     let offsets = b.offsets(n);
     if let Ok(s) = polyline(&x, dim, &offsets) {
         assert_eq!(s.len(), n);

@@ -20,7 +20,7 @@ from .intrinsic import (
 )
 from .paths import Path, fit
 from .reparam import Resampled, resample
-from .work import GridField, LineIntegral, line_integral, power, work
+from .lineint import GridField, LineIntegral, line_integral, power, work
 
 try:  # the DataFrame.osc accessor registers itself when pandas is importable
     from . import accessor as _accessor  # noqa: F401

@@ -1,0 +1,322 @@
+"""The demo scenarios hold their ground truth, and `osculate demo` recovers it within tolerance.
+
+Generators are checked against independent closed forms (Fresnel integrals for the clothoid,
+pymap3d for WGS 84, the Lamb–Oseen circulation); the demo's estimates against the generators'
+ground truth, with the tolerances stated beside each check (the same as in the report).
+"""
+
+import csv
+import re
+import subprocess
+import sys
+import textwrap
+
+import numpy as np
+import osculate.demo as demo
+import pytest
+
+# -- generators ---------------------------------------------------------------------------------
+
+
+@pytest.mark.parametrize("make", [demo.survey_flight, demo.spiral_loop, demo.swirl_tracers])
+def test_generators_are_reproducible(make):
+    a, b = make(), make()
+    for name in ("t", "xy", "lat", "force", "particle"):
+        if hasattr(a, name):
+            assert np.array_equal(getattr(a, name), getattr(b, name))
+    assert not np.array_equal(make(seed=99).t, a.t)
+
+
+def test_clothoid_matches_fresnel_integrals():
+    # Euler spiral with κ = s/(R L) from the straight: x = a·C(s/a), y = a·S(s/a),
+    # a = sqrt(π R L) (scipy.special.fresnel: S, C with the π/2 convention).
+    from scipy import special
+
+    e = demo.spiral_loop(noise=0.0, force_noise=0.0)
+    u = np.mod(e.distance, e.lap_length)
+    s0 = 0.5 * e.straight_length  # the first entry spiral starts at (75, 0), heading +x
+    on = (u > s0) & (u < s0 + e.spiral_length)
+    s = u[on] - s0
+    a = np.sqrt(np.pi * e.bend_radius * e.spiral_length)
+    fs, fc = special.fresnel(s / a)
+    want = np.column_stack([s0 + a * fc, a * fs])
+    assert on.sum() > 50
+    assert np.abs(e.xy_true[on] - want).max() < 1e-9  # metres
+    # Curvature linear in arc length at the stated rate, and v²κ is the normal acceleration.
+    assert np.allclose(e.curvature[on], s * e.spiral_rate, rtol=1e-12, atol=1e-15)
+    assert np.allclose(e.accel_normal, e.speed**2 * np.abs(e.curvature))
+
+
+def test_spiral_loop_closes_and_keeps_its_radius():
+    e = demo.spiral_loop(noise=0.0, force_noise=0.0)
+    # Closed loop: 2·(straight + spiral + πR) (geometry of the generator).
+    assert np.isclose(e.lap_length, 2 * (150 + 40 + np.pi * 35), rtol=1e-12)
+    arc = e.segment == "arc"
+    # On the arcs the path stays at R from a fixed centre: the first arc's centre is (x, y + R)
+    # from the arc's start, heading there is +x rotated by the spiral's turn L/(2R).
+    i = np.flatnonzero(arc & (e.lap == 0))
+    first = i[: np.argmax(np.diff(i) > 1) + 1] if (np.diff(i) > 1).any() else i
+    pts = e.xy_true[first]
+    # Fit the circle through the arc samples (algebraic least squares) and compare its radius.
+    A = np.column_stack([2 * pts, np.ones(len(pts))])
+    sol = np.linalg.lstsq(A, (pts**2).sum(axis=1), rcond=None)[0]
+    radius = np.sqrt(sol[2] + sol[0] ** 2 + sol[1] ** 2)
+    assert np.isclose(radius, e.bend_radius, rtol=1e-9)
+    # Logged force: the resistance magnitude, opposite to the motion (noise-free here).
+    direction = np.gradient(e.xy_true, e.t, axis=0)
+    cos = np.einsum("ij,ij->i", e.force, direction) / (
+        np.linalg.norm(e.force, axis=1) * np.linalg.norm(direction, axis=1)
+    )
+    assert np.all(cos < -0.999)
+    assert np.allclose(np.linalg.norm(e.force, axis=1), e.resistance(e.speed))
+
+
+def test_survey_flight_geodesy_matches_pymap3d():
+    import pymap3d
+
+    f = demo.survey_flight(noise_horizontal=0.0, noise_vertical=0.0)
+    lat, lon, h = pymap3d.enu2geodetic(*f.enu.T, *f.origin)  # WGS 84 by default
+    assert np.abs(lat - f.lat).max() < 1e-9 and np.abs(lon - f.lon).max() < 1e-9
+    assert np.abs(h - f.height).max() < 1e-4
+
+
+def test_survey_flight_turns_have_the_planned_radius():
+    f = demo.survey_flight(noise_horizontal=0.0, noise_vertical=0.0)
+    assert np.all(f.enu[f.turn >= 0, 2] == f.altitude)
+    for turn in range(3):  # three turns: points at R from one centre
+        p = f.enu[f.turn == turn, :2]
+        A = np.column_stack([2 * p, np.ones(len(p))])
+        sol = np.linalg.lstsq(A, (p**2).sum(axis=1), rcond=None)[0]
+        assert np.isclose(np.sqrt(sol[2] + sol[0] ** 2 + sol[1] ** 2), f.turn_radius, rtol=1e-9)
+    # Speed is the derivative of the distance flown (central differences, uneven times).
+    v = np.gradient(f.distance, f.t)
+    inner = np.ones_like(v, dtype=bool)
+    inner[[0, -1]] = False
+    assert np.abs(v - f.speed)[inner].max() < 0.05
+    # The hover: at rest for 8 s; the outage: no fix for 2.5 s.
+    h0, h1 = f.hover_span
+    assert np.isclose(h1 - h0, f.hover) and np.all(f.speed[(f.t > h0) & (f.t < h1)] == 0)
+    assert 2.5 < np.diff(f.t).max() < 2.8
+    # Noisy log: noise of the stated size, about the truth.
+    g = demo.survey_flight()
+    import osculate as osc
+
+    enu = osc.geodetic_to_enu(g.lat, g.lon, g.height, origin=g.origin)
+    err = enu - g.enu
+    assert np.allclose(err.std(axis=0), [0.3, 0.3, 0.5], rtol=0.1)
+
+
+def test_swirl_tracers_circles_and_circulation():
+    d = demo.swirl_tracers(noise=0.0)
+    r = np.hypot(*d.xy.T)
+    assert np.allclose(r, d.radius[d.particle], rtol=1e-12)
+    # Speed from frame-to-frame chords, r·2 sin(ωΔt/2)/Δt → v (sub-percent at 50 fps).
+    same = d.particle[1:] == d.particle[:-1]
+    chord = np.hypot(*np.diff(d.xy, axis=0).T)[same] * d.fps
+    assert np.allclose(chord, d.speed[1:][same], rtol=1e-4)
+    # Circulation of the velocity round a circle by the trapezoid rule (numpy) against the closed
+    # form Γ(1 − exp(−r²/r_c²)) of the Lamb–Oseen vortex.
+    a = np.linspace(0.0, 2 * np.pi, 4001)
+    for radius in (0.005, 0.015, 0.06):
+        p = radius * np.column_stack([np.cos(a), np.sin(a)])
+        u = d.velocity(p)
+        tangent = radius * np.column_stack([-np.sin(a), np.cos(a)])
+        integrand = np.einsum("ij,ij->i", u, tangent)
+        circ = np.sum(0.5 * (integrand[1:] + integrand[:-1]) * np.diff(a))
+        assert np.isclose(circ, d.enclosed_circulation(radius), rtol=1e-10)
+    # The grid holds the field at its nodes, [i, j] at (grid_x[i], grid_y[j]).
+    assert np.allclose(d.grid_velocity[10, 60], d.velocity([[d.grid_x[10], d.grid_y[60]]])[0])
+
+
+# -- the demo command ---------------------------------------------------------------------------
+
+PROMISED = [
+    "report.md",
+    "summary.csv",
+    "checks.csv",
+    "drone_samples.parquet",
+    "ev_samples.parquet",
+    "ev_resampled.parquet",
+    "tracers_samples.parquet",
+    "drone_path.png",
+    "drone_profile.png",
+    "ev_path.png",
+    "ev_profile.png",
+    "ev_gg.png",
+    "ev_work.png",
+    "tracers_path.png",
+]
+
+
+def report_rows(text):
+    """Key figures of report.md: name → (estimated, true) as numbers."""
+    rows = {}
+    for line in text.splitlines():
+        cells = [c.strip() for c in line.strip().strip("|").split("|")]
+        if len(cells) == 6 and cells[0] not in ("key figure", "---"):
+            rows[cells[0]] = (float(cells[1].split()[0]), float(cells[2].split()[0]))
+    return rows
+
+
+@pytest.fixture(scope="module")
+def demo_run(tmp_path_factory):
+    out = tmp_path_factory.mktemp("demo") / "report"
+    proc = subprocess.run(
+        [sys.executable, "-m", "osculate.cli", "demo", "--out", str(out)],
+        capture_output=True,
+        text=True,
+        timeout=300,
+    )
+    return out, proc
+
+
+def test_demo_exits_0_and_writes_every_file(demo_run):
+    out, proc = demo_run
+    assert proc.returncode == 0, proc.stderr
+    assert "report written to" in proc.stdout
+    assert "local codes and licensed engineers decide" in proc.stdout
+    for name in PROMISED:
+        assert (out / name).stat().st_size > 0, name
+    for name in PROMISED:
+        if name.endswith(".png"):
+            assert (out / name).read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
+    import pyarrow.parquet as pq
+
+    table = pq.read_table(out / "ev_samples.parquet")
+    assert {"track", "t", "speed", "curvature", "flags", "work", "power"} <= set(table.column_names)
+    assert table.num_rows == len(demo.spiral_loop().t)  # every logged row, none dropped
+
+
+def test_demo_finishes_within_30_seconds(demo_run):
+    out, _ = demo_run
+    took = float(re.search(r"in ([0-9.]+) s\.", (out / "report.md").read_text()).group(1))
+    assert took < 30.0
+
+
+def test_report_states_scenarios_methods_and_cautions(demo_run):
+    out, _ = demo_run
+    text = " ".join((out / "report.md").read_text().split())
+    for phrase in (
+        "Survey drone",
+        "Electric vehicle",
+        "Tracer particles",
+        'method="smooth"',
+        "invented",
+        "indicative",
+        "local codes and licensed engineers decide",
+        "Every key figure is within its stated tolerance",
+        "comes from no code or standard",
+    ):
+        assert phrase in text, phrase
+
+
+def test_report_estimates_match_the_ground_truth(demo_run):
+    out, _ = demo_run
+    rows = report_rows((out / "report.md").read_text())
+    f, e, d = demo.survey_flight(), demo.spiral_loop(), demo.swirl_tracers()
+
+    def est(prefix):
+        hits = [v for k, v in rows.items() if k.startswith(prefix)]
+        assert len(hits) == 1, (prefix, list(rows))
+        return hits[0][0]
+
+    # Survey drone, truth from the flight plan: R = 30 m, v = 6 m/s, a_n = v²/R = 1.2 m/s².
+    assert abs(est("turn radius") / f.turn_radius - 1) < 0.02
+    assert abs(est("centripetal acceleration in turns") / (6.0**2 / 30.0) - 1) < 0.03
+    assert abs(est("cruise speed") / f.cruise_speed - 1) < 0.01
+    assert abs(est("length of the flight path") / f.length - 1) < 0.01
+    # Electric vehicle, truth from the loop's geometry and the logged force's model.
+    assert abs(est("bend radius") / 35.0 - 1) < 0.02
+    assert abs(est("clothoid rate") / (1 / (35.0 * 40.0)) - 1) < 0.05
+    lap = int(re.search(r"length of lap (\d)", " ".join(rows)).group(1))
+    assert abs(est("length of lap") / e.lap_distance[lap] - 1) < 0.005
+    lap = int(re.search(r"resistance force, lap (\d)", " ".join(rows)).group(1))
+    assert abs(est("work of the resistance force") / e.drag_work[lap] - 1) < 0.01
+    # Tracers: per-track median errors in percent; circulation Γ(1 − exp(−r²/r_c²)).
+    assert 0 <= est("radius of curvature") < 2.0
+    assert 0 <= est("speed: median") < 1.0
+    for r_mm in (10, 20, 50):
+        truth = d.enclosed_circulation(r_mm / 1000)
+        assert (
+            abs(est(f"circulation of the gridded field, circle r = {r_mm} mm") / truth - 1) < 0.01
+        )
+
+
+def test_checks_csv_agrees_with_the_report(demo_run):
+    out, _ = demo_run
+    rows = report_rows((out / "report.md").read_text())
+    with (out / "checks.csv").open() as fh:
+        checks = list(csv.DictReader(fh))
+    assert len(checks) == len(rows) == 14
+    for c in checks:
+        est, true = rows[c["figure"]]
+        assert np.isclose(float(c["estimated"]), est, rtol=1e-4)
+        assert np.isclose(float(c["true"]), true, rtol=1e-4, atol=1e-12)
+        assert c["within"] == "True"
+
+
+def test_summary_has_one_row_per_track(demo_run):
+    out, _ = demo_run
+    with (out / "summary.csv").open() as fh:
+        rows = list(csv.DictReader(fh))
+    counts = {}
+    for r in rows:
+        counts[r["scenario"]] = counts.get(r["scenario"], 0) + 1
+    assert counts == {"survey drone": 1, "electric vehicle": 3, "tracer particles": 240}
+    assert {"length", "min_radius", "max_accel_normal", "smoothing"} <= set(rows[0])
+
+
+BLOCK_EXTRAS = textwrap.dedent(
+    """
+    import sys
+    for name in ("matplotlib", "pandas", "pyarrow"):
+        sys.modules[name] = None  # as on a numpy-only install: importing them fails
+    from osculate.cli import main
+    sys.exit(main(["demo", "--out", sys.argv[1]]))
+    """
+)
+
+
+def test_demo_on_a_numpy_only_install(tmp_path):
+    out = tmp_path / "plain"
+    proc = subprocess.run(
+        [sys.executable, "-c", BLOCK_EXTRAS, str(out)],
+        capture_output=True,
+        text=True,
+        timeout=300,
+    )
+    assert proc.returncode == 0, proc.stderr
+    assert "pip install 'osculate[plot]'" in proc.stdout
+    names = {p.name for p in out.iterdir()}
+    assert not any(n.endswith((".png", ".parquet")) for n in names)
+    for stem in ("drone_samples", "ev_samples", "ev_resampled", "tracers_samples"):
+        assert (out / f"{stem}.csv").stat().st_size > 0
+    text = (out / "report.md").read_text()
+    assert "No figures: they need matplotlib, `pip install 'osculate[plot]'`" in text
+    assert "local codes and licensed engineers decide" in " ".join(text.split())
+    with (out / "ev_samples.csv").open() as fh:
+        assert sum(1 for _ in fh) == len(demo.spiral_loop().t) + 1
+
+
+def test_check_arithmetic():
+    c = demo.Check("s", "x", "m", estimated=29.3, true=30.0, tolerance=0.02)
+    assert np.isclose(c.error, -0.7 / 30) and c.passed is False
+    c = demo.Check("s", "x", "m", estimated=29.41, true=30.0, tolerance=0.02)
+    assert c.passed
+    c = demo.Check("s", "x", "%", estimated=2.5, true=0.0, tolerance=2.0, relative=False)
+    assert c.error == 2.5 and not c.passed
+    c = demo.Check("s", "x", "m", estimated=float("nan"), true=1.0, tolerance=0.5)
+    assert not c.passed
+
+
+def test_oval_loop_with_exact_positions():
+    # The oval of demo.test_loop, exact positions: 4th-order finite differences give the bend
+    # radius of the generator (40 m) to 0.1 % inside the bends, away from the jumps of curvature.
+    import osculate as osc
+
+    d = demo.test_loop(laps=2)
+    k = osc.kinematics(d.t, d.xy, tracks=d.lap, order=4)
+    inner = d.in_bend & np.roll(d.in_bend, 4) & np.roll(d.in_bend, -4)
+    inner &= ~k.flagged(osc.Flag.EDGE | osc.Flag.GAP)
+    assert abs(np.median(k.radius[inner]) / d.bend_radius - 1) < 1e-3
+    assert np.abs(k.speed - d.speed).max() < 1e-3  # m/s, against the generator's speed law

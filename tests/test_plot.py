@@ -1,0 +1,376 @@
+"""osculate.plot: every function on 2-D, 3-D and flagged results; figures say what they show."""
+
+import matplotlib
+
+matplotlib.use("Agg")  # set here, in the test, not in the package
+
+import numpy as np
+import osculate as osc
+import pytest
+from matplotlib.backends.backend_agg import FigureCanvasAgg
+from matplotlib.collections import PolyCollection
+from matplotlib.figure import Figure
+from matplotlib.patches import Circle
+from matplotlib.quiver import Quiver
+from osculate import plot
+
+G = 9.80665  # standard gravity, m/s² (SI brochure; 3rd CGPM 1901)
+
+
+def circle_2d():
+    # Uniform circular motion, radius 50 m at 0.3 rad/s: v = 15 m/s, a_n = v²/r = 4.5 m/s².
+    t = np.linspace(0.0, 20.0, 401)
+    xy = 50.0 * np.column_stack([np.cos(0.3 * t), np.sin(0.3 * t)])
+    return osc.kinematics(t, xy, order=4)
+
+
+def helix_3d():
+    # Helix (a cos t, a sin t, c t), a = 2, c = 0.5: κ = a/(a²+c²) = 0.4706, τ = c/(a²+c²).
+    t = np.linspace(0.0, 12.0, 600)
+    xyz = np.column_stack([2 * np.cos(t), 2 * np.sin(t), 0.5 * t])
+    return osc.kinematics(t, xyz, up=(0, 0, 1), order=4)
+
+
+def flagged_2d():
+    """Two tracks: a stop, a straight, a long time step, a NaN row; EDGE at the ends."""
+    t = np.linspace(0.0, 10.0, 201)
+    t = np.concatenate([t[:120], t[120:] + 4.0])  # a 4 s hole: GAP
+    x = np.where(t < 3, 0.0, (t - 3) ** 3 / 3.0)  # at rest, then moving off: STOPPED
+    y = np.where(t > 8, 0.5 * (t - 8) ** 2, 0.0)  # straight until t = 8: STRAIGHT
+    xy = np.column_stack([x, y])
+    xy[60] = np.nan  # INVALID
+    u = np.linspace(0.0, 6.0, 80)
+    other = np.column_stack([10 * np.cos(0.4 * u), 10 * np.sin(0.4 * u)])
+    k = osc.kinematics(
+        np.concatenate([t, u]),
+        np.vstack([xy, other]),
+        tracks=np.repeat(["a", "b"], [len(t), len(u)]),
+        method="smooth",
+        min_speed=0.05,
+    )
+    return k
+
+
+def flagged_3d():
+    t = np.linspace(0.0, 8.0, 161)
+    z = np.where(t < 2, 0.0, (t - 2) ** 3)  # a vertical take-off from rest
+    xyz = np.column_stack([np.where(t > 5, (t - 5) ** 3, 0.0), 0 * t, z])
+    xyz[100] = np.nan
+    return osc.kinematics(t, xyz, min_speed=0.05)
+
+
+RESULTS = {
+    "2d": circle_2d,
+    "3d": helix_3d,
+    "2d-flagged": flagged_2d,
+    "3d-flagged": flagged_3d,
+}
+
+
+@pytest.fixture(params=list(RESULTS), ids=list(RESULTS))
+def result(request):
+    return RESULTS[request.param]()
+
+
+def pixels(fig):
+    canvas = FigureCanvasAgg(fig)
+    canvas.draw()
+    return np.asarray(canvas.buffer_rgba())
+
+
+def assert_png(p, path):
+    p.savefig(path)
+    data = path.read_bytes()
+    assert data[:8] == b"\x89PNG\r\n\x1a\n" and len(data) > 10_000
+    img = pixels(p.figure)
+    assert (img[..., :3] < 200).any(), "the figure is blank"
+
+
+def test_flagged_fixtures_carry_every_flag():
+    k = flagged_2d()
+    for flag in osc.Flag:
+        assert k.flagged(flag).any(), flag
+    assert flagged_3d().flagged(osc.Flag.STOPPED | osc.Flag.INVALID).any()
+
+
+def call(name, k):
+    if name == "work":
+        # Constant 2 N along x: W(s) along the path is 2·(x − x₀) (∫F·dr of a constant force).
+        x = k.position[:, 0]
+        return plot.work(k, values=2.0 * (x - x[0]))
+    return getattr(plot, name)(k)
+
+
+@pytest.mark.parametrize("name", ["path", "profile", "gg", "work"])
+def test_every_function_draws_a_figure(name, result, tmp_path):
+    p = call(name, result)
+    assert isinstance(p, plot.Plot)
+    assert isinstance(p.figure, Figure)
+    fig, axes = p  # unpacks like (fig, ax)
+    assert fig is p.figure and axes is p.axes
+    assert_png(p, tmp_path / f"{name}.png")
+
+
+def test_no_pyplot_state(tmp_path):
+    import matplotlib.pyplot as plt
+
+    before = plt.get_fignums()
+    for name in ("path", "profile", "gg", "work"):
+        call(name, circle_2d())
+    assert plt.get_fignums() == before
+
+
+def test_lazy_attribute_and_png_repr():
+    assert osc.plot is plot
+    png = plot.gg(circle_2d())._repr_png_()
+    assert png[:4] == b"\x89PNG"
+
+
+def test_draws_into_given_axes():
+    fig = Figure()
+    ax = fig.add_subplot()
+    p = plot.path(circle_2d(), ax=ax)
+    assert p.figure is fig and p.axes is ax
+    axes = Figure().subplots(2, 1)
+    p = plot.profile(circle_2d(), quantities=["speed", "curvature"], ax=axes)
+    assert list(p.axes) == list(axes)
+    with pytest.raises(osc.InputError, match="ax: expected 3 axes"):
+        plot.profile(circle_2d(), quantities=["speed", "curvature", "torsion"], ax=axes)
+
+
+# -- path ---------------------------------------------------------------------------------------
+
+
+def test_path_labels_and_colour_bar_units():
+    p = plot.path(circle_2d(), color="curvature")
+    assert (p.axes.get_xlabel(), p.axes.get_ylabel()) == ("x [m]", "y [m]")
+    cbar = p.figure.axes[-1]
+    assert cbar.get_ylabel() == "curvature κ [1/m]"
+    p = plot.path(helix_3d(), color="speed", units={"length": "km", "time": "h"})
+    assert p.axes.get_zlabel().startswith("z [km]")
+    assert p.figure.axes[-1].get_ylabel() == "speed v [km/h]"
+    p = plot.path(helix_3d(), color="torsion", units={"torsion": "rad/m"})
+    assert p.figure.axes[-1].get_ylabel() == "torsion τ [rad/m]"
+
+
+def test_path_colour_limits_are_robust_and_say_so():
+    k = circle_2d()
+    values = np.linspace(1.0, 2.0, len(k))
+    values[200:202] = 1e3  # an isolated spike, as curvature shows near a stop
+    p = plot.path(k, color=values, label="value")
+    lc = p.axes.collections[0]
+    assert 1.9 < lc.norm.vmax < 2.0  # clipped at the 99th percentile of the segments ...
+    assert lc.colorbar.extend == "max"  # ... and the colour bar says so with an arrow
+    exact = plot.path(k, color="speed")  # constant speed: nothing to clip, a narrow band
+    norm = exact.axes.collections[0].norm
+    assert exact.axes.collections[0].colorbar.extend == "neither"
+    assert norm.vmin < 15.0 < norm.vmax and norm.vmax - norm.vmin < 0.2
+
+
+def test_path_frame_glyphs_every_n_metres():
+    k = circle_2d()  # arc length 50 · 0.3 · 20 = 300 m; the polyline through the samples is
+    assert 299.9 < k.arclength[-1] < 300.0  # inscribed, a little shorter
+    p = plot.path(k, frames_every=50.0)
+    quivers = [c for c in p.axes.collections if isinstance(c, Quiver)]
+    assert len(quivers) == 2  # T and N in 2-D
+    # Glyphs at the first sample past s = 0, 50, ..., 250 m: 6 places.
+    assert {len(q.X) for q in quivers} == {6}
+    legend = [t.get_text() for t in p.axes.get_legend().get_texts()]
+    assert "Frenet frame every 50 m" in legend and "N (normal)" in legend
+    p3 = plot.path(helix_3d(), frames_every=5.0)
+    labels = [t.get_text() for t in p3.figure.legends[0].get_texts()]
+    assert {"T (tangent)", "N (normal)", "B (binormal)"} <= set(labels)
+    with pytest.raises(osc.InputError, match="frames_every"):
+        plot.path(k, frames_every=-1.0)
+
+
+def test_path_tangent_glyphs_point_along_the_motion():
+    k = circle_2d()
+    p = plot.path(k, frames_every=100.0)
+    t_glyph = next(c for c in p.axes.collections if isinstance(c, Quiver))
+    got = np.column_stack([t_glyph.U, t_glyph.V])
+    got /= np.linalg.norm(got, axis=1)[:, None]
+    s = k.arclength
+    rows = [int(np.argmax(s >= m)) for m in (0.0, 100.0, 200.0)]
+    assert np.allclose(got, k.tangent[rows], atol=1e-12)
+
+
+def test_path_undefined_values_are_grey_and_named():
+    p = plot.path(flagged_2d(), color="torsion")  # planar: torsion NaN where no normal
+    labels = [t.get_text() for t in p.axes.get_legend().get_texts()]
+    assert "undefined" in labels
+
+
+def test_path_colour_by_array_and_errors():
+    k = circle_2d()
+    p = plot.path(k, color=np.arange(len(k)), label="sample number")
+    assert p.figure.axes[-1].get_ylabel() == "sample number"
+    with pytest.raises(osc.InputError, match="color: expected 401 values"):
+        plot.path(k, color=np.arange(3))
+    with pytest.raises(osc.InputError, match="unknown or unavailable result 'colour'"):
+        plot.path(k, color="colour")
+    with pytest.raises(TypeError, match="Kinematics or a pandas DataFrame"):
+        plot.path(np.zeros((3, 2)))
+
+
+# -- profile ------------------------------------------------------------------------------------
+
+
+def test_profile_panels_share_x_and_carry_units():
+    p = plot.profile(helix_3d(), quantities=["speed", "curvature", "torsion", "jerk"])
+    labels = [a.get_ylabel() for a in p.axes]
+    assert labels == ["speed v [m/s]", "curvature κ [1/m]", "torsion τ [1/m]", "|jerk| [m/s³]"]
+    assert p.axes[-1].get_xlabel() == "arc length s [m]"
+    assert all(a.get_shared_x_axes().joined(a, p.axes[0]) for a in p.axes)
+    p = plot.profile(helix_3d(), x="time", units={"time": "min"})
+    assert p.axes[-1].get_xlabel() == "time t [min]"
+    assert p.axes[0].get_ylabel() == "speed v [m/min]"
+
+
+def test_profile_shades_flags_and_names_them():
+    k = flagged_2d()
+    p = plot.profile(k, x="time")
+    names = {t.get_text().split(":")[0] for t in p.figure.legends[0].get_texts()}
+    assert {"STOPPED", "STRAIGHT", "EDGE", "GAP", "INVALID", "track a", "track b"} <= names
+    shades = [c for c in p.axes[0].collections if isinstance(c, PolyCollection)]
+    assert len(shades) == 5
+    # The STOPPED shading covers the rest at the start, 0 ≤ t < 3 s, and nothing past t = 3.5.
+    stopped = shades[0].get_paths()
+    xs = np.concatenate([path.vertices[:, 0] for path in stopped])
+    assert xs.min() <= 0.0 + 1e-9 and 2.5 < xs.max() < 3.5
+    only = plot.profile(k, flags=osc.Flag.GAP)
+    names = {t.get_text().split(":")[0] for t in only.figure.legends[0].get_texts()}
+    assert "GAP" in names and "STOPPED" not in names
+    bare = plot.profile(k, flags=False)
+    assert not [c for c in bare.axes[0].collections if isinstance(c, PolyCollection)]
+
+
+def test_profile_errors():
+    with pytest.raises(osc.InputError, match="x: expected 'arclength' or 'time'"):
+        plot.profile(circle_2d(), x="distance")
+    with pytest.raises(osc.InputError, match="quantities: expected at least one"):
+        plot.profile(circle_2d(), quantities=[])
+
+
+# -- g-g ----------------------------------------------------------------------------------------
+
+
+def test_gg_values_in_standard_gravity():
+    # Uniform circular motion: a_n = v²/r = 15²/50 = 4.5 m/s² (closed form), a_t = 0, left turn.
+    p = plot.gg(circle_2d())
+    xy = np.asarray(p.axes.collections[0].get_offsets())
+    assert np.allclose(np.median(xy[:, 0]), 4.5 / G, rtol=1e-6)
+    assert np.allclose(xy[:, 1], 0.0, atol=1e-6)
+    assert p.axes.get_xlabel() == "lateral acceleration, left turn + [g]"
+    assert p.axes.get_ylabel() == "longitudinal acceleration a_t, speeding up + [g]"
+
+
+def test_gg_right_turn_is_negative_and_unsigned_without_up():
+    t = np.linspace(0.0, 20.0, 401)
+    xy = 50.0 * np.column_stack([np.cos(-0.3 * t), np.sin(-0.3 * t)])  # clockwise: right turn
+    p = plot.gg(osc.kinematics(t, xy, order=4))
+    assert np.allclose(
+        np.median(np.asarray(p.axes.collections[0].get_offsets())[:, 0]), -4.5 / G, rtol=1e-6
+    )
+    t = np.linspace(0.0, 12.0, 600)
+    k = osc.kinematics(t, np.column_stack([2 * np.cos(t), 2 * np.sin(t), 0.5 * t]))  # no up
+    assert plot.gg(k).axes.get_xlabel() == "|a_n| = κv² (unsigned) [g]"
+
+
+def texts(fig):
+    import matplotlib.text
+
+    return " ".join(t.get_text() for t in fig.findobj(matplotlib.text.Text))
+
+
+def test_gg_limits_need_a_source_and_carry_the_caution():
+    k = circle_2d()
+    assert "licensed engineers" not in texts(plot.gg(k).figure)  # no limits, no comparison
+    p = plot.gg(k, limits=[(0.3, "source A"), (0.5, "source B")])
+    circles = [c for c in p.axes.patches if isinstance(c, Circle)]
+    assert sorted(c.get_radius() for c in circles) == [0.3, 0.5]
+    words = " ".join(texts(p.figure).split())
+    assert "indicative only" in words and "local codes and licensed engineers decide" in words
+    assert "0.3 g from source A" in words and "0.5 g from source B" in words
+    p = plot.gg(k, limits={"source C": 0.4}, ax=Figure().add_subplot())
+    words = " ".join(texts(p.figure).split())
+    assert "licensed engineers decide" in words and "0.4 g from source C" in words
+    for bad in ([(0.3, "")], [(0.3, None)], [0.3], [(-1.0, "x")], [{"value": 0.2}]):
+        with pytest.raises(osc.InputError, match="limits"):
+            plot.gg(k, limits=bad)
+    with pytest.raises(osc.InputError, match="needs metres and seconds"):
+        plot.gg(k, units={"length": "km"})
+
+
+def test_gg_marks_less_reliable_samples():
+    p = plot.gg(flagged_2d())
+    labels = [t.get_text() for t in p.axes.get_legend().get_texts()]
+    assert any(lab.startswith("flagged") for lab in labels)
+
+
+# -- work ---------------------------------------------------------------------------------------
+
+
+def test_work_from_values_and_from_a_force():
+    # A constant force F = (2, 1) N along a straight path from (0, 0) to (20, 0): W = 40 J.
+    t = np.linspace(0.0, 10.0, 21)
+    xy = np.column_stack([2 * t, 0 * t])
+    k = osc.kinematics(t, xy)
+    force = np.tile([2.0, 1.0], (21, 1))
+    p = plot.work(k, force)
+    assert p.axes.get_legend().get_texts()[0].get_text() == "total 40 J"
+    assert p.axes.get_ylabel() == "cumulative work W [J]"
+    line = p.axes.collections[0]
+    ys = np.concatenate([seg[:, 1] for seg in line.get_segments()])
+    assert np.isclose(ys.max(), 40.0) and np.isclose(ys.min(), 0.0)
+    p = plot.work(k, values=2 * k.arclength, x="time", units={"energy": "kJ"})
+    assert p.axes.get_xlabel() == "time t [s]" and p.axes.get_ylabel() == "cumulative work W [kJ]"
+    with pytest.raises(osc.InputError, match="values, force"):
+        plot.work(k)
+    with pytest.raises(osc.InputError, match="values: expected 21 values"):
+        plot.work(k, values=[1.0, 2.0])
+
+
+def test_work_totals_per_track():
+    k = flagged_2d()
+    # W = 1 N along the arc length of each track: totals are the track lengths.
+    p = plot.work(k, values=k.arclength)
+    labels = [t.get_text() for t in p.axes.get_legend().get_texts()]
+    summary = k.summary_arrays()
+    want = [f"track {lab}: total {plot._si(v, 'J')}" for lab, v in zip("ab", summary["length"])]
+    assert labels == want
+
+
+# -- pandas input -------------------------------------------------------------------------------
+
+
+def test_accessor_frames_plot_like_kinematics(tmp_path):
+    import pandas as pd
+
+    t = np.linspace(0.0, 20.0, 401)
+    df = pd.DataFrame(
+        {
+            "car": np.repeat(["p", "q"], [200, 201]),
+            "time": pd.Timestamp("2026-01-01", tz="UTC") + pd.to_timedelta(t, unit="s"),
+            "x": 50 * np.cos(0.3 * t),
+            "y": 50 * np.sin(0.3 * t),
+        }
+    )
+    res = df.osc.kinematics(time="time", position=["x", "y"], by="car", keep=True)
+    p = plot.path(res, color="speed", by="car", frames_every=40.0)
+    assert p.axes.get_xlabel() == "x [m]"
+    assert_png(p, tmp_path / "df_path.png")
+    p = plot.profile(res, x="time", by="car")
+    assert p.axes[-1].get_xlabel() == "time t [s]"
+    names = {t.get_text() for t in p.figure.legends[0].get_texts()}
+    assert {"track p", "track q"} <= names
+    p = plot.gg(res, by="car")
+    assert np.allclose(
+        np.median(np.asarray(p.axes.collections[0].get_offsets())[:, 0]), 4.5 / G, rtol=1e-3
+    )
+    plot.work(res, values=res["arclength"].to_numpy(), by="car", time="time")
+    with pytest.raises(osc.InputError, match="position: no column 'z'"):
+        plot.path(res, position=["x", "z"])
+    only = res.drop(columns=["x", "y"])
+    with pytest.raises(osc.InputError, match="name the position columns"):
+        plot.path(only)
