@@ -18,9 +18,9 @@ from .intrinsic import (
     frames,
     kinematics,
 )
+from .lineint import GridField, LineIntegral, line_integral, power, work
 from .paths import Path, fit
 from .reparam import Resampled, resample
-from .lineint import GridField, LineIntegral, line_integral, power, work
 
 try:  # the DataFrame.osc accessor registers itself when pandas is importable
     from . import accessor as _accessor  # noqa: F401

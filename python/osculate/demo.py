@@ -1127,9 +1127,9 @@ the middle half of each turn.
 
 def _spiral(out: Any, figs: bool, files: list[Any]) -> tuple[list[Check], str]:
     from .intrinsic import kinematics
-    from .reparam import resample
     from .lineint import power as line_power
     from .lineint import work as line_work
+    from .reparam import resample
 
     e = spiral_loop()
     k = kinematics(e.t, e.xy, method="smooth", tracks=e.lap)
