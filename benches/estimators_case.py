@@ -33,9 +33,8 @@ import time
 from typing import Any, Callable
 
 import numpy as np
-from scipy.interpolate import make_smoothing_spline
-
 import osculate as osc
+from scipy.interpolate import make_smoothing_spline
 
 SIZES = {
     False: {
@@ -98,8 +97,10 @@ def smooth_case(quick: bool) -> dict[str, Any]:
     out: dict[str, Any] = {"check_max_error_over_range": _check_same_computation()}
     for name, (m, n) in {"one_track": (1, sz["one"]), "many_tracks": (sz["tracks"], 200)}.items():
         t, x, ids = _noisy_tracks(m, n)
-        ours = _median_time(lambda: osc.kinematics(t, x, tracks=ids, method="smooth"), 3)
-        ref = _median_time(lambda: _scipy_smooth(t, x, ids), 1)
+        ours = _median_time(
+            lambda t=t, x=x, ids=ids: osc.kinematics(t, x, tracks=ids, method="smooth"), 3
+        )
+        ref = _median_time(lambda t=t, x=x, ids=ids: _scipy_smooth(t, x, ids), 1)
         out[name] = {
             "tracks": m,
             "samples_per_track": n,
@@ -114,7 +115,9 @@ def smooth_case(quick: bool) -> dict[str, Any]:
     }.items():
         if m and n:
             t, x, ids = _noisy_tracks(m, n)
-            ours = _median_time(lambda: osc.kinematics(t, x, tracks=ids, method="smooth"), 1)
+            ours = _median_time(
+                lambda t=t, x=x, ids=ids: osc.kinematics(t, x, tracks=ids, method="smooth"), 1
+            )
             out[f"osculate_only_{name}"] = {"osculate_s": ours, "samples_per_s": m * n / ours}
     worst = min(out["one_track"]["speedup"], out["many_tracks"]["speedup"])
     out["target"] = f">= {TARGETS['smooth']}x"

@@ -6,9 +6,9 @@
 //! runs inside the bracket of the two samples around s and falls back to bisection whenever a
 //! step would leave the bracket or fails to shrink it fast enough, so it always terminates.
 
-use crate::batch::partition;
+use crate::batch::{partition, CHUNK};
 use crate::error::{try_filled, KernelError, Result};
-use crate::fit::{Fits, TrackFit};
+use crate::fit::{Fits, TrackFit, LENGTH_NODES};
 use rayon::prelude::*;
 
 /// Where to put the new points along each track.
@@ -110,13 +110,22 @@ pub fn time_at_length(fit: &TrackFit, cum: &[f64], s: f64) -> f64 {
     if seg <= 0.0 {
         return a;
     }
-    let scale = cum[n - 1].max(f64::MIN_POSITIVE);
+    let tol = TOL * cum[n - 1].max(f64::MIN_POSITIVE);
     let mut t = a + (b - a) * ((s - cum[j]) / seg).clamp(0.0, 1.0);
     let mut buf = [0.0; 12];
     let d = fit.dim();
+    // On splines the residual g(t) = S(t) − s is updated by the integral over each Newton step
+    // (short steps need few nodes), on interval j without any search; other fits evaluate S(t).
+    let poly = match fit {
+        TrackFit::Poly { poly, .. } => Some(poly),
+        _ => None,
+    };
+    let mut g = match poly {
+        Some(p) => cum[j] + p.length_on(j, ts[j], t, LENGTH_NODES) - s,
+        None => fit.length_to(cum, t) - s,
+    };
     for _ in 0..MAX_ITER {
-        let g = fit.length_to(cum, t) - s;
-        if g.abs() <= TOL * scale {
+        if g.abs() <= tol {
             return t;
         }
         if g > 0.0 {
@@ -124,14 +133,29 @@ pub fn time_at_length(fit: &TrackFit, cum: &[f64], s: f64) -> f64 {
         } else {
             a = t;
         }
-        fit.at_time(t, &mut buf[..4 * d]);
+        match poly {
+            Some(p) => p.eval_on(j, t, 1, &mut buf[..2 * d]),
+            None => fit.at_time(t, &mut buf[..4 * d]),
+        }
         let v = buf[d..2 * d].iter().map(|x| x * x).sum::<f64>().sqrt();
         let newton = t - g / v;
-        t = if v > 0.0 && newton > a && newton < b {
+        let next = if v > 0.0 && newton > a && newton < b {
             newton
         } else {
             0.5 * (a + b)
         };
+        g = match poly {
+            Some(p) => {
+                let nodes = if (next - t).abs() < 1e-3 * (ts[j + 1] - ts[j]) {
+                    3
+                } else {
+                    LENGTH_NODES
+                };
+                g + p.length_on(j, t, next, nodes)
+            }
+            None => fit.length_to(cum, next) - s,
+        };
+        t = next;
         if b - a <= 4.0 * f64::EPSILON * b.abs().max(a.abs()) {
             return t;
         }
@@ -207,7 +231,18 @@ pub fn resample(
         extra: try_filled(total * ncols, f64::NAN)?,
         lengths: plan.iter().map(|p| p.2).collect(),
     };
-    let sizes = || (0..m).map(|k| offsets[k + 1] - offsets[k]);
+    // Jobs of at most CHUNK points, so that one long track also runs in parallel.
+    let mut jobs: Vec<(usize, std::ops::Range<usize>)> = Vec::new();
+    for k in 0..m {
+        let mut a = 0;
+        let len = offsets[k + 1] - offsets[k];
+        while a < len {
+            let b = (a + CHUNK).min(len);
+            jobs.push((k, a..b));
+            a = b;
+        }
+    }
+    let sizes = || jobs.iter().map(|(_, r)| r.len());
     let ts_parts = partition(&mut out.t[..], sizes());
     let x_parts = partition(&mut out.x[..], sizes().map(|c| c * d));
     let e_parts = partition(&mut out.extra[..], sizes().map(|c| c * ncols));
@@ -217,17 +252,17 @@ pub fn resample(
         .zip(x_parts)
         .zip(e_parts)
         .zip(s_parts)
-        .enumerate()
-        .for_each(|(k, (((to, xo), eo), so))| {
-            let (s, cum, _) = &plan[k];
-            let fit = &fits.tracks[k];
-            let rows = fits.offsets[k]..fits.offsets[k + 1];
+        .zip(jobs.par_iter())
+        .for_each(|((((to, xo), eo), so), (k, range))| {
+            let (s, cum, _) = &plan[*k];
+            let fit = &fits.tracks[*k];
+            let rows = fits.offsets[*k]..fits.offsets[*k + 1];
             let (tk, ek) = (
                 &t[rows.clone()],
                 &extra[rows.start * ncols..rows.end * ncols],
             );
             let mut buf = [0.0; 12];
-            for (j, &sj) in s.iter().enumerate() {
+            for (j, &sj) in s[range.clone()].iter().enumerate() {
                 let tj = time_at_length(fit, cum, sj);
                 so[j] = sj;
                 to[j] = tj;
