@@ -116,14 +116,18 @@ impl PiecewisePoly {
         let (k, dim) = (self.order, self.dim);
         let u = t - self.x[i];
         let c = &self.coef[i * k * dim..(i + 1) * k * dim];
-        for nu in 0..=nu_max {
-            for d in 0..dim {
-                // Horner on the nu-th derivative: Σ_{p≥nu} p!/(p−nu)! c_p u^(p−nu).
-                let mut acc = 0.0;
-                for p in (nu..k).rev() {
-                    acc = acc * u + falling(p, nu) * c[p * dim + d];
+        for d in 0..dim {
+            // Horner's rule carrying the Taylor coefficients p[r] = f^(r)(u) / r! along.
+            let mut p = [0.0; 4];
+            for q in (0..k).rev() {
+                for r in (1..=nu_max).rev() {
+                    p[r] = p[r] * u + p[r - 1];
                 }
-                out[nu * dim + d] = acc;
+                p[0] = p[0] * u + c[q * dim + d];
+            }
+            const FACT: [f64; 4] = [1.0, 1.0, 2.0, 6.0];
+            for nu in 0..=nu_max {
+                out[nu * dim + d] = p[nu] * FACT[nu];
             }
         }
     }
@@ -148,16 +152,6 @@ impl PiecewisePoly {
         }
         s * half
     }
-}
-
-/// p!/(p−nu)! for small p.
-#[inline]
-fn falling(p: usize, nu: usize) -> f64 {
-    let mut f = 1.0;
-    for j in 0..nu {
-        f *= (p - j) as f64;
-    }
-    f
 }
 
 #[cfg(test)]

@@ -5,7 +5,22 @@ import numpy as np
 import numpy.typing as npt
 
 __version__: str
-__all__: list[str]
+__all__ = [
+    "FittedPaths",
+    "InputError",
+    "__version__",
+    "enu_to_geodetic",
+    "fd_kinematics",
+    "fit_paths",
+    "geodetic_to_enu",
+    "grid_eval",
+    "line_integral_grid",
+    "line_integral_sampled",
+    "line_integral_values",
+    "polyline_arclength",
+    "rotation_minimizing",
+    "segment_nodes",
+]
 
 class InputError(ValueError):
     argument: str
