@@ -4,6 +4,30 @@ use crate::batch::{self, partition, track_rows};
 use crate::error::{try_filled, KernelError, Result};
 use rayon::prelude::*;
 
+/// Euclidean length of the difference of two points without spurious over- or underflow: the
+/// plain sum of squares unless it leaves the comfortable range, then rescaled by the largest
+/// component.
+#[inline]
+pub fn distance(p: &[f64], q: &[f64]) -> f64 {
+    let s2: f64 = p.iter().zip(q).map(|(a, b)| (a - b) * (a - b)).sum();
+    if s2 > 1e-280 && s2 < 1e280 {
+        return s2.sqrt();
+    }
+    let m = p
+        .iter()
+        .zip(q)
+        .fold(0.0f64, |m, (a, b)| m.max((a - b).abs()));
+    if m == 0.0 || !m.is_finite() {
+        return m;
+    }
+    m * p
+        .iter()
+        .zip(q)
+        .map(|(a, b)| ((a - b) / m) * ((a - b) / m))
+        .sum::<f64>()
+        .sqrt()
+}
+
 /// Cumulative polyline length of every row from the first finite row of its track.
 ///
 /// Rows with a non-finite coordinate get NaN and are stepped over: the next finite row continues
@@ -73,6 +97,14 @@ mod tests {
         let s = polyline(&x, 2, &[0, n as i64 + 1]).unwrap();
         let exact = 2.0 * n as f64 * (std::f64::consts::PI / n as f64).sin();
         assert_relative_eq!(s[n], exact, max_relative = 1e-12);
+    }
+
+    #[test]
+    fn distance_does_not_overflow() {
+        // 3-4-5 triangle scaled by 2^±700: exact scaling of the closed form.
+        for s in [2f64.powi(700), 2f64.powi(-700)] {
+            assert_eq!(distance(&[0.0, 0.0], &[3.0 * s, 4.0 * s]), 5.0 * s);
+        }
     }
 
     #[test]

@@ -4,7 +4,7 @@
 //! several jobs) and the jobs run on the rayon pool. Every job writes to its own disjoint slices of
 //! the output, obtained safely with `split_at_mut` through [`SplitRows`].
 
-use crate::error::{KernelError, Result};
+use crate::error::{try_collect, KernelError, Result};
 use rayon::prelude::*;
 use std::ops::Range;
 
@@ -123,14 +123,14 @@ pub fn check_times(t: &[f64], offsets: &[usize], need: usize, method: &'static s
 }
 
 /// Median of the time steps of one track (0 for a single sample).
-pub fn median_step(t: &[f64]) -> f64 {
+pub fn median_step(t: &[f64]) -> Result<f64> {
     if t.len() < 2 {
-        return 0.0;
+        return Ok(0.0);
     }
-    let mut dt: Vec<f64> = t.windows(2).map(|w| w[1] - w[0]).collect();
+    let mut dt = try_collect(t.len() - 1, t.windows(2).map(|w| w[1] - w[0]))?;
     let mid = dt.len() / 2;
     let (_, m, _) = dt.select_nth_unstable_by(mid, |a, b| a.total_cmp(b));
-    *m
+    Ok(*m)
 }
 
 /// A bundle of output slices over the same rows that can be cut in two at a row.
@@ -217,8 +217,8 @@ mod tests {
 
     #[test]
     fn median_of_steps() {
-        assert_eq!(median_step(&[0.0, 1.0, 2.0, 10.0]), 1.0);
-        assert_eq!(median_step(&[5.0]), 0.0);
+        assert_eq!(median_step(&[0.0, 1.0, 2.0, 10.0]).unwrap(), 1.0);
+        assert_eq!(median_step(&[5.0]).unwrap(), 0.0);
     }
 
     #[test]

@@ -170,3 +170,15 @@ pub fn try_zeroed(len: usize) -> Result<Vec<f64>> {
         Ok(Vec::from_raw_parts(p, len, len))
     }
 }
+
+/// Collect an iterator into a vector reserved fallibly for `len` items (an upper bound of what the
+/// iterator yields), or [`KernelError::OutOfMemory`] instead of an abort.
+pub fn try_collect<T, I: IntoIterator<Item = T>>(len: usize, items: I) -> Result<Vec<T>> {
+    let mut v = Vec::new();
+    v.try_reserve_exact(len)
+        .map_err(|_| KernelError::OutOfMemory {
+            bytes: len.saturating_mul(std::mem::size_of::<T>()),
+        })?;
+    v.extend(items);
+    Ok(v)
+}

@@ -482,6 +482,12 @@ pub fn fit_batch(
 /// Derivative `nu` (0..=3) of every track at times `t` grouped by track with `query_offsets`
 /// (row-major, `dim` columns). NaN for non-finite times and invalid tracks.
 pub fn evaluate(fits: &Fits, t: &[f64], query_offsets: &[i64], nu: usize) -> Result<Vec<f64>> {
+    if nu > 3 {
+        return Err(KernelError::Option {
+            argument: "nu",
+            detail: format!("must be 0, 1, 2 or 3, got {nu}"),
+        });
+    }
     let q = crate::batch::check_query_offsets(query_offsets, t.len(), fits.tracks.len())?;
     let d = fits.dim;
     let mut out = crate::error::try_filled(t.len() * d, f64::NAN)?;

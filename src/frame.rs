@@ -104,6 +104,40 @@ pub fn frenet(
     up: Option<&Vector3<f64>>,
     th: &Thresholds,
 ) -> Frenet {
+    // The formulas multiply derivatives together (|r′|³, |r′ × r″|²), which over- or underflows
+    // long before the inputs do. Scaling space by a power of two around |r′| is exact, and the
+    // apparatus is scale-covariant: T, N, B, ω, dω/dt do not change, lengths and accelerations
+    // scale with space, curvature and torsion inversely.
+    let big = d1.amax();
+    // |r′ × r″|² ~ |r′|⁴: beyond 1e±30 the squares come near the ends of the range.
+    if !(big > 0.0 && big.is_finite()) || (1e-30..=1e30).contains(&big) {
+        return frenet_unscaled(d1, d2, d3, up, th);
+    }
+    let e = big.log2().floor() as i32;
+    let s = 2f64.powi(-e);
+    let th_s = Thresholds {
+        min_speed: th.min_speed * s,
+        min_curvature: th.min_curvature / s,
+    };
+    let mut f = frenet_unscaled(&(d1 * s), &(d2 * s), &(d3 * s), up, &th_s);
+    f.speed /= s;
+    f.accel_tangential /= s;
+    f.accel_normal /= s;
+    f.curvature *= s;
+    f.signed_curvature *= s;
+    f.torsion *= s;
+    f.radius /= s;
+    f
+}
+
+#[inline]
+fn frenet_unscaled(
+    d1: &Vector3<f64>,
+    d2: &Vector3<f64>,
+    d3: &Vector3<f64>,
+    up: Option<&Vector3<f64>>,
+    th: &Thresholds,
+) -> Frenet {
     let nan = f64::NAN;
     let nanv = Vector3::from_element(nan);
     let speed = d1.norm();
@@ -214,6 +248,27 @@ mod tests {
         assert_eq!(f.curvature, 0.0);
         assert_eq!(f.accel_tangential, 3.0);
         assert!(f.normal[0].is_nan() && f.torsion.is_nan());
+    }
+
+    #[test]
+    fn scale_covariant_far_beyond_the_square_root_of_the_range() {
+        // Scaling space by 2^p is exact: κ, τ scale by 2^−p, speeds and accelerations by 2^p
+        // (closed form for the helix), even where |r′|³ alone would over- or underflow.
+        let [d1, d2, d3] = helix(2.0, 0.5, 0.7);
+        let th = Thresholds {
+            min_speed: 0.0,
+            min_curvature: 0.0,
+        };
+        let base = frenet(&d1, &d2, &d3, None, &th);
+        for p in [-600, -300, 300, 600] {
+            let s = 2f64.powi(p);
+            let f = frenet(&(d1 * s), &(d2 * s), &(d3 * s), None, &th);
+            assert_eq!(f.flags, 0, "p = {p}");
+            assert_relative_eq!(f.curvature, base.curvature / s, max_relative = 1e-14);
+            assert_relative_eq!(f.torsion, base.torsion / s, max_relative = 1e-14);
+            assert_relative_eq!(f.speed, base.speed * s, max_relative = 1e-14);
+            assert_relative_eq!(f.angular_speed, base.angular_speed, max_relative = 1e-14);
+        }
     }
 
     #[test]

@@ -7,7 +7,7 @@
 
 use crate::batch::{self, partition, plan_jobs, track_rows, SplitRows};
 use crate::diff::{derivatives_at, reach, FdOrder};
-use crate::error::{try_filled, try_zeroed, KernelError, Result};
+use crate::error::{try_collect, try_filled, try_zeroed, KernelError, Result};
 use crate::fit::Fits;
 use crate::frame::{flag, frenet, Thresholds};
 use nalgebra::Vector3;
@@ -201,7 +201,13 @@ fn check_options(opts: &Options) -> Result<Option<Vector3<f64>>> {
     match opts.up {
         None => Ok(None),
         Some(u) => {
-            let u = Vector3::from(u);
+            // Scale by the largest component first: a direction may be given with huge numbers.
+            let big = u.iter().fold(0.0f64, |a, v| a.max(v.abs()));
+            let u = if big > 0.0 && big.is_finite() {
+                Vector3::from(u) / big
+            } else {
+                Vector3::from(u)
+            };
             let norm = u.norm();
             if norm.is_nan() || norm == 0.0 || norm.is_infinite() {
                 return Err(KernelError::Option {
@@ -277,14 +283,14 @@ fn run<const D: usize>(
             let gap_dt = if has_invalid {
                 f64::NAN // decided on the compacted track
             } else {
-                opts.gap_factor * batch::median_step(&t[rows])
+                opts.gap_factor * batch::median_step(&t[rows])?
             };
-            TrackPrep {
+            Ok(TrackPrep {
                 gap_dt,
                 has_invalid,
-            }
+            })
         })
-        .collect();
+        .collect::<Result<Vec<_>>>()?;
 
     let mut out = Kinematics::alloc_zeroed(n, D)?;
     let jobs = plan_jobs(&offsets, |k| prep[k].has_invalid);
@@ -358,7 +364,8 @@ fn of_fits_dim<const D: usize>(fits: &Fits, opts: &Options) -> Result<Kinematics
         if tf.is_empty() {
             return;
         }
-        let gap_dt = opts.gap_factor * batch::median_step(tf);
+        // A failed allocation here only loses the GAP flags of this track.
+        let gap_dt = opts.gap_factor * batch::median_step(tf).unwrap_or(f64::INFINITY);
         let row_of = |j: usize| kept.map_or(j, |r| r[j]);
         let nf = tf.len();
         let step_is_gap = |j: usize| {
@@ -524,12 +531,7 @@ fn dense<const D: usize>(
         let ds = if i == 0 {
             0.0
         } else {
-            let mut ds2 = 0.0;
-            for k in 0..D {
-                let d = x[i * D + k] - x[(i - 1) * D + k];
-                ds2 += d * d;
-            }
-            ds2.sqrt()
+            crate::arclength::distance(&x[i * D..(i + 1) * D], &x[(i - 1) * D..i * D])
         };
         let flags = if edge { flag::EDGE } else { 0 } | if gap { flag::GAP } else { 0 };
         let s = Sample {
@@ -552,9 +554,10 @@ fn compacted<const D: usize>(
     up: Option<&Vector3<f64>>,
     mut out: Rows<'_>,
 ) -> Result<()> {
-    let valid: Vec<usize> = (0..t.len())
-        .filter(|&i| x[i * D..(i + 1) * D].iter().all(|v| v.is_finite()))
-        .collect();
+    let valid = try_collect(
+        t.len(),
+        (0..t.len()).filter(|&i| x[i * D..(i + 1) * D].iter().all(|v| v.is_finite())),
+    )?;
     for i in 0..t.len() {
         out.fill_nan(i);
         out.flags[i] = flag::INVALID;
@@ -563,13 +566,15 @@ fn compacted<const D: usize>(
     if m < opts.order.min_samples() {
         return Ok(()); // too few finite rows: the whole track stays NaN and INVALID
     }
-    let tv: Vec<f64> = valid.iter().map(|&i| t[i]).collect();
-    let xv: Vec<f64> = valid
-        .iter()
-        .flat_map(|&i| x[i * D..(i + 1) * D].iter().copied())
-        .collect();
-    let holes: Vec<bool> = valid.windows(2).map(|w| w[1] - w[0] > 1).collect();
-    let gap_dt = opts.gap_factor * batch::median_step(&tv);
+    let tv = try_collect(m, valid.iter().map(|&i| t[i]))?;
+    let xv = try_collect(
+        m * D,
+        valid
+            .iter()
+            .flat_map(|&i| x[i * D..(i + 1) * D].iter().copied()),
+    )?;
+    let holes = try_collect(m, valid.windows(2).map(|w| w[1] - w[0] > 1))?;
+    let gap_dt = opts.gap_factor * batch::median_step(&tv)?;
     let mut tmp = Kinematics::alloc(m, D)?;
     dense::<D>(&tv, &xv, 0..m, opts, up, gap_dt, Some(&holes), tmp.rows());
     for (j, &i) in valid.iter().enumerate() {

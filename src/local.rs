@@ -60,9 +60,11 @@ fn window_rows(t: &[f64], tc: f64, i: Option<usize>, window: Window) -> (usize, 
             (lo, lo + w, lo + w / 2 != c)
         }
         Window::Span(s) => {
-            let lo = t.partition_point(|&v| v < tc - 0.5 * s);
-            let hi = t.partition_point(|&v| v <= tc + 0.5 * s);
-            (lo, hi, tc - 0.5 * s < t[0] || tc + 0.5 * s > t[n - 1])
+            // Outside the track the end window is used (the fit then extrapolates).
+            let tw = tc.clamp(t[0], t[n - 1]);
+            let lo = t.partition_point(|&v| v < tw - 0.5 * s);
+            let hi = t.partition_point(|&v| v <= tw + 0.5 * s);
+            (lo, hi, tw - 0.5 * s < t[0] || tw + 0.5 * s > t[n - 1])
         }
         Window::Auto => unreachable!("resolved before use"),
     }
@@ -82,8 +84,12 @@ fn fit_at(
     out: &mut [f64],
 ) -> Option<f64> {
     let q = p + 1;
+    // An empty or too small window (a time span away from every sample) has no fit.
+    if hi <= lo || hi - lo < q {
+        return None;
+    }
     let scale = (t[lo] - tc).abs().max((t[hi - 1] - tc).abs());
-    if scale.is_nan() || scale <= 0.0 || hi - lo < q {
+    if scale.is_nan() || scale <= 0.0 {
         return None;
     }
     let mut a = [[0.0; MAX_DEGREE + 1]; MAX_DEGREE + 1];
@@ -363,6 +369,20 @@ mod tests {
             Window::Samples(w) => assert!(w > 7, "window {w}"),
             _ => panic!(),
         }
+    }
+
+    #[test]
+    fn span_window_far_outside_uses_the_end_window() {
+        // Found by cargo fuzz: a time span around a query far outside the track held no sample.
+        // A line is reproduced exactly, so the extrapolation is exact too.
+        let t: Vec<f64> = (0..10).map(|i| i as f64).collect();
+        let x: Vec<f64> = t.iter().map(|v| 3.0 * v - 1.0).collect();
+        let f = local(&t, &x, 1, 1, Window::Span(2.0)).unwrap();
+        let mut out = [0.0; 4];
+        f.eval(20.0, &mut out);
+        assert_relative_eq!(out[0], 59.0, max_relative = 1e-12);
+        f.eval(-20.0, &mut out);
+        assert_relative_eq!(out[0], -61.0, max_relative = 1e-12);
     }
 
     #[test]

@@ -1,10 +1,10 @@
 """Findings of the stress harness (test_properties.py::test_stress_harness_...) and of the
 cargo-fuzz targets (fuzz/), each pinned by a minimal reproducer.
 
-Bugs not yet fixed are strict xfails: the day a fix lands the test XPASSes, which fails the run
-(xfail_strict), and the marker and the matching entry of KNOWN_BUGS come out together. The
-cargo-fuzz targets found no crash (see benches/fuzz.sh); the allocation-failure aborts are pinned in
-test_huge.py.
+Every finding here is fixed; each test keeps it fixed. A new finding goes in as a strict xfail
+with a matching entry of KNOWN_BUGS (the exceptions the stress harness lets through until then),
+and both come out with the fix. The one crash cargo fuzz found (local fits with a time window far
+outside the track) is replayed by benches/fuzz.sh from fuzz/regressions/.
 """
 
 from __future__ import annotations
@@ -23,18 +23,7 @@ X = np.column_stack([T, T**2, np.sin(T)])
 # conversions of option values, numpy's conversion of a ragged id list, and the overflow warning of
 # Kinematics.summary_arrays. Everything else that is not InputError, TypeError or MemoryError fails
 # the harness.
-KNOWN_BUGS = (
-    (ValueError, r"could not convert string to float|invalid literal for int\(\)"),
-    (ValueError, r"cannot convert float NaN to integer"),
-    (ValueError, r"setting an array element with a sequence"),
-    (
-        OverflowError,
-        r"int too large to convert to float|too large to convert to C long|int too big to convert"
-        r"|can't convert negative int to unsigned|cannot convert float infinity to integer",
-    ),
-    (RuntimeWarning, r"overflow encountered in (square|multiply|reduce)"),
-    (getattr(np, "exceptions", np).ComplexWarning, r"Casting complex values to real"),
-)
+KNOWN_BUGS: tuple[tuple[type[BaseException], str], ...] = ()
 
 
 def known_bug(exc: BaseException) -> bool:
@@ -42,10 +31,6 @@ def known_bug(exc: BaseException) -> bool:
     return any(type(exc) is kind and re.search(msg, str(exc)) for kind, msg in KNOWN_BUGS)
 
 
-BUG_OPTIONS = "bug: options are converted with float()/int() without checking the type"
-
-
-@pytest.mark.xfail(strict=True, reason="bug: order goes through int(): 2.7 -> 2, '4' -> 4")
 @pytest.mark.parametrize("order", [2.7, 4.0, "4", np.float64(2.0)])
 def test_order_must_be_an_integer(order):
     # Like `degree` and `window`, `order` is an integer option: a float or a string is a TypeError
@@ -54,7 +39,6 @@ def test_order_must_be_an_integer(order):
         osc.kinematics(T, X, order=order)
 
 
-@pytest.mark.xfail(strict=True, reason=BUG_OPTIONS)
 @pytest.mark.parametrize(
     "kw",
     [
@@ -75,7 +59,6 @@ def test_non_numeric_option_is_a_type_error_naming_it(kw):
         osc.kinematics(T, X, **kw)
 
 
-@pytest.mark.xfail(strict=True, reason=BUG_OPTIONS)
 @pytest.mark.parametrize(
     "kw",
     [
@@ -93,7 +76,6 @@ def test_huge_integer_option_is_an_input_error_naming_it(kw):
         osc.kinematics(T, X, **kw)
 
 
-@pytest.mark.xfail(strict=True, reason="bug: nu reaches the PyO3 usize conversion unchecked")
 @pytest.mark.parametrize("nu", [-1, 2**70])
 def test_path_derivative_order_out_of_range(nu):
     # nu = 9 already gives InputError("nu: must be 0, 1, 2 or 3"); -1 and 2**70 give OverflowError.
@@ -102,29 +84,29 @@ def test_path_derivative_order_out_of_range(nu):
         path([1.0], nu=nu)
 
 
-@pytest.mark.xfail(strict=True, reason="bug: numpy's ValueError for ragged ids passes through")
 def test_ragged_track_ids_are_an_input_error():
     ids = [[1], [1, 2]] + [[0]] * 8
     with pytest.raises(osc.InputError, match=r"^tracks: "):
         osc.kinematics(T, X, tracks=ids)
 
 
-@pytest.mark.xfail(strict=True, reason="bug: summary_arrays squares the jerk (overflow warning)")
 def test_summary_of_huge_coordinates_is_exact_and_silent():
     # Scaling space by 2^660 (~5e198) is exact, so every length-like summary figure scales by
     # exactly 2^660 (scaling of the Frenet apparatus, any differential geometry text) and nothing
-    # overflows: |jerk| ~ 1e200 is far below the float range. Observed: RuntimeWarning "overflow
-    # encountered in square" from sqrt(sum(jerk**2)). Tolerance: none.
+    # overflows: |jerk| ~ 1e200 is far below the float range. Was: RuntimeWarning "overflow
+    # encountered in square" from sqrt(sum(jerk**2)), and an infinite polyline length. The
+    # thresholds are 0 because min_curvature is in the data's units (1e-6 would make the scaled
+    # path STRAIGHT, by design). Tolerance: none.
     lam = 2.0**660
-    base = osc.kinematics(T, X).summary_arrays()
+    kw = {"min_speed": 0.0, "min_curvature": 0.0}
+    base = osc.kinematics(T, X, **kw).summary_arrays()
     with warnings.catch_warnings():
         warnings.simplefilter("error")
-        big = osc.kinematics(T, X * lam).summary_arrays()
+        big = osc.kinematics(T, X * lam, **kw).summary_arrays()
     for name in ("length", "max_speed", "max_accel_normal", "max_abs_jerk"):
         np.testing.assert_array_equal(big[name], base[name] * lam, err_msg=name)
 
 
-@pytest.mark.xfail(strict=True, reason="bug: frame::frenet squares r', r' x r'' (over/underflow)")
 @pytest.mark.parametrize("power", [-600, -300, 300, 600])
 def test_frenet_apparatus_is_scale_covariant_over_the_exponent_range(power):
     # Scaling space by 2^p is exact and the apparatus is scale-covariant (any differential geometry
@@ -146,7 +128,6 @@ def test_frenet_apparatus_is_scale_covariant_over_the_exponent_range(power):
     np.testing.assert_allclose(big.tangent, base.tangent, rtol=1e-13, atol=1e-15)
 
 
-@pytest.mark.xfail(strict=True, reason="bug: |up| overflows before it is normalized")
 def test_up_direction_with_huge_components():
     # `up` is a direction; (1e308, 1e308, 1e308) is finite and points along (1, 1, 1). Observed:
     # InputError "up: must be a finite non-zero vector". Expected: the signed curvature about
@@ -156,16 +137,12 @@ def test_up_direction_with_huge_components():
     np.testing.assert_allclose(got, want, rtol=4 * np.finfo(float).eps, atol=0)
 
 
-@pytest.mark.xfail(strict=True, reason="bug: uint64 offsets are cast to int64 unchecked")
 def test_unsigned_offsets_beyond_int64_are_named_as_given():
     # Observed: "offsets: must end at the number of rows 10, ends at -1" for 2**64 - 1.
     with pytest.raises(osc.InputError, match=r"18446744073709551615"):
         osc.kinematics(T, X, offsets=np.array([0, 2**64 - 1], dtype=np.uint64))
 
 
-@pytest.mark.xfail(
-    strict=True, reason="bug (cargo fuzz, target fit): local::fit_at indexes an empty window"
-)
 @pytest.mark.parametrize("where", [20.0, -20.0])
 def test_local_fit_with_a_time_window_outside_the_track(where):
     # Found by the `fit` fuzz target: local::window_rows gives an empty row range for a query
@@ -183,7 +160,6 @@ def test_local_fit_with_a_time_window_outside_the_track(where):
     np.testing.assert_allclose(k.velocity, [[1.0, 2 * where]], rtol=1e-6)
 
 
-@pytest.mark.xfail(strict=True, reason="bug: Path scalar queries skip the dtype check of arrays")
 @pytest.mark.parametrize(
     "query",
     [np.complex128(1.0), "abc", None, True, np.datetime64(1, "s")],
@@ -201,8 +177,9 @@ def test_path_scalar_query_is_checked_like_an_array(query):
 
 
 def test_known_bug_filter_is_narrow():
-    # The harness's tolerance list must not swallow the failures it exists to catch.
+    # The harness's tolerance list must not swallow the failures it exists to catch; with every
+    # finding fixed it lets nothing through.
     assert not known_bug(RuntimeError("osculate internal error"))
     assert not known_bug(ValueError("positions: something else"))
     assert not known_bug(OverflowError("some other overflow"))
-    assert known_bug(ValueError("could not convert string to float: 'x'"))
+    assert not known_bug(ValueError("could not convert string to float: 'x'"))

@@ -171,23 +171,8 @@ def run_out_of_memory(fn, headroom_mb, nan_row=False):
         ("derivatives", 64, False),
         ("arclength", 4, False),  # 8 MB of output
         ("kinematics", 64, True),  # a track with a NaN row
-        pytest.param(
-            "kinematics",
-            4,
-            False,
-            marks=pytest.mark.xfail(
-                strict=True, reason="bug: batch::median_step collects 8n bytes infallibly"
-            ),
-        ),
-        pytest.param(
-            "kinematics",
-            270,
-            True,
-            marks=pytest.mark.xfail(
-                strict=True,
-                reason="bug: kinematics::compacted collects valid/tv/xv/holes infallibly",
-            ),
-        ),
+        ("kinematics", 4, False),  # was: batch::median_step collected 8n bytes infallibly
+        ("kinematics", 270, True),  # was: kinematics::compacted collected its copies infallibly
     ],
 )
 def test_impossible_allocation_raises_memory_error(fn, headroom_mb, nan_row):

@@ -8,7 +8,7 @@ import numpy as np
 import numpy.typing as npt
 
 from . import _core
-from ._validate import Grouping, call_kernel
+from ._validate import Grouping, as_int, as_real, call_kernel
 
 __all__ = ["FIT_METHODS", "METHODS", "EstimatorOptions", "fit_core"]
 
@@ -62,7 +62,9 @@ class EstimatorOptions:
                     f"{name}: does not apply to method={method!r} (it takes {sorted(allowed)})"
                 )
         self.method = method
-        self.order = 2 if order is None else int(order)
+        self.order = 2 if order is None else as_int("order", order, 2, 4)
+        if self.order not in (2, 4):
+            raise _core.InputError(f"order: must be 2 or 4, got {self.order}")
         self.bc = "not-a-knot" if bc is None else bc
         if self.bc not in _BCS:
             raise _core.InputError(f"bc: expected one of {_BCS}, got {bc!r}")
@@ -70,17 +72,17 @@ class EstimatorOptions:
             raise _core.InputError('bc_velocity: give it exactly when bc="clamped"')
         self.bc_velocity = bc_velocity
         default_degree = 5 if method == "smooth" else 4
-        self.degree = default_degree if degree is None else _int("degree", degree)
+        self.degree = default_degree if degree is None else as_int("degree", degree, 0, 10**6)
         if method == "smooth" and self.degree not in (3, 5):
             raise _core.InputError(f"degree: must be 3 or 5 for method='smooth', got {degree}")
         if method == "local" and not 1 <= self.degree <= 5:
             raise _core.InputError(f"degree: must be 1 to 5 for method='local', got {degree}")
-        self.smoothing = None if smoothing is None else float(smoothing)
-        self.noise = None if noise is None else float(noise)
+        self.smoothing = None if smoothing is None else as_real("smoothing", smoothing)
+        self.noise = None if noise is None else as_real("noise", noise)
         self.weights = weights
-        self.window = None if window is None else _int("window", window)
-        self.window_span = None if window_span is None else float(window_span)
-        self.derivative = 2 if derivative is None else _int("derivative", derivative)
+        self.window = None if window is None else as_int("window", window, 1, 2**62)
+        self.window_span = None if window_span is None else as_real("window_span", window_span)
+        self.derivative = 2 if derivative is None else as_int("derivative", derivative, 0, 3)
 
     def describe(self) -> str:
         """Short human-readable summary, e.g. ``smooth (degree 5)``."""
@@ -91,12 +93,6 @@ class EstimatorOptions:
         if self.method == "linear":
             return "linear"
         return f"{self.method} (degree {self.degree})"
-
-
-def _int(name: str, value: Any) -> int:
-    if isinstance(value, (bool, np.bool_)) or not isinstance(value, (int, np.integer)):
-        raise TypeError(f"{name}: expected an integer, got {value!r}")
-    return int(value)
 
 
 def _end_velocities(v: Any, dim: int) -> tuple[list[float], list[float]]:

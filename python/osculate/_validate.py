@@ -13,7 +13,15 @@ import numpy.typing as npt
 
 from ._core import InputError
 
-__all__ = ["Grouping", "as_positions", "as_times", "call_kernel", "group_rows"]
+__all__ = [
+    "Grouping",
+    "as_int",
+    "as_positions",
+    "as_real",
+    "as_times",
+    "call_kernel",
+    "group_rows",
+]
 
 F64 = npt.NDArray[np.float64]
 T = TypeVar("T")
@@ -34,6 +42,28 @@ def _real(name: str, value: Any) -> F64:
         }.get(kind, str(arr.dtype))
         raise TypeError(f"{name}: expected real numbers, got {what} array (dtype {arr.dtype})")
     return np.ascontiguousarray(arr, dtype=np.float64)
+
+
+def as_real(name: str, value: Any) -> float:
+    """Return a real scalar option as a float; TypeError or InputError naming it otherwise."""
+    if isinstance(value, (bool, np.bool_)) or not isinstance(value, (int, float, np.number)):
+        raise TypeError(f"{name}: expected a real number, got {value!r}")
+    if isinstance(value, (complex, np.complexfloating)):
+        raise TypeError(f"{name}: expected a real number, got {value!r}")
+    try:
+        return float(value)
+    except OverflowError:
+        raise InputError(f"{name}: {value!r} is too large") from None
+
+
+def as_int(name: str, value: Any, low: int, high: int) -> int:
+    """Return an integer option within [low, high]; TypeError or InputError naming it otherwise."""
+    if isinstance(value, (bool, np.bool_)) or not isinstance(value, (int, np.integer)):
+        raise TypeError(f"{name}: expected an integer, got {value!r}")
+    v = int(value)
+    if not low <= v <= high:
+        raise InputError(f"{name}: must be between {low} and {high}, got {v}")
+    return v
 
 
 def as_times(t: Any, name: str = "t") -> F64:
@@ -100,11 +130,18 @@ def group_rows(n: int, tracks: Any = None, offsets: Any = None) -> Grouping:
             raise TypeError(f"offsets: expected integers, got dtype {off.dtype}")
         if off.ndim != 1:
             raise InputError(f"offsets: expected a 1-D array, got shape {off.shape}")
+        if off.dtype.kind == "u" and off.size and off.max() > np.iinfo(np.int64).max:
+            raise InputError(f"offsets: {int(off.max())} is beyond any row count")
         off = np.ascontiguousarray(off, dtype=np.int64)
         return Grouping(off, None, np.arange(max(len(off) - 1, 0)))
     if tracks is None:
         return Grouping(np.array([0, n], dtype=np.int64), None, np.array([0]))
-    ids = np.asarray(tracks)
+    try:
+        ids = np.asarray(tracks)
+    except ValueError as exc:  # ragged nested sequences
+        raise InputError(
+            f"tracks: expected one id per row, got a ragged sequence ({exc})"
+        ) from None
     if ids.ndim != 1 or len(ids) != n:
         raise InputError(f"tracks: expected one id per row ({n}), got shape {ids.shape}")
     if n == 0:

@@ -10,7 +10,7 @@ import numpy.typing as npt
 
 from . import _core
 from ._estimators import EstimatorOptions, fit_core
-from ._validate import Grouping, as_positions, as_times, call_kernel, group_rows
+from ._validate import Grouping, as_positions, as_real, as_times, call_kernel, group_rows
 from .flags import Flag
 
 __all__ = [
@@ -204,7 +204,7 @@ class Kinematics:
             "max_abs_accel_tangential": reduce(np.fmax, np.abs(self.accel_tangential)),
             "max_accel_normal": reduce(np.fmax, self.accel_normal),
             "min_radius": reduce(np.fmin, self.radius),
-            "max_abs_jerk": reduce(np.fmax, np.sqrt(np.sum(self.jerk**2, axis=1))),
+            "max_abs_jerk": reduce(np.fmax, np.hypot.reduce(self.jerk, axis=1)),
             "turning_angle": np.add.reduceat(seg, starts),
             "flagged": np.add.reduceat(((k(self.flags) & not_edge) != 0).astype(np.int64), starts),
             **({} if self.fit_info is None else self.fit_info),
@@ -231,7 +231,7 @@ def _require_pandas() -> Any:
 
 
 def _threshold(name: str, value: float) -> float:
-    v = float(value)
+    v = as_real(name, value)
     if not np.isfinite(v) or v < 0:
         raise _core.InputError(f"{name}: must be finite and >= 0, got {value!r}")
     return v
@@ -247,7 +247,10 @@ def _up(up: Any, dim: int) -> tuple[float, float, float] | None:
 
 def _vector3(name: str, v: Any, dim: int) -> tuple[float, float, float]:
     """Return a vector of the path's dimension as a 3-tuple (z = 0 for planar paths)."""
-    u = np.asarray(v, dtype=float).reshape(-1)
+    raw = np.asarray(v)
+    if raw.dtype.kind not in "fiu":
+        raise TypeError(f"{name}: expected {dim} real numbers, got {v!r}")
+    u = raw.astype(float).reshape(-1)
     if u.shape != (dim,):
         raise _core.InputError(f"{name}: expected a {dim}-vector, got {v!r}")
     w = np.zeros(3)
@@ -447,7 +450,7 @@ def kinematics(
     options = {
         "min_speed": _threshold("min_speed", min_speed),
         "min_curvature": _threshold("min_curvature", min_curvature),
-        "gap_factor": float(gap_factor),
+        "gap_factor": as_real("gap_factor", gap_factor),
         "up": _up(up, x.shape[1]),
     }
     tk, xk = g.to_kernel(tt), g.to_kernel(x)

@@ -48,7 +48,7 @@ class Path:
         )
 
     def _queries(self, t: npt.ArrayLike, track: Any) -> tuple[F64, Grouping, F64]:
-        tq = np.atleast_1d(as_times(t, "t") if np.ndim(t) else np.asarray([t], dtype=float))
+        tq = as_times(np.reshape(np.asarray(t), -1) if np.ndim(t) == 0 else t, "t")
         if track is None:
             if len(self.tracks) != 1:
                 raise _core.InputError(
@@ -92,8 +92,13 @@ class Path:
         -------
         ndarray, shape (len(t), dim)
         """
+        if isinstance(nu, (bool, np.bool_)) or not isinstance(nu, (int, np.integer)):
+            raise TypeError(f"nu: expected an integer, got {nu!r}")
+        if not 0 <= int(nu) <= 3:
+            raise _core.InputError(f"nu: must be 0, 1, 2 or 3, got {nu}")
+        nu = int(nu)
         _, g, tk = self._queries(t, track)
-        out = call_kernel(g, self._fitted.evaluate, tk, g.offsets, int(nu))
+        out = call_kernel(g, self._fitted.evaluate, tk, g.offsets, nu)
         return g.to_caller(out)
 
     def kinematics(
