@@ -55,3 +55,16 @@ where
 pub fn contiguous<'a, T>(name: &str, s: Result<&'a [T], numpy::AsSliceError>) -> PyResult<&'a [T]> {
     s.map_err(|_| PyTypeError::new_err(format!("{name}: expected a C-contiguous array")))
 }
+
+/// A flat row-major vector as a NumPy array of `width` columns (a 1-D array for width 1).
+pub fn rows(
+    py: Python<'_>,
+    v: Vec<f64>,
+    width: usize,
+) -> PyResult<Bound<'_, numpy::PyArray2<f64>>> {
+    use numpy::IntoPyArray;
+    let n = v.len() / width.max(1);
+    let a = numpy::ndarray::Array2::from_shape_vec((n, width), v)
+        .map_err(|e| PyRuntimeError::new_err(e.to_string()))?;
+    Ok(a.into_pyarray(py))
+}

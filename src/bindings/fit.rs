@@ -1,6 +1,6 @@
 //! Bindings of fitted paths: spline, smoothing spline and local-polynomial estimators.
 
-use super::error::{contiguous, detached};
+use super::error::{contiguous, detached, rows};
 use super::kinematics::to_dict;
 use crate::fit::{fit_batch, Fits, Method};
 use crate::frame::Thresholds;
@@ -10,7 +10,6 @@ use crate::resample::{resample, Spacing};
 use crate::smooth::Smoothing;
 use crate::spline::EndCondition;
 use crate::KernelError;
-use numpy::ndarray::Array2;
 use numpy::{
     IntoPyArray, PyArray1, PyArray2, PyReadonlyArray1, PyReadonlyArray2, PyUntypedArrayMethods,
 };
@@ -235,9 +234,7 @@ impl FittedPaths {
             }
             crate::fit::evaluate(&self.fits, t, q, nu)
         })?;
-        let a = Array2::from_shape_vec((t.len(), d), v)
-            .map_err(|e| pyo3::exceptions::PyRuntimeError::new_err(e.to_string()))?;
-        Ok(a.into_pyarray(py))
+        rows(py, v, d)
     }
 
     /// Points at uniform arc-length `step`, or `count` points, or the arc lengths `at` on every
@@ -271,19 +268,13 @@ impl FittedPaths {
             };
             resample(&self.fits, t, e, ncols, &spacing)
         })?;
-        let total = r.t.len();
         let out = PyDict::new(py);
-        let rows = |v: Vec<f64>, w: usize| -> PyResult<Bound<'py, PyArray2<f64>>> {
-            Ok(Array2::from_shape_vec((total, w), v)
-                .map_err(|e| pyo3::exceptions::PyRuntimeError::new_err(e.to_string()))?
-                .into_pyarray(py))
-        };
         let offsets: Vec<i64> = r.offsets.iter().map(|&o| o as i64).collect();
         out.set_item("offsets", offsets.into_pyarray(py))?;
         out.set_item("s", r.s.into_pyarray(py))?;
         out.set_item("t", r.t.into_pyarray(py))?;
-        out.set_item("position", rows(r.x, d)?)?;
-        out.set_item("extra", rows(r.extra, ncols)?)?;
+        out.set_item("position", rows(py, r.x, d)?)?;
+        out.set_item("extra", rows(py, r.extra, ncols)?)?;
         out.set_item("length", r.lengths.into_pyarray(py))?;
         Ok(out)
     }
@@ -317,7 +308,6 @@ pub fn rotation_minimizing<'py>(
     initial: Option<[f64; 3]>,
 ) -> PyResult<Bound<'py, PyDict>> {
     let d = positions.shape()[1];
-    let n = positions.shape()[0];
     let x = contiguous("positions", positions.as_slice())?;
     let t = contiguous("tangent", tangent.as_slice())?;
     let nf = contiguous("frenet_normal", frenet_normal.as_slice())?;
@@ -326,13 +316,8 @@ pub fn rotation_minimizing<'py>(
         crate::rmf::rotation_minimizing(x, t, nf, d, off, initial)
     })?;
     let out = PyDict::new(py);
-    let rows = |v: Vec<f64>, w: usize| -> PyResult<Bound<'py, PyArray2<f64>>> {
-        Ok(Array2::from_shape_vec((n, w), v)
-            .map_err(|e| pyo3::exceptions::PyRuntimeError::new_err(e.to_string()))?
-            .into_pyarray(py))
-    };
-    out.set_item("normal", rows(r.normal, d)?)?;
-    out.set_item("binormal", rows(r.binormal, 3)?)?;
+    out.set_item("normal", rows(py, r.normal, d)?)?;
+    out.set_item("binormal", rows(py, r.binormal, 3)?)?;
     out.set_item("twist", r.twist.into_pyarray(py))?;
     Ok(out)
 }

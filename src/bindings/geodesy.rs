@@ -1,19 +1,15 @@
 //! Bindings of the WGS 84 geodetic ↔ east-north-up kernels.
 
-use super::error::{contiguous, detached};
+use super::error::{contiguous, detached, rows};
 use crate::geodesy::{self, Origin};
-use numpy::ndarray::Array2;
-use numpy::{IntoPyArray, PyArray2, PyReadonlyArray1, PyReadonlyArray2};
+use numpy::{PyArray2, PyReadonlyArray1, PyReadonlyArray2};
 use pyo3::prelude::*;
 
 /// ENU rows and the origins used, as returned to Python.
 type EnuAndOrigins<'py> = (Bound<'py, PyArray2<f64>>, Bound<'py, PyArray2<f64>>);
 
-fn rows3<'py>(py: Python<'py>, v: Vec<f64>) -> PyResult<Bound<'py, PyArray2<f64>>> {
-    let n = v.len() / 3;
-    let a = Array2::from_shape_vec((n, 3), v)
-        .map_err(|e| pyo3::exceptions::PyRuntimeError::new_err(e.to_string()))?;
-    Ok(a.into_pyarray(py))
+fn rows3(py: Python<'_>, v: Vec<f64>) -> PyResult<Bound<'_, PyArray2<f64>>> {
+    rows(py, v, 3)
 }
 
 /// Geodetic rows `(n, 3)` (lat°, lon°, h m) to east-north-up metres per track; returns the ENU

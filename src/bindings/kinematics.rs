@@ -1,11 +1,10 @@
 //! Bindings of the finite-difference kinematics and polyline arc length kernels.
 
-use super::error::{contiguous, detached};
+use super::error::{contiguous, detached, rows};
 use crate::diff::FdOrder;
 use crate::frame::Thresholds;
 use crate::kinematics::{kinematics, Kinematics, Options};
 use crate::KernelError;
-use numpy::ndarray::Array2;
 use numpy::{IntoPyArray, PyArray1, PyReadonlyArray1, PyReadonlyArray2, PyUntypedArrayMethods};
 use pyo3::prelude::*;
 use pyo3::types::PyDict;
@@ -16,12 +15,11 @@ fn column<'py>(
     n: usize,
     width: usize,
 ) -> PyResult<Bound<'py, PyAny>> {
+    debug_assert_eq!(v.len(), n * width);
     Ok(if width == 1 {
         v.into_pyarray(py).into_any()
     } else {
-        let a = Array2::from_shape_vec((n, width), v)
-            .map_err(|e| pyo3::exceptions::PyRuntimeError::new_err(e.to_string()))?;
-        a.into_pyarray(py).into_any()
+        rows(py, v, width)?.into_any()
     })
 }
 

@@ -1,11 +1,10 @@
 //! Bindings of the line-integral kernels (work, scalar integrals, gridded fields, nodes for
 //! Python callables).
 
-use super::error::{contiguous, detached};
+use super::error::{contiguous, detached, rows};
 use crate::field::{GridField, Outside};
 use crate::line_integral::{self, Integral, Kind, Options, Rule};
 use crate::KernelError;
-use numpy::ndarray::Array2;
 use numpy::{
     IntoPyArray, PyArray2, PyArrayDyn, PyReadonlyArray1, PyReadonlyArray2, PyReadonlyArrayDyn,
     PyUntypedArrayMethods,
@@ -45,13 +44,6 @@ fn to_dict(py: Python<'_>, r: Integral, cumulative: bool) -> PyResult<Bound<'_, 
     let skipped: Vec<i64> = r.skipped.into_iter().map(|s| s as i64).collect();
     out.set_item("skipped", skipped.into_pyarray(py))?;
     Ok(out)
-}
-
-fn rows<'py>(py: Python<'py>, v: Vec<f64>, width: usize) -> PyResult<Bound<'py, PyArray2<f64>>> {
-    let n = v.len() / width.max(1);
-    let a = Array2::from_shape_vec((n, width), v)
-        .map_err(|e| pyo3::exceptions::PyRuntimeError::new_err(e.to_string()))?;
-    Ok(a.into_pyarray(py))
 }
 
 /// Grid shape (first `grid_ndim` axes) and values per node (product of the others).
