@@ -13,6 +13,7 @@ import textwrap
 
 import numpy as np
 import osculate.demo as demo
+import osculate.report as report
 import pytest
 
 # -- generators ---------------------------------------------------------------------------------
@@ -299,13 +300,13 @@ def test_demo_on_a_numpy_only_install(tmp_path):
 
 
 def test_check_arithmetic():
-    c = demo.Check("s", "x", "m", estimated=29.3, true=30.0, tolerance=0.02)
+    c = report.Check("s", "x", "m", estimated=29.3, true=30.0, tolerance=0.02)
     assert np.isclose(c.error, -0.7 / 30) and c.passed is False
-    c = demo.Check("s", "x", "m", estimated=29.41, true=30.0, tolerance=0.02)
+    c = report.Check("s", "x", "m", estimated=29.41, true=30.0, tolerance=0.02)
     assert c.passed
-    c = demo.Check("s", "x", "%", estimated=2.5, true=0.0, tolerance=2.0, relative=False)
+    c = report.Check("s", "x", "%", estimated=2.5, true=0.0, tolerance=2.0, relative=False)
     assert c.error == 2.5 and not c.passed
-    c = demo.Check("s", "x", "m", estimated=float("nan"), true=1.0, tolerance=0.5)
+    c = report.Check("s", "x", "m", estimated=float("nan"), true=1.0, tolerance=0.5)
     assert not c.passed
 
 

@@ -14,6 +14,7 @@ MODULES = [
     "osculate.lineint",
     "osculate.flags",
     "osculate.demo",
+    "osculate.report",
     "osculate.geodesy",
     "osculate.accessor",
     "osculate.dask",

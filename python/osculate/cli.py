@@ -24,8 +24,8 @@ CAUTION = (
 
 
 def run_demo(out: Path) -> Any:
-    """Run the demo scenarios and write the report folder (see :func:`osculate.demo.run`)."""
-    from .demo import run
+    """Run the demo scenarios and write the report folder (see :func:`osculate.report.run`)."""
+    from .report import run
 
     return run(out)
 
