@@ -9,7 +9,9 @@ Jobs (``spec["job"]``):
     Build the inputs; call each implementation once (warm-up), then in rounds, every
     implementation once per round in a rotating order (so that a change of load on a shared
     machine hits them alike); report per implementation the median, the spread, and per call the
-    minor page faults and user / system CPU time from getrusage.
+    minor page faults and user / system CPU time from getrusage. Before each call, freed heap
+    memory goes back to the OS, so no implementation gets pages another one faulted in: every
+    call pays for its fresh memory as in a fresh process.
 ``memory``
     One implementation, one call: the growth of the resident set during it (its peak, VmHWM,
     reset through /proc/self/clear_refs just before the call, after freed heap memory went back
@@ -217,65 +219,78 @@ def job_memory(spec: Mapping[str, Any]) -> dict[str, Any]:
     }
 
 
-def job_time(spec: Mapping[str, Any]) -> dict[str, Any]:
-    """Time several implementations on the same inputs, interleaved (module docstring).
+def job_time(spec: Mapping[str, Any]) -> list[dict[str, Any]]:
+    """Time several runs (an implementation on a data set), interleaved (module docstring).
 
-    One warm-up call each, then rounds in which every implementation is called once, the order
-    rotating from round to round, so that a change of load on a shared machine hits all alike.
+    ``spec["runs"]`` lists ``{"impl": ..., "data": ...}``. One warm-up call each, then rounds in
+    which every run is called (a short one several times, so that each run fills a comparable
+    slot), the order rotating from round to round, so that a change of load on a shared machine
+    hits all runs alike.
     """
-    t, x, offsets = make_inputs(spec["data"])
-    impls = list(spec["impls"])
-    fns = {impl: implementation(impl, t, x, offsets) for impl in impls}
-    calls: dict[str, list[tuple[float, float, float, int]]] = {impl: [] for impl in impls}
-    first: dict[str, float] = {}
-    digest: dict[str, Optional[str]] = {}
+    inputs: dict[str, tuple[np.ndarray, np.ndarray, np.ndarray]] = {}
+    for run in spec["runs"]:
+        key = json.dumps(run["data"], sort_keys=True)
+        if key not in inputs:
+            inputs[key] = make_inputs(run["data"])
+    runs = [(run["impl"], inputs[json.dumps(run["data"], sort_keys=True)]) for run in spec["runs"]]
+    fns = [implementation(impl, *data) for impl, data in runs]
+    calls: list[list[tuple[float, float, float, int]]] = [[] for _ in runs]
 
-    def call(impl: str) -> tuple[float, Any]:
+    def call(i: int) -> Any:
         gc.collect()
+        _release_free_heap()  # every call starts from the same allocator state, whatever ran before
         u0, s0, f0 = _usage()
         t0 = time.perf_counter()
-        out = fns[impl]()
+        out = fns[i]()
         elapsed = time.perf_counter() - t0
         u1, s1, f1 = _usage()
-        calls[impl].append((elapsed, u1 - u0, s1 - s0, f1 - f0))
-        return elapsed, out
+        calls[i].append((elapsed, u1 - u0, s1 - s0, f1 - f0))
+        return out
 
-    for impl in impls:
-        first[impl], out = call(impl)
-        digest[impl] = _digest(out) if spec.get("digest") else None
+    digests: list[Optional[str]] = []
+    for i in range(len(runs)):
+        out = call(i)
+        digests.append(_digest(out) if spec.get("digest") else None)
         del out
-        calls[impl].clear()
+    first = [c[0][0] for c in calls]
+    for c in calls:
+        c.clear()
 
+    slot = max(first)
+    per_round = [max(1, min(25, int(slot / f))) for f in first]
     budget = float(spec.get("budget_s", 5.0))
-    rounds = budget / sum(first.values())
+    rounds = budget / sum(k * f for k, f in zip(per_round, first))
     rounds = int(min(spec.get("max_repeats", 15), max(spec.get("min_repeats", 3), rounds)))
+    order = list(range(len(runs)))
     for r in range(rounds):
-        k = r % len(impls)
-        for impl in impls[k:] + impls[:k]:
-            _, out = call(impl)
-            del out
+        k = r % len(order)
+        for i in order[k:] + order[:k]:
+            for _ in range(per_round[i]):
+                call(i)  # the outputs are dropped at once
 
-    results = {}
-    for impl in impls:
-        times = [c[0] for c in calls[impl]]
+    results = []
+    for i, (impl, (t, _, offsets)) in enumerate(runs):
+        times = [c[0] for c in calls[i]]
         median = statistics.median(times)
-        results[impl] = {
-            "impl": impl,
-            "samples": len(t),
-            "tracks": len(offsets) - 1,
-            "repeats": rounds,
-            "median_s": median,
-            "min_s": min(times),
-            "max_s": max(times),
-            "times_s": times,
-            "first_call_s": first[impl],
-            "samples_per_s": len(t) / median,
-            "user_s_per_call": statistics.median(c[1] for c in calls[impl]),
-            "sys_s_per_call": statistics.median(c[2] for c in calls[impl]),
-            "minor_faults_per_call": statistics.median(c[3] for c in calls[impl]),
-            "digest": digest[impl],
-            "rayon_threads": os.environ.get("RAYON_NUM_THREADS", "default"),
-        }
+        results.append(
+            {
+                "impl": impl,
+                "samples": len(t),
+                "tracks": len(offsets) - 1,
+                "repeats": len(times),
+                "median_s": median,
+                "min_s": min(times),
+                "max_s": max(times),
+                "times_s": times,
+                "first_call_s": first[i],
+                "samples_per_s": len(t) / median,
+                "user_s_per_call": statistics.median(c[1] for c in calls[i]),
+                "sys_s_per_call": statistics.median(c[2] for c in calls[i]),
+                "minor_faults_per_call": statistics.median(c[3] for c in calls[i]),
+                "digest": digests[i],
+                "rayon_threads": os.environ.get("RAYON_NUM_THREADS", "default"),
+            }
+        )
     return results
 
 

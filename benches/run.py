@@ -38,6 +38,7 @@ import argparse
 import json
 import os
 import platform
+import statistics
 import subprocess
 import sys
 import tempfile
@@ -63,6 +64,7 @@ FULL: dict[str, Any] = {
     "scaling_sizes": [10_000, 30_000, 100_000, 300_000, 1_000_000, 3_000_000, 10_000_000],
     "budget_s": 6.0,
     "min_repeats": 3,
+    "thread_rounds": 3,
 }
 QUICK: dict[str, Any] = {
     "quick": True,
@@ -71,6 +73,7 @@ QUICK: dict[str, Any] = {
     "scaling_sizes": [10_000, 30_000, 100_000, 300_000],
     "budget_s": 0.5,
     "min_repeats": 2,
+    "thread_rounds": 2,
 }
 
 TARGETS = {
@@ -135,50 +138,84 @@ def log(msg: str) -> None:
 _MEASURED: dict[str, dict[str, Any]] = {}
 
 
-def measured(
-    impls: list[str],
-    data: dict[str, Any],
+def _label(data: dict[str, Any]) -> str:
+    if data["kind"] == "one":
+        return f"1 x {data['n']:.0e}"
+    return f"{data['m']} x ~{data.get('mean_len', 200)}"
+
+
+def timed_runs(
+    runs: list[tuple[str, dict[str, Any]]],
     cfg: dict[str, Any],
     *,
     env: dict[str, str] | None = None,
-    memory: bool = True,
     digest: bool = False,
-) -> dict[str, dict[str, Any]]:
-    """Timings of ``impls`` on ``data``, interleaved in one fresh process, and (``memory``) the
-    peak memory of each in a fresh process of its own."""
+    budget_s: float | None = None,
+) -> list[dict[str, Any]]:
+    """Time (implementation, data) runs interleaved in one fresh process (``measure.job_time``)."""
+    t0 = time.perf_counter()
+    load = os.getloadavg()[0] if hasattr(os, "getloadavg") else float("nan")
+    spec = {
+        "job": "time",
+        "runs": [{"impl": impl, "data": data} for impl, data in runs],
+        "budget_s": cfg["budget_s"] if budget_s is None else budget_s,
+        "min_repeats": cfg["min_repeats"],
+        "digest": digest,
+    }
+    results = in_subprocess(spec, env=env)
+    for r, (_, data) in zip(results, runs):
+        r["data"] = data
+        r["load_average_before"] = load
+    same = all(data == runs[0][1] for _, data in runs)
+    what = ", ".join(
+        f"{impl}{'' if same else f' {_label(data)}'} {r['median_s']:.4f} s"
+        for r, (impl, data) in zip(results, runs)
+    )
+    where = f"{_label(runs[0][1])}: " if same else ""
+    log(f"  {where}{what}{f' {env}' if env else ''} ({time.perf_counter() - t0:.1f} s)")
+    return results
+
+
+def measured(impls: list[str], data: dict[str, Any], cfg: dict[str, Any]) -> dict[str, Any]:
+    """``impls`` on ``data``: timed side by side in one process, and the peak memory of each in
+    a fresh process of its own; what this run already measured is reused."""
 
     def key(impl: str) -> str:
-        return json.dumps([impl, data, env], sort_keys=True)
+        return json.dumps([impl, data], sort_keys=True)
 
     missing = [impl for impl in impls if key(impl) not in _MEASURED]
     if missing:
-        t0 = time.perf_counter()
-        load = os.getloadavg()[0] if hasattr(os, "getloadavg") else float("nan")
-        spec = {
-            "job": "time",
-            "impls": missing,
-            "data": data,
-            "budget_s": cfg["budget_s"],
-            "min_repeats": cfg["min_repeats"],
-            "digest": digest,
-        }
-        results = in_subprocess(spec, env=env)
-        for impl in missing:
-            if memory:
-                mem = {"job": "memory", "impl": impl, "data": data}
-                results[impl].update(in_subprocess(mem, env=env))
-            results[impl]["data"] = data
-            results[impl]["load_average_before"] = load
-            _MEASURED[key(impl)] = results[impl]
-        medians = ", ".join(f"{i} {results[i]['median_s']:.4f} s" for i in missing)
-        log(f"  {data}{f' {env}' if env else ''}: {medians} ({time.perf_counter() - t0:.1f} s)")
+        for impl, r in zip(missing, timed_runs([(impl, data) for impl in missing], cfg)):
+            r.update(in_subprocess({"job": "memory", "impl": impl, "data": data}))
+            _MEASURED[key(impl)] = r
     return {impl: _MEASURED[key(impl)] for impl in impls}
+
+
+def _pooled(parts: list[dict[str, Any]]) -> dict[str, Any]:
+    """One run measured in several processes, as one result (all calls pooled)."""
+    times = [t for p in parts for t in p["times_s"]]
+    out = dict(parts[0])
+    median = statistics.median(times)
+    out.update(
+        times_s=times,
+        repeats=len(times),
+        median_s=median,
+        min_s=min(times),
+        max_s=max(times),
+        samples_per_s=out["samples"] / median,
+        processes=len(parts),
+        load_average_before=max(p["load_average_before"] for p in parts),
+    )
+    for k in ("user_s_per_call", "sys_s_per_call", "minor_faults_per_call"):
+        out[k] = statistics.median(p[k] for p in parts)
+    return out
 
 
 def checked(data: dict[str, Any], impls: list[str]) -> dict[str, Any]:
     t0 = time.perf_counter()
     result = in_subprocess({"job": "check", "data": data, "impls": impls})
-    log(f"  checked osculate = {', '.join(impls)} on {data} ({time.perf_counter() - t0:.1f} s)")
+    took = time.perf_counter() - t0
+    log(f"  {_label(data)}: checked osculate = {', '.join(impls)} ({took:.1f} s)")
     return result
 
 
@@ -217,19 +254,22 @@ def case_floor(cfg: dict[str, Any]) -> dict[str, Any]:
 
 def case_threads(cfg: dict[str, Any]) -> dict[str, Any]:
     data = cfg["many"]
-    runs = {
-        str(k): measured(
-            ["osculate"], data, cfg, env={"RAYON_NUM_THREADS": str(k)}, memory=False, digest=True
-        )["osculate"]
-        for k in (1, 2)
-    }
-    if runs["1"]["digest"] != runs["2"]["digest"]:
+    parts: dict[str, list[dict[str, Any]]] = {"1": [], "2": []}
+    rounds = cfg["thread_rounds"]
+    for _ in range(rounds):  # processes alternate, so that a change of load hits both alike
+        for k in parts:
+            env = {"RAYON_NUM_THREADS": k}
+            budget = cfg["budget_s"] / rounds
+            parts[k] += timed_runs([("osculate", data)], cfg, env=env, digest=True, budget_s=budget)
+    digests = {p["digest"] for k in parts for p in parts[k]}
+    if len(digests) != 1:
         raise AssertionError("threads: outputs with 1 and 2 rayon threads are not bit-identical")
+    runs = {k: _pooled(v) for k, v in parts.items()}
     t0 = time.perf_counter()
     py = in_subprocess(
         {"job": "pythreads", "data": data, "repeats": 3}, env={"RAYON_NUM_THREADS": "1"}
     )
-    log(f"  two Python threads on {data} ({time.perf_counter() - t0:.1f} s)")
+    log(f"  {_label(data)}: two Python threads ({time.perf_counter() - t0:.1f} s)")
     return {
         "rayon": runs,
         "rayon_speedup": runs["1"]["median_s"] / runs["2"]["median_s"],
@@ -243,10 +283,9 @@ def _slope(ns: list[int], ts: list[float]) -> float:
 
 
 def case_scaling(cfg: dict[str, Any]) -> dict[str, Any]:
-    runs = {
-        str(n): measured(["osculate"], one(n), cfg, memory=False)["osculate"]
-        for n in cfg["scaling_sizes"]
-    }
+    sizes = cfg["scaling_sizes"]
+    timed = timed_runs([("osculate", one(n)) for n in sizes], cfg, budget_s=2 * cfg["budget_s"])
+    runs = {str(n): r for n, r in zip(sizes, timed)}
     ns = [int(n) for n in runs]
     ts = [runs[str(n)]["median_s"] for n in ns]
     per = {str(n): t / n for n, t in zip(ns, ts)}
