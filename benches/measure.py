@@ -257,7 +257,7 @@ def job_time(spec: Mapping[str, Any]) -> list[dict[str, Any]]:
         c.clear()
 
     slot = max(first)
-    per_round = [max(1, min(25, int(slot / f))) for f in first]
+    per_round = [max(1, min(10, int(slot / f))) for f in first]
     budget = float(spec.get("budget_s", 5.0))
     rounds = budget / sum(k * f for k, f in zip(per_round, first))
     rounds = int(min(spec.get("max_repeats", 15), max(spec.get("min_repeats", 3), rounds)))

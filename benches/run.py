@@ -2,7 +2,7 @@
 
     python benches/run.py [--quick] [--case NAME ...] [--out FILE.json]
 
-Cases (``--quick`` scales the sizes down so the whole run takes well under a minute on 2 cores):
+Cases (``--quick`` scales the sizes down: the cases below take about half a minute on 2 cores):
 
 fd-one
     ``osculate.kinematics(method="fd", order=2)`` on one 3-D track of 1e6 and 1e7 samples, against
@@ -71,7 +71,7 @@ QUICK: dict[str, Any] = {
     "one_sizes": [100_000, 300_000],
     "many": {"kind": "many", "m": 1_000, "mean_len": 200},
     "scaling_sizes": [10_000, 30_000, 100_000, 300_000],
-    "budget_s": 0.5,
+    "budget_s": 0.4,
     "min_repeats": 2,
     "thread_rounds": 2,
 }

@@ -145,34 +145,8 @@ pub fn try_filled<T: Clone>(len: usize, value: T) -> Result<Vec<T>> {
         .map_err(|_| KernelError::OutOfMemory {
             bytes: len.saturating_mul(std::mem::size_of::<T>()),
         })?;
-    huge_pages(v.as_mut_ptr() as *mut u8, len * std::mem::size_of::<T>());
     v.resize(len, value);
     Ok(v)
-}
-
-/// Below this size an allocation is not worth a system call.
-const HUGE_PAGE_MIN_BYTES: usize = 4 << 20;
-
-/// Ask Linux to back a large, not yet touched allocation with transparent huge pages: the first
-/// writes then fault once per 2 MiB instead of once per 4 KiB (the outputs of a large call are
-/// hundreds of megabytes of fresh memory). Advice only; failure changes nothing.
-fn huge_pages(ptr: *mut u8, bytes: usize) {
-    #[cfg(target_os = "linux")]
-    if bytes >= HUGE_PAGE_MIN_BYTES {
-        const PAGE: usize = 4096;
-        let start = (ptr as usize).div_ceil(PAGE) * PAGE;
-        let end = (ptr as usize + bytes) / PAGE * PAGE;
-        if end > start {
-            // SAFETY: madvise only gives the kernel a hint about pages of a live allocation of
-            // this process (the range is rounded inwards to whole pages); it never invalidates
-            // memory with MADV_HUGEPAGE.
-            unsafe {
-                libc::madvise(start as *mut libc::c_void, end - start, libc::MADV_HUGEPAGE);
-            }
-        }
-    }
-    #[cfg(not(target_os = "linux"))]
-    let _ = (ptr, bytes);
 }
 
 /// A vector of `len` zeros taken from zeroed pages (no write pass; the pages are touched by the
@@ -193,7 +167,6 @@ pub fn try_zeroed(len: usize) -> Result<Vec<f64>> {
         if p.is_null() {
             return Err(oom());
         }
-        huge_pages(p as *mut u8, len * 8);
         Ok(Vec::from_raw_parts(p, len, len))
     }
 }
