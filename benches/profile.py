@@ -10,11 +10,11 @@ the extension carries line tables, the hottest source lines of ``src/``. perf sa
 kernel side alike: page faults on fresh output memory show up there, not in callgrind.
 
 ``--so`` runs against another build of the extension, e.g. the release profile with line tables,
-built outside the work tree (nothing in Cargo.toml changes):
+built into its own target folder (ignored by git; nothing in Cargo.toml changes):
 
     CARGO_PROFILE_RELEASE_DEBUG=line-tables-only cargo build --release --lib \\
-        --features python,pyo3/extension-module --target-dir /tmp/osculate-profile
-    python benches/profile.py --so /tmp/osculate-profile/release/libosculate.so
+        --features python,pyo3/extension-module --target-dir target/profile
+    python benches/profile.py --so target/profile/release/libosculate.so
 """
 
 from __future__ import annotations
