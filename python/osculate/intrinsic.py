@@ -457,13 +457,13 @@ def kinematics(
     info = None
     if method == "fd":
         raw = call_kernel(g, _core.fd_kinematics, tk, xk, g.offsets, order=opts.order, **options)
-        fitted_x = xk
     else:
         fitted = fit_core(opts, g, tk, xk)
         raw = call_kernel(g, fitted.kinematics, **options)
         info = fitted.info()
-        fitted_x = fitted.evaluate(tk, g.offsets, 0)
     if frame == "rotation-minimizing":
+        # The frame is carried along the fitted path (the samples themselves for "fd").
+        fitted_x = xk if method == "fd" else fitted.evaluate(tk, g.offsets, 0)
         start = None if initial is None else _vector3("initial", initial, x.shape[1])
         rmf = call_kernel(
             g,
