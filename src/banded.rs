@@ -132,6 +132,110 @@ impl SymBand {
     }
 }
 
+impl SymBand {
+    /// The band of dΣ/dλ = −Σ Ṁ Σ for M(λ) with dM/dλ = `dm`, given this L D Lᵀ factor of M and
+    /// the band `sigma` of Σ = M⁻¹ from [`SymBand::inverse_band`].
+    ///
+    /// Forward-mode differentiation of the factorization and of the Hutchinson–de Hoog recurrence:
+    /// every step is the tangent of the corresponding step of [`SymBand::ldlt_in_place`] and
+    /// [`SymBand::inverse_band`], so the cost stays O(n b²) and only band entries are touched.
+    /// The smoothing-spline standard errors need it: the sampling covariance of the coefficients
+    /// is Σ H Σ = Σ + λ dΣ/dλ for M = H + λP.
+    pub fn inverse_band_tangent(&self, sigma: &SymBand, dm: &SymBand) -> Result<SymBand> {
+        let (n, b) = (self.n, self.b);
+        let w = b + 1;
+        let l = |i: usize, j: usize| self.a[i * w + (i - j)];
+        let d = |i: usize| self.a[i * w];
+        // Tangent of the factor: same layout (L̇ below the diagonal, Ḋ on it).
+        let mut f = SymBand::zeros(n, b)?;
+        for i in 0..n {
+            let lo = i.saturating_sub(b);
+            for j in lo..i {
+                // L_ij D_j = M_ij − Σ_k L_ik D_k L_jk, differentiated.
+                let mut s = dm.a[i * w + (i - j)] - l(i, j) * f.a[j * w];
+                for k in lo.max(j.saturating_sub(b))..j {
+                    s -= f.a[i * w + (i - k)] * d(k) * l(j, k)
+                        + l(i, k) * f.a[k * w] * l(j, k)
+                        + l(i, k) * d(k) * f.a[j * w + (j - k)];
+                }
+                f.a[i * w + (i - j)] = s / d(j);
+            }
+            let mut s = dm.a[i * w];
+            for k in lo..i {
+                let lik = l(i, k);
+                s -= 2.0 * lik * f.a[i * w + (i - k)] * d(k) + lik * lik * f.a[k * w];
+            }
+            f.a[i * w] = s;
+        }
+        let mut t = SymBand::zeros(n, b)?;
+        for i in (0..n).rev() {
+            let hi = (i + b).min(n - 1);
+            for j in (i + 1..=hi).rev() {
+                let mut v = 0.0;
+                for k in i + 1..=hi {
+                    let (r, c) = if k >= j { (k, j) } else { (j, k) };
+                    v -= f.a[k * w + (k - i)] * sigma.a[r * w + (r - c)]
+                        + l(k, i) * t.a[r * w + (r - c)];
+                }
+                t.a[j * w + (j - i)] = v;
+            }
+            let mut v = -f.a[i * w] / (d(i) * d(i));
+            for k in i + 1..=hi {
+                v -= f.a[k * w + (k - i)] * sigma.a[k * w + (k - i)]
+                    + l(k, i) * t.a[k * w + (k - i)];
+            }
+            t.a[i * w] = v;
+        }
+        Ok(t)
+    }
+}
+
+#[cfg(test)]
+mod tangent_tests {
+    use super::*;
+    use approx::assert_relative_eq;
+
+    #[test]
+    fn tangent_of_the_inverse_band_matches_central_differences() {
+        // M(λ) = H + λP with banded H, P (b = 2): dΣ/dλ against (Σ(λ+h) − Σ(λ−h)) / 2h.
+        let (n, b) = (9, 2);
+        let build = |lam: f64| {
+            let mut m = SymBand::zeros(n, b).unwrap();
+            let mut p = SymBand::zeros(n, b).unwrap();
+            for i in 0..n {
+                for dd in 0..=b.min(i) {
+                    let h = if dd == 0 {
+                        4.0 + (i % 3) as f64
+                    } else {
+                        0.5 / (1 + dd + i % 2) as f64
+                    };
+                    let q = if dd == 0 { 2.0 } else { -0.7 + 0.1 * dd as f64 };
+                    m.add_lower(i, i - dd, h + lam * q);
+                    p.add_lower(i, i - dd, q);
+                }
+            }
+            (m, p)
+        };
+        let inv = |lam: f64| {
+            let (mut m, _) = build(lam);
+            assert!(m.ldlt_in_place());
+            m.inverse_band().unwrap()
+        };
+        let lam = 0.8;
+        let (mut m, p) = build(lam);
+        assert!(m.ldlt_in_place());
+        let sigma = m.inverse_band().unwrap();
+        let t = m.inverse_band_tangent(&sigma, &p).unwrap();
+        let (hp, hm) = (inv(lam + 1e-5), inv(lam - 1e-5));
+        for i in 0..n {
+            for j in i.saturating_sub(b)..=i {
+                let fd = (hp.get(i, j) - hm.get(i, j)) / 2e-5;
+                assert_relative_eq!(t.get(i, j), fd, max_relative = 1e-6, epsilon = 1e-9);
+            }
+        }
+    }
+}
+
 /// Solve a tridiagonal system in place by elimination without pivoting (as de Boor's CUBSPL does
 /// for spline end conditions): `sub[i]` = M[i][i−1] (sub[0] unused), `diag[i]`, `sup[i]` = M[i][i+1]
 /// (last unused); `y` holds `nrhs` right-hand sides row-major and receives the solution.

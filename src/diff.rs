@@ -184,6 +184,41 @@ pub fn derivatives_at<const D: usize>(
     (d1, d2, d3, edge)
 }
 
+/// Gram matrix of the finite-difference rows of derivatives 0..=3 at sample `i` (position: the
+/// sample itself; r′, r″ and r‴ from the stencils of [`derivatives_at`]), for
+/// [`crate::uncertainty`]. The r‴ entries are NaN when the track is too short for its stencil.
+pub fn gram_at(t: &[f64], i: usize, order: FdOrder) -> crate::uncertainty::Gram {
+    let n = t.len();
+    let wl = order.width_low().min(n);
+    let wh = order.width_high().min(n);
+    let (sl, _) = place(i, wl, n);
+    // Rows indexed from `lo`, the first node any stencil reads.
+    let (sh, _) = place(i, wh, n);
+    let lo = sl.min(sh).min(i);
+    let hi = (sl + wl).max(sh + wh).max(i + 1);
+    let mut rows = [[0.0; 4]; 2 * MAX_WIDTH];
+    rows[i - lo][0] = 1.0;
+    let w = fornberg(t[i], &t[sl..sl + wl], 2);
+    for j in 0..wl {
+        rows[sl + j - lo][1] = w[j][1];
+        rows[sl + j - lo][2] = w[j][2];
+    }
+    let no_jerk = wh <= MAX_DERIV;
+    if !no_jerk {
+        let w = fornberg(t[i], &t[sh..sh + wh], 3);
+        for j in 0..wh {
+            rows[sh + j - lo][3] = w[j][3];
+        }
+    }
+    let mut g = crate::uncertainty::gram_of_rows(&rows[..hi - lo], None);
+    if no_jerk {
+        for a in 0..4 {
+            g[crate::uncertainty::at(a, 3)] = f64::NAN;
+        }
+    }
+    g
+}
+
 /// The rows `[first, last]` that the stencils of sample `i` read.
 #[inline]
 pub fn reach(i: usize, n: usize, order: FdOrder) -> (usize, usize) {

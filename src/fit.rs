@@ -6,10 +6,11 @@
 
 use crate::batch::{check_offsets, check_times, track_rows};
 use crate::error::{KernelError, Result};
-use crate::local::{local, LocalFit, Window};
+use crate::local::{local_with, LocalFit, Window};
 use crate::piecewise::PiecewisePoly;
-use crate::smooth::{self, smooth, Smoothing};
+use crate::smooth::{self, smooth_with, Covariance, Smoothing};
 use crate::spline::{interpolate, EndCondition};
+use crate::uncertainty::Gram;
 use rayon::prelude::*;
 
 /// Samples flagged EDGE at each end of a smoothing spline, in smoothing bandwidths.
@@ -33,6 +34,8 @@ pub enum Method {
         smoothing: Smoothing,
         /// Derivative order the automatic choice is tuned for (0 = positions).
         derivative: usize,
+        /// Which covariance to keep per sample for standard errors (none when `None`).
+        covariance: Option<Covariance>,
     },
     /// Local polynomial least squares.
     Local {
@@ -40,6 +43,8 @@ pub enum Method {
         degree: usize,
         /// Window.
         window: Window,
+        /// Whether to keep the per-sample covariance for standard errors.
+        uncertainty: bool,
     },
     /// The polyline through the samples, traversed at constant speed on each segment.
     Linear,
@@ -80,6 +85,8 @@ pub struct FitInfo {
     pub window: f64,
     /// Estimated error of the track's arc length (NaN where not estimated).
     pub length_error: f64,
+    /// Noise standard deviation of the positions seen by the estimator (NaN where not estimated).
+    pub noise: f64,
 }
 
 /// The fit of one track.
@@ -95,6 +102,8 @@ pub enum TrackFit {
         info: FitInfo,
         /// Samples at each end influenced by the end conditions.
         edge: usize,
+        /// Per fitted sample, the Gram matrix of the derivative rows (empty unless asked for).
+        gram: Vec<Gram>,
     },
     /// Local polynomial fits.
     Local(LocalFit),
@@ -159,6 +168,15 @@ impl TrackFit {
                     out[3 * d + k] = 0.0;
                 }
             }
+        }
+    }
+
+    /// Gram matrix of the derivative rows at fitted sample `j`, when it was kept.
+    pub fn gram(&self, j: usize) -> Option<&Gram> {
+        match self {
+            TrackFit::Poly { gram, .. } => gram.get(j),
+            TrackFit::Local(f) => f.gram.get(j),
+            _ => None,
         }
     }
 
@@ -287,6 +305,7 @@ impl TrackFit {
                 criterion: nan,
                 window: nan,
                 length_error: self.length_error(),
+                noise: nan,
             },
             TrackFit::Poly { info, .. } => FitInfo {
                 length_error: self.length_error(),
@@ -302,6 +321,7 @@ impl TrackFit {
                     Window::Auto => nan,
                 },
                 length_error: nan,
+                noise: f.noise,
             },
         }
     }
@@ -341,15 +361,18 @@ pub fn fit_track(
                 criterion: nan,
                 window: nan,
                 length_error: nan,
+                noise: nan,
             },
             edge: 2,
+            gram: Vec::new(),
         },
         Method::Smooth {
             degree,
             smoothing,
             derivative,
+            covariance,
         } => {
-            let f = smooth(t, x, dim, w, *degree, *smoothing, *derivative)?;
+            let f = smooth_with(t, x, dim, w, *degree, *smoothing, *derivative, *covariance)?;
             // The natural end conditions bias derivatives over the reach of the equivalent
             // kernel, about three bandwidths λ*^(1/2m) (in samples) from each end.
             let m = degree.div_ceil(2);
@@ -364,11 +387,17 @@ pub fn fit_track(
                     criterion: f.criterion,
                     window: nan,
                     length_error: nan,
+                    noise: f.noise,
                 },
                 edge: band.min(t.len()),
+                gram: f.gram,
             }
         }
-        Method::Local { degree, window } => TrackFit::Local(local(t, x, dim, *degree, *window)?),
+        Method::Local {
+            degree,
+            window,
+            uncertainty,
+        } => TrackFit::Local(local_with(t, x, dim, *degree, *window, *uncertainty)?),
         Method::Linear => TrackFit::Linear {
             t: t.to_vec(),
             x: x.to_vec(),

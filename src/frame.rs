@@ -20,6 +20,10 @@ pub mod flag {
     pub const GAP: u8 = 8;
     /// The input row is not finite; every result of the row is NaN.
     pub const INVALID: u8 = 16;
+    /// Moving and curved, but the standard error of κ (or of the speed) is more than the allowed
+    /// fraction of its value: the frame and κ are defined but too uncertain to use. Only set
+    /// where standard errors are computed.
+    pub const VAGUE: u8 = 32;
 }
 
 /// Thresholds that decide when the frame is undefined.

@@ -10,6 +10,7 @@ use crate::diff::{derivatives_at, reach, FdOrder};
 use crate::error::{try_collect, try_filled, try_zeroed, KernelError, Result};
 use crate::fit::Fits;
 use crate::frame::{flag, frenet, Thresholds};
+use crate::uncertainty::{self, propagate, Errors, Gram, Significance};
 use nalgebra::Vector3;
 use rayon::prelude::*;
 
@@ -24,6 +25,11 @@ pub struct Options {
     pub gap_factor: f64,
     /// Axis of the signed curvature for 3-D paths (planar paths always use +z).
     pub up: Option<[f64; 3]>,
+    /// Write the standard errors (finite differences compute them also when `significance`
+    /// needs them; fitted tracks have them when their fit kept the covariance).
+    pub uncertainty: bool,
+    /// Flags judged against the standard errors.
+    pub significance: Significance,
 }
 
 impl Default for Options {
@@ -33,19 +39,24 @@ impl Default for Options {
             thresholds: Thresholds::default(),
             gap_factor: 5.0,
             up: None,
+            uncertainty: false,
+            significance: Significance::default(),
         }
     }
 }
 
 macro_rules! width {
-    (dim, $d:expr) => {
+    (dim, $d:expr, $s:expr) => {
         $d
     };
-    (three, $d:expr) => {
+    (three, $d:expr, $s:expr) => {
         3
     };
-    (one, $d:expr) => {
+    (one, $d:expr, $s:expr) => {
         1
+    };
+    (se, $d:expr, $s:expr) => {
+        $s
     };
 }
 
@@ -59,60 +70,76 @@ macro_rules! columns {
             pub n: usize,
             /// 2 or 3.
             pub dim: usize,
+            /// 1 when the standard-error columns (`se_…`) are present, else 0 (they are empty).
+            pub se_w: usize,
             $($(#[$doc])* pub $name: Vec<f64>,)*
             /// Bit flags per row, see [`crate::frame::flag`].
             pub flags: Vec<u8>,
+            /// Noise standard deviation per track (position units; NaN where not estimated).
+            pub noise: Vec<f64>,
         }
 
         /// Mutable view of some consecutive rows of a [`Kinematics`].
         pub struct Rows<'a> {
             dim: usize,
+            se_w: usize,
             $($name: &'a mut [f64],)*
             flags: &'a mut [u8],
         }
 
         impl Kinematics {
-            /// Outputs for `n` rows, filled with NaN.
-            pub fn alloc(n: usize, dim: usize) -> Result<Self> {
+            /// Outputs for `n` rows, filled with NaN; standard-error columns when `se`.
+            pub fn alloc(n: usize, dim: usize, se: bool) -> Result<Self> {
+                let s = usize::from(se);
                 Ok(Kinematics {
                     n,
                     dim,
-                    $($name: try_filled(n * width!($w, dim), f64::NAN)?,)*
+                    se_w: s,
+                    $($name: try_filled(n * width!($w, dim, s), f64::NAN)?,)*
                     flags: try_filled(n, 0u8)?,
+                    noise: Vec::new(),
                 })
             }
 
             /// Outputs for `n` rows on zeroed pages: every row must then be written (by
             /// `emit` or `fill_nan`), which saves a pass over the memory.
-            fn alloc_zeroed(n: usize, dim: usize) -> Result<Self> {
+            fn alloc_zeroed(n: usize, dim: usize, se: bool) -> Result<Self> {
+                let s = usize::from(se);
                 Ok(Kinematics {
                     n,
                     dim,
-                    $($name: try_zeroed(n * width!($w, dim))?,)*
+                    se_w: s,
+                    $($name: try_zeroed(n * width!($w, dim, s))?,)*
                     flags: try_filled(n, 0u8)?,
+                    noise: Vec::new(),
                 })
             }
 
             fn rows(&mut self) -> Rows<'_> {
-                Rows { dim: self.dim, $($name: &mut self.$name[..],)* flags: &mut self.flags[..] }
+                Rows {
+                    dim: self.dim,
+                    se_w: self.se_w,
+                    $($name: &mut self.$name[..],)*
+                    flags: &mut self.flags[..],
+                }
             }
         }
 
         impl Rows<'_> {
             /// Set every value of local row `j` to NaN.
             fn fill_nan(&mut self, j: usize) {
-                let d = self.dim;
+                let (d, s) = (self.dim, self.se_w);
                 $(
-                    let w = width!($w, d);
+                    let w = width!($w, d, s);
                     self.$name[j * w..(j + 1) * w].fill(f64::NAN);
                 )*
             }
 
             /// Copy row `src_row` of `src` into local row `dst_row`.
             fn copy_row(&mut self, dst_row: usize, src: &Kinematics, src_row: usize) {
-                let d = self.dim;
+                let (d, s) = (self.dim, self.se_w);
                 $(
-                    let w = width!($w, d);
+                    let w = width!($w, d, s);
                     self.$name[dst_row * w..(dst_row + 1) * w]
                         .copy_from_slice(&src.$name[src_row * w..(src_row + 1) * w]);
                 )*
@@ -122,12 +149,12 @@ macro_rules! columns {
 
         impl SplitRows for Rows<'_> {
             fn split_rows(self, k: usize) -> (Self, Self) {
-                let d = self.dim;
-                $(let $name = self.$name.split_at_mut(k * width!($w, d));)*
+                let (d, s) = (self.dim, self.se_w);
+                $(let $name = self.$name.split_at_mut(k * width!($w, d, s));)*
                 let flags = self.flags.split_at_mut(k);
                 (
-                    Rows { dim: d, $($name: $name.0,)* flags: flags.0 },
-                    Rows { dim: d, $($name: $name.1,)* flags: flags.1 },
+                    Rows { dim: d, se_w: s, $($name: $name.0,)* flags: flags.0 },
+                    Rows { dim: d, se_w: s, $($name: $name.1,)* flags: flags.1 },
                 )
             }
         }
@@ -169,12 +196,36 @@ columns! {
     angular_speed: one,
     /// dω/dt.
     angular_accel: one,
+    /// Standard error of each coordinate of the (fitted) position.
+    se_position: se,
+    /// Standard error of each coordinate of r′.
+    se_velocity: se,
+    /// Standard error of each coordinate of r″.
+    se_acceleration: se,
+    /// Standard error of each coordinate of r‴.
+    se_jerk: se,
+    /// Standard error of the speed.
+    se_speed: se,
+    /// Standard error of a_t.
+    se_accel_tangential: se,
+    /// Standard error of a_n.
+    se_accel_normal: se,
+    /// Standard error of κ (and of the signed curvature).
+    se_curvature: se,
+    /// Standard error of τ.
+    se_torsion: se,
+    /// Standard error of ω.
+    se_angular_speed: se,
+    /// Standard error of ρ (NaN where κ = 0).
+    se_radius: se,
 }
 
 /// Per-track facts needed by every job of the track.
 struct TrackPrep {
     gap_dt: f64,
     has_invalid: bool,
+    /// Difference-based noise of the finite rows.
+    noise: f64,
 }
 
 fn check_options(opts: &Options) -> Result<Option<Vector3<f64>>> {
@@ -188,6 +239,19 @@ fn check_options(opts: &Options) -> Result<Option<Vector3<f64>>> {
     }
     if th.min_curvature.is_nan() || th.min_curvature < 0.0 || th.min_curvature.is_infinite() {
         return Err(bad("min_curvature", th.min_curvature));
+    }
+    let sig = &opts.significance;
+    if !(sig.z > 0.0 && sig.z.is_finite()) {
+        return Err(KernelError::Option {
+            argument: "significance",
+            detail: format!("must be finite and > 0, got {}", sig.z),
+        });
+    }
+    if !(sig.max_relative > 0.0) {
+        return Err(KernelError::Option {
+            argument: "max_relative_se",
+            detail: format!("must be > 0, got {}", sig.max_relative),
+        });
     }
     if opts.gap_factor.is_nan() || opts.gap_factor <= 1.0 {
         return Err(KernelError::Option {
@@ -280,19 +344,25 @@ fn run<const D: usize>(
             let has_invalid = x[rows.start * D..rows.end * D]
                 .iter()
                 .any(|v| !v.is_finite());
-            let gap_dt = if has_invalid {
-                f64::NAN // decided on the compacted track
+            let (tk, xk) = (&t[rows.clone()], &x[rows.start * D..rows.end * D]);
+            let (gap_dt, noise) = if has_invalid {
+                let (tv, xv) = finite_rows::<D>(tk, xk)?;
+                (f64::NAN, uncertainty::difference_noise(&tv, &xv, D))
             } else {
-                opts.gap_factor * batch::median_step(&t[rows])?
+                (
+                    opts.gap_factor * batch::median_step(tk)?,
+                    uncertainty::difference_noise(tk, xk, D),
+                )
             };
             Ok(TrackPrep {
                 gap_dt,
                 has_invalid,
+                noise,
             })
         })
         .collect::<Result<Vec<_>>>()?;
 
-    let mut out = Kinematics::alloc_zeroed(n, D)?;
+    let mut out = Kinematics::alloc_zeroed(n, D, opts.uncertainty)?;
     let jobs = plan_jobs(&offsets, |k| prep[k].has_invalid);
     let parts = partition(out.rows(), jobs.iter().map(|j| j.rows.len()));
     jobs.par_iter()
@@ -303,14 +373,21 @@ fn run<const D: usize>(
             let p = &prep[job.track];
             let local = job.rows.start - tr.start..job.rows.end - tr.start;
             if p.has_invalid {
-                compacted::<D>(tk, xk, opts, up.as_ref(), rows)
+                compacted::<D>(tk, xk, opts, up.as_ref(), p.noise, rows)
             } else {
-                dense::<D>(tk, xk, local, opts, up.as_ref(), p.gap_dt, None, rows);
+                let ctx = Context {
+                    opts,
+                    up: up.as_ref(),
+                    gap_dt: p.gap_dt,
+                    noise: p.noise,
+                };
+                dense::<D>(tk, xk, local, &ctx, None, rows);
                 Ok(())
             }
         })?;
 
     accumulate_arclength(&mut out.arclength, &offsets);
+    out.noise = prep.iter().map(|p| p.noise).collect();
     Ok(out)
 }
 
@@ -349,10 +426,12 @@ fn of_fits_dim<const D: usize>(fits: &Fits, opts: &Options) -> Result<Kinematics
     let offsets = &fits.offsets;
     let n = offsets[offsets.len() - 1];
     let m = offsets.len() - 1;
-    let mut out = Kinematics::alloc(n, D)?;
+    let se = opts.uncertainty && fits.tracks.iter().any(|f| f.gram(0).is_some());
+    let mut out = Kinematics::alloc(n, D, se)?;
     let parts = partition(out.rows(), (0..m).map(|k| offsets[k + 1] - offsets[k]));
     parts.into_par_iter().enumerate().for_each(|(k, mut rows)| {
         let fit = &fits.tracks[k];
+        let noise = fit.info().noise;
         let kept = fits.rows[k].as_deref();
         let len = offsets[k + 1] - offsets[k];
         if kept.is_some() {
@@ -390,11 +469,13 @@ fn of_fits_dim<const D: usize>(fits: &Fits, opts: &Options) -> Result<Kinematics
                 d3: take(3),
                 ds: if j == 0 { 0.0 } else { fit.segment(j) },
                 flags,
+                unc: fit.gram(j).map(|g| (*g, noise)),
             };
-            rows.emit(row_of(j), &s, up.as_ref(), &opts.thresholds);
+            rows.emit(row_of(j), &s, up.as_ref(), opts);
         }
     });
     accumulate_arclength(&mut out.arclength, offsets);
+    out.noise = fits.tracks.iter().map(|f| f.info().noise).collect();
     Ok(out)
 }
 
@@ -423,7 +504,7 @@ fn of_fits_at_dim<const D: usize>(
     let up = check_options(opts)?;
     let up = if D == 2 { Some(Vector3::z()) } else { up };
     let m = q.len() - 1;
-    let mut out = Kinematics::alloc(t.len(), D)?;
+    let mut out = Kinematics::alloc(t.len(), D, false)?;
     let parts = partition(out.rows(), (0..m).map(|k| q[k + 1] - q[k]));
     parts.into_par_iter().enumerate().for_each(|(k, mut rows)| {
         let fit = &fits.tracks[k];
@@ -447,10 +528,12 @@ fn of_fits_at_dim<const D: usize>(
                 d3: take(3),
                 ds: fit.length_to(&cum, tq),
                 flags: 0,
+                unc: None,
             };
-            rows.emit(j, &s, up.as_ref(), &opts.thresholds);
+            rows.emit(j, &s, up.as_ref(), opts);
         }
     });
+    out.noise = fits.tracks.iter().map(|f| f.info().noise).collect();
     Ok(out)
 }
 
@@ -465,6 +548,8 @@ struct Sample<const D: usize> {
     ds: f64,
     /// EDGE / GAP bits.
     flags: u8,
+    /// Gram matrix of the derivative rows and the noise, for standard errors.
+    unc: Option<(Gram, f64)>,
 }
 
 fn vec3<const D: usize>(a: &[f64; D]) -> Vector3<f64> {
@@ -481,12 +566,35 @@ impl Rows<'_> {
         j: usize,
         s: &Sample<D>,
         up: Option<&Vector3<f64>>,
-        th: &Thresholds,
+        opts: &Options,
     ) {
         let put = |dst: &mut [f64], v: &Vector3<f64>| {
             dst[j * D..(j + 1) * D].copy_from_slice(&v.as_slice()[..D]);
         };
-        let f = frenet(&vec3(&s.d1), &vec3(&s.d2), &vec3(&s.d3), up, th);
+        let (d1, d2, d3) = (vec3(&s.d1), vec3(&s.d2), vec3(&s.d3));
+        let sig = &opts.significance;
+        let err = s
+            .unc
+            .as_ref()
+            .map(|(g, sigma)| propagate(&d1, &d2, &d3, D, g, *sigma));
+        let mut th = opts.thresholds;
+        if let Some(e) = &err {
+            // NaN standard errors (no noise estimate) leave the absolute thresholds.
+            if sig.speed && sig.z * e.speed > th.min_speed {
+                th.min_speed = sig.z * e.speed;
+            }
+            if sig.curvature && sig.z * e.curvature > th.min_curvature {
+                th.min_curvature = sig.z * e.curvature;
+            }
+        }
+        let mut f = frenet(&d1, &d2, &d3, up, &th);
+        if let Some(e) = &err {
+            let defined = f.flags & (flag::STOPPED | flag::STRAIGHT) == 0;
+            let rel = sig.max_relative;
+            if defined && (e.curvature > rel * f.curvature || e.speed > rel * f.speed) {
+                f.flags |= flag::VAGUE;
+            }
+        }
         self.velocity[j * D..(j + 1) * D].copy_from_slice(&s.d1);
         self.acceleration[j * D..(j + 1) * D].copy_from_slice(&s.d2);
         self.jerk[j * D..(j + 1) * D].copy_from_slice(&s.d3);
@@ -505,22 +613,66 @@ impl Rows<'_> {
         self.angular_speed[j] = f.angular_speed;
         self.angular_accel[j] = f.angular_accel;
         self.flags[j] = f.flags | s.flags;
+        if self.se_w == 1 {
+            let e = err.unwrap_or(Errors::NAN);
+            // A standard error only where its quantity is defined.
+            let only = |q: f64, se: f64| if q.is_nan() { f64::NAN } else { se };
+            self.se_position[j] = e.position;
+            self.se_velocity[j] = e.velocity;
+            self.se_acceleration[j] = e.acceleration;
+            self.se_jerk[j] = e.jerk;
+            self.se_speed[j] = only(f.speed, e.speed);
+            self.se_accel_tangential[j] = only(f.accel_tangential, e.accel_tangential);
+            self.se_accel_normal[j] = only(f.accel_normal, e.accel_normal);
+            self.se_curvature[j] = only(f.curvature, e.curvature);
+            self.se_torsion[j] = only(f.torsion, e.torsion);
+            self.se_angular_speed[j] = only(f.angular_speed, e.angular_speed);
+            self.se_radius[j] = if f.curvature > 0.0 {
+                e.curvature / (f.curvature * f.curvature)
+            } else {
+                f64::NAN
+            };
+        }
     }
+}
+
+/// What every sample of one finite-difference job shares.
+struct Context<'a> {
+    opts: &'a Options,
+    up: Option<&'a Vector3<f64>>,
+    /// Time steps longer than this are gaps.
+    gap_dt: f64,
+    /// Noise of the track.
+    noise: f64,
+}
+
+/// The finite rows of one track.
+fn finite_rows<const D: usize>(t: &[f64], x: &[f64]) -> Result<(Vec<f64>, Vec<f64>)> {
+    let keep = |i: &usize| x[i * D..(i + 1) * D].iter().all(|v| v.is_finite());
+    let m = (0..t.len()).filter(keep).count();
+    let tv = try_collect(m, (0..t.len()).filter(keep).map(|i| t[i]))?;
+    let xv = try_collect(
+        m * D,
+        (0..t.len())
+            .filter(keep)
+            .flat_map(|i| x[i * D..(i + 1) * D].iter().copied()),
+    )?;
+    Ok((tv, xv))
 }
 
 /// Estimates for rows `local` of one track whose positions are all finite. `holes[j]` marks rows
 /// removed between compacted rows j and j + 1. The arclength column receives segment lengths.
-#[allow(clippy::too_many_arguments)]
 fn dense<const D: usize>(
     t: &[f64],
     x: &[f64],
     local: std::ops::Range<usize>,
-    opts: &Options,
-    up: Option<&Vector3<f64>>,
-    gap_dt: f64,
+    ctx: &Context<'_>,
     holes: Option<&[bool]>,
     mut out: Rows<'_>,
 ) {
+    let (opts, gap_dt) = (ctx.opts, ctx.gap_dt);
+    let sig = &opts.significance;
+    let want_se = opts.uncertainty || sig.speed || sig.curvature;
     let n = t.len();
     for (j, i) in local.enumerate() {
         let (d1, d2, d3, edge) = derivatives_at::<D>(t, x, i, opts.order);
@@ -541,8 +693,9 @@ fn dense<const D: usize>(
             d3,
             ds,
             flags,
+            unc: want_se.then(|| (crate::diff::gram_at(t, i, opts.order), ctx.noise)),
         };
-        out.emit(j, &s, up, &opts.thresholds);
+        out.emit(j, &s, ctx.up, opts);
     }
 }
 
@@ -552,6 +705,7 @@ fn compacted<const D: usize>(
     x: &[f64],
     opts: &Options,
     up: Option<&Vector3<f64>>,
+    noise: f64,
     mut out: Rows<'_>,
 ) -> Result<()> {
     let valid = try_collect(
@@ -574,9 +728,14 @@ fn compacted<const D: usize>(
             .flat_map(|&i| x[i * D..(i + 1) * D].iter().copied()),
     )?;
     let holes = try_collect(m, valid.windows(2).map(|w| w[1] - w[0] > 1))?;
-    let gap_dt = opts.gap_factor * batch::median_step(&tv)?;
-    let mut tmp = Kinematics::alloc(m, D)?;
-    dense::<D>(&tv, &xv, 0..m, opts, up, gap_dt, Some(&holes), tmp.rows());
+    let ctx = Context {
+        opts,
+        up,
+        gap_dt: opts.gap_factor * batch::median_step(&tv)?,
+        noise,
+    };
+    let mut tmp = Kinematics::alloc(m, D, opts.uncertainty)?;
+    dense::<D>(&tv, &xv, 0..m, &ctx, Some(&holes), tmp.rows());
     for (j, &i) in valid.iter().enumerate() {
         out.copy_row(i, &tmp, j);
     }

@@ -25,6 +25,7 @@ pub mod resample;
 pub mod rmf;
 pub mod smooth;
 pub mod spline;
+pub mod uncertainty;
 
 #[cfg(feature = "python")]
 pub mod bindings;

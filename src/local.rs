@@ -8,6 +8,7 @@
 //! a time span (truncated at the ends), or chosen by generalized cross-validation.
 
 use crate::error::{try_filled, KernelError, Result};
+use crate::uncertainty::{at, Gram};
 
 /// The window of the local fits.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -42,6 +43,11 @@ pub struct LocalFit {
     pub edge: Vec<bool>,
     /// GCV score of the window (NaN unless chosen automatically).
     pub criterion: f64,
+    /// Noise standard deviation per coordinate from the residuals at the samples:
+    /// √(RSS / (dim (n − Σ hᵢᵢ))), hᵢᵢ the weight of sample i in its own fit.
+    pub noise: f64,
+    /// Per sample, the Gram matrix of the derivative rows (empty unless asked for).
+    pub gram: Vec<Gram>,
 }
 
 /// Rows `[lo, hi)` of the window around time `tc` (sample index `i` if it is a sample).
@@ -72,6 +78,8 @@ fn window_rows(t: &[f64], tc: f64, i: Option<usize>, window: Window) -> (usize, 
 
 /// Least-squares polynomial on rows [lo, hi) about `tc`: derivatives 0..=3 into `out`
 /// (`out[nu * dim + d]`), returns the hat value [(XᵀX)⁻¹]₀₀, or None if the fit is singular.
+/// With `gram`, also the Gram matrix of the derivative rows: the derivative a is a! c_a / scaleᵃ,
+/// so G_ab = a! b! [(XᵀX)⁻¹]_ab / scale^(a+b) (NaN above the degree).
 #[allow(clippy::too_many_arguments)]
 fn fit_at(
     t: &[f64],
@@ -82,6 +90,7 @@ fn fit_at(
     hi: usize,
     p: usize,
     out: &mut [f64],
+    gram: Option<&mut Gram>,
 ) -> Option<f64> {
     let q = p + 1;
     // An empty or too small window (a time span away from every sample) has no fit.
@@ -162,6 +171,23 @@ fn fit_at(
     let mut e0 = [0.0; MAX_DEGREE + 1];
     e0[0] = 1.0;
     solve(&mut e0);
+    if let Some(g) = gram {
+        const FACT: [f64; 4] = [1.0, 1.0, 2.0, 6.0];
+        for a in 0..4 {
+            let mut col = [0.0; MAX_DEGREE + 1];
+            if a < q {
+                col[a] = 1.0;
+                solve(&mut col);
+            }
+            for b in a..4 {
+                g[at(a, b)] = if b < q {
+                    FACT[a] * FACT[b] * col[b] / scale.powi((a + b) as i32)
+                } else {
+                    f64::NAN
+                };
+            }
+        }
+    }
     Some(e0[0])
 }
 
@@ -188,7 +214,16 @@ fn check(n: usize, degree: usize, window: Window) -> Result<()> {
     }
 }
 
-/// Evaluate at every sample with a fixed window; returns (derivatives, edge, hat values, ok).
+/// What [`run`] computes at the samples.
+struct Run {
+    deriv: Vec<f64>,
+    edge: Vec<bool>,
+    hat: Vec<f64>,
+    /// Empty unless asked for.
+    gram: Vec<Gram>,
+}
+
+/// Evaluate at every sample of `rows` with a fixed window.
 fn run(
     t: &[f64],
     x: &[f64],
@@ -196,11 +231,17 @@ fn run(
     degree: usize,
     window: Window,
     rows: &[usize],
-) -> Result<(Vec<f64>, Vec<bool>, Vec<f64>)> {
+    want_gram: bool,
+) -> Result<Run> {
     let m = rows.len();
     let mut deriv = try_filled(m * 4 * dim, f64::NAN)?;
     let mut edge = try_filled(m, false)?;
     let mut hat = try_filled(m, f64::NAN)?;
+    let mut gram = if want_gram {
+        try_filled(m, [f64::NAN; 10])?
+    } else {
+        Vec::new()
+    };
     for (j, &i) in rows.iter().enumerate() {
         let (lo, hi, e) = window_rows(t, t[i], Some(i), window);
         edge[j] = e;
@@ -224,11 +265,17 @@ fn run(
             hi,
             degree,
             &mut deriv[j * 4 * dim..(j + 1) * 4 * dim],
+            gram.get_mut(j),
         ) {
             hat[j] = h;
         }
     }
-    Ok((deriv, edge, hat))
+    Ok(Run {
+        deriv,
+        edge,
+        hat,
+        gram,
+    })
 }
 
 /// GCV score of a window from fits at `rows`: mean squared residual / (1 − mean hat)².
@@ -285,6 +332,18 @@ fn candidates(n: usize, degree: usize) -> Vec<usize> {
 /// assert!((f.deriv[(10 * 4 + 3)] - 6.0).abs() < 1e-8);
 /// ```
 pub fn local(t: &[f64], x: &[f64], dim: usize, degree: usize, window: Window) -> Result<LocalFit> {
+    local_with(t, x, dim, degree, window, false)
+}
+
+/// [`local`], with the per-sample Gram matrices of [`crate::uncertainty`] when `uncertainty`.
+pub fn local_with(
+    t: &[f64],
+    x: &[f64],
+    dim: usize,
+    degree: usize,
+    window: Window,
+    uncertainty: bool,
+) -> Result<LocalFit> {
     let n = t.len();
     check(n, degree, window)?;
     let all: Vec<usize> = (0..n).collect();
@@ -294,8 +353,8 @@ pub fn local(t: &[f64], x: &[f64], dim: usize, degree: usize, window: Window) ->
             let probe: Vec<usize> = (0..n).step_by(step).collect();
             let mut best = (f64::INFINITY, Window::Samples(n.min(degree + 2)));
             for w in candidates(n, degree) {
-                let (deriv, _, hat) = run(t, x, dim, degree, Window::Samples(w), &probe)?;
-                let score = gcv(x, dim, &probe, &deriv, &hat);
+                let r = run(t, x, dim, degree, Window::Samples(w), &probe, false)?;
+                let score = gcv(x, dim, &probe, &r.deriv, &r.hat);
                 if score < best.0 {
                     best = (score, Window::Samples(w));
                 }
@@ -304,16 +363,36 @@ pub fn local(t: &[f64], x: &[f64], dim: usize, degree: usize, window: Window) ->
         }
         w => (w, f64::NAN),
     };
-    let (deriv, edge, _) = run(t, x, dim, degree, window, &all)?;
+    let r = run(t, x, dim, degree, window, &all, uncertainty)?;
+    // E RSS = σ² tr((I − S)ᵀ(I − S)) = σ² (n − 2 tr S + tr SᵀS), and for local least squares
+    // ‖ℓᵢ‖² = hᵢᵢ, so tr SᵀS = tr S.
+    let (mut rss, mut tr) = (0.0, 0.0);
+    for i in 0..n {
+        if r.hat[i].is_nan() {
+            continue;
+        }
+        for d in 0..dim {
+            let e = x[i * dim + d] - r.deriv[i * 4 * dim + d];
+            rss += e * e;
+        }
+        tr += r.hat[i];
+    }
+    let dof = dim as f64 * (n as f64 - tr);
     Ok(LocalFit {
         t: t.to_vec(),
         x: x.to_vec(),
         dim,
         degree,
         window,
-        deriv,
-        edge,
+        deriv: r.deriv,
+        edge: r.edge,
         criterion,
+        noise: if dof > 0.0 {
+            (rss / dof).sqrt()
+        } else {
+            f64::NAN
+        },
+        gram: r.gram,
     })
 }
 
@@ -321,7 +400,19 @@ impl LocalFit {
     /// Derivatives 0..=3 at an arbitrary time (the window around it, as at the samples).
     pub fn eval(&self, tc: f64, out: &mut [f64]) {
         let (lo, hi, _) = window_rows(&self.t, tc, None, self.window);
-        if fit_at(&self.t, &self.x, self.dim, tc, lo, hi, self.degree, out).is_none() {
+        if fit_at(
+            &self.t,
+            &self.x,
+            self.dim,
+            tc,
+            lo,
+            hi,
+            self.degree,
+            out,
+            None,
+        )
+        .is_none()
+        {
             out.iter_mut().for_each(|v| *v = f64::NAN);
         }
     }

@@ -25,10 +25,11 @@
 //! mean time step: it does not change with the units of time or space, and λ*^(1/2m) is roughly the
 //! smoothing bandwidth in samples.
 
-use crate::banded::BandQr;
+use crate::banded::{BandQr, SymBand};
 use crate::bspline::{basis_derivatives, clamped_knots, span_of_interval, to_piecewise};
 use crate::error::{KernelError, Result};
 use crate::piecewise::{gauss_legendre, PiecewisePoly};
+use crate::uncertainty::{at, Gram};
 use rayon::prelude::*;
 
 /// How λ is set.
@@ -42,6 +43,19 @@ pub enum Smoothing {
     Fixed(f64),
 }
 
+/// Which covariance the per-sample standard errors of a smoothing spline describe.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Covariance {
+    /// The sampling covariance of the estimate, σ² ℓᵢᵀℓᵢ (the spread over repeated noise, bias
+    /// not included): σ² B⁽ᵃ⁾ Σ H Σ B⁽ᵇ⁾ᵀ with Σ = (H + λP)⁻¹ and H the weighted data part.
+    Sampling,
+    /// Wahba's Bayesian posterior covariance σ² B⁽ᵃ⁾ Σ B⁽ᵇ⁾ᵀ (G. Wahba, J. R. Stat. Soc. B 45
+    /// (1983) 133–150), larger than the sampling one by an allowance for the smoothing bias; its
+    /// intervals have near-nominal coverage averaged over the samples (D. Nychka, JASA 83 (1988)
+    /// 1134–1143).
+    Posterior,
+}
+
 /// A fitted smoothing spline.
 #[derive(Debug, Clone, PartialEq)]
 pub struct SmoothFit {
@@ -53,6 +67,12 @@ pub struct SmoothFit {
     pub edf: f64,
     /// Value of the selection criterion at λ* (GCV score, or unbiased risk; NaN when fixed).
     pub criterion: f64,
+    /// Noise standard deviation per coordinate (position units, unit weight): the given one for
+    /// [`Smoothing::Noise`], else √(RSS / (dim (n − edf))) at the GCV choice (at λ* when fixed).
+    pub noise: f64,
+    /// Per sample, the Gram matrix of the derivative rows in the caller's time units (empty unless
+    /// asked for).
+    pub gram: Vec<Gram>,
 }
 
 /// Fewest samples a smoothing spline of `degree` needs.
@@ -96,6 +116,10 @@ const FINE_STEP: f64 = 0.02;
 
 struct Problem {
     n: usize,
+    /// Clamped knots on the scaled times.
+    knots: Vec<f64>,
+    /// Scaled sample times.
+    u: Vec<f64>,
     dim: usize,
     k: usize,
     w: Vec<f64>,
@@ -110,6 +134,8 @@ struct Eval {
     coef: Vec<f64>,
     rss: f64,
     trace: f64,
+    /// L D Lᵀ factor of the normal matrix and the band of its inverse (with the trace).
+    factor: Option<(SymBand, SymBand)>,
 }
 
 impl Problem {
@@ -147,6 +173,8 @@ impl Problem {
         }
         Ok(Problem {
             n,
+            knots,
+            u: u.to_vec(),
             dim,
             k,
             w,
@@ -199,8 +227,10 @@ impl Problem {
             }
         }
         let mut trace = f64::NAN;
+        let mut factor = None;
         if want_trace {
-            let sig = qr.to_ldlt()?.inverse_band()?;
+            let ldlt = qr.to_ldlt()?;
+            let sig = ldlt.inverse_band()?;
             trace = 0.0;
             for (i, (first, b)) in self.rows.iter().enumerate() {
                 let mut q = 0.0;
@@ -211,8 +241,77 @@ impl Problem {
                 }
                 trace += self.w[i] * q;
             }
+            factor = Some((ldlt, sig));
         }
-        Ok(Some(Eval { coef, rss, trace }))
+        Ok(Some(Eval {
+            coef,
+            rss,
+            trace,
+            factor,
+        }))
+    }
+
+    /// √(RSS / (dim (n − edf))), Wahba's residual estimate of the noise.
+    fn noise(&self, e: &Eval) -> f64 {
+        let dof = self.dim as f64 * (self.n as f64 - e.trace);
+        if dof > 0.0 {
+            (e.rss / dof).sqrt()
+        } else {
+            f64::NAN
+        }
+    }
+
+    /// Per sample, the Gram matrix of the rows of derivatives 0..=3 (scaled time units) for the
+    /// fit `e` at `lambda`.
+    fn grams(&self, e: &Eval, lambda: f64, cov: Covariance) -> Result<Vec<Gram>> {
+        let (n, k) = (self.n, self.k);
+        let (ldlt, sig) = e.factor.as_ref().expect("evaluated with the trace");
+        let c = match cov {
+            Covariance::Posterior => sig.clone(),
+            Covariance::Sampling => {
+                // Σ H Σ = Σ + λ dΣ/dλ, with dM/dλ = P assembled from the penalty rows.
+                let m = k.div_ceil(2);
+                let mut p = SymBand::zeros(sig.n, k)?;
+                for (r, row) in self.penalty.iter().enumerate() {
+                    let first = r / m;
+                    for a in 0..=k {
+                        for b in 0..=a {
+                            p.add_lower(first + a, first + b, row[a] * row[b]);
+                        }
+                    }
+                }
+                let mut d = ldlt.inverse_band_tangent(sig, &p)?;
+                for (v, s) in d.a.iter_mut().zip(&sig.a) {
+                    *v = s + lambda * *v;
+                }
+                d
+            }
+        };
+        let mut out = Vec::new();
+        out.try_reserve_exact(n)
+            .map_err(|_| KernelError::OutOfMemory { bytes: n * 80 })?;
+        for (i, &ui) in self.u.iter().enumerate() {
+            let span = span_of_interval(i.min(n - 2), k);
+            let first = span - k;
+            let d = basis_derivatives(&self.knots, span, ui, k, 3.min(k));
+            let mut g = [0.0; 10];
+            for a in 0..4 {
+                for b in a..4 {
+                    if a > k || b > k {
+                        continue;
+                    }
+                    let mut v = 0.0;
+                    for r in 0..=k {
+                        for s in 0..=k {
+                            v += d[a][r] * d[b][s] * c.get(first + r, first + s);
+                        }
+                    }
+                    g[at(a, b)] = v;
+                }
+            }
+            out.push(g);
+        }
+        Ok(out)
     }
 
     fn criterion(&self, how: Smoothing, log_lambda: f64) -> Result<f64> {
@@ -315,6 +414,22 @@ pub fn smooth(
     how: Smoothing,
     derivative: usize,
 ) -> Result<SmoothFit> {
+    smooth_with(t, x, dim, w, degree, how, derivative, None)
+}
+
+/// [`smooth`], with the per-sample Gram matrices of the kind `covariance` when it is given (for
+/// [`crate::uncertainty`]).
+#[allow(clippy::too_many_arguments)]
+pub fn smooth_with(
+    t: &[f64],
+    x: &[f64],
+    dim: usize,
+    w: Option<&[f64]>,
+    degree: usize,
+    how: Smoothing,
+    derivative: usize,
+    covariance: Option<Covariance>,
+) -> Result<SmoothFit> {
     let n = t.len();
     if degree != 3 && degree != 5 {
         return Err(KernelError::Option {
@@ -351,6 +466,12 @@ pub fn smooth(
         .flat_map(|row| row.iter().zip(&centre).map(|(v, c)| v - c))
         .collect();
     let prob = Problem::new(&u, y, dim, wv, degree)?;
+    // The noise is estimated at the GCV choice even when λ is then tuned for a derivative: the
+    // larger λ leaves signal in the residuals and would overstate it.
+    let mut noise = match how {
+        Smoothing::Noise(s) => s,
+        _ => f64::NAN,
+    };
     let (lambda, criterion) = match how {
         Smoothing::Fixed(l) => (l, f64::NAN),
         Smoothing::Gcv | Smoothing::Noise(_) => {
@@ -358,7 +479,10 @@ pub fn smooth(
             let pilot = 10f64.powf(l);
             let mut factor = 1.0;
             if derivative > 0 {
-                if let Some(e) = prob.eval(pilot, false)? {
+                if let Some(e) = prob.eval(pilot, true)? {
+                    if how == Smoothing::Gcv {
+                        noise = prob.noise(&e);
+                    }
                     let pp = to_piecewise(&u, degree, &e.coef, dim)?;
                     factor = derivative_factor(
                         degree.div_ceil(2),
@@ -380,6 +504,21 @@ pub fn smooth(
                 "λ* = {lambda:e} makes the system numerically singular; use a larger value"
             ),
         })?;
+    if noise.is_nan() {
+        noise = prob.noise(&fit);
+    }
+    let mut gram = match covariance {
+        Some(cov) => prob.grams(&fit, lambda, cov)?,
+        None => Vec::new(),
+    };
+    // Derivative a in scaled time is h̄^a times the derivative in the caller's time.
+    for g in gram.iter_mut() {
+        for a in 0..4 {
+            for b in a..4 {
+                g[at(a, b)] /= hbar.powi((a + b) as i32);
+            }
+        }
+    }
     let mut path = to_piecewise(&u, degree, &fit.coef, dim)?;
     // Back to the caller's units: t = t0 + h̄ u, so the coefficient of u^p scales by h̄^−p.
     path.x = t.to_vec();
@@ -402,6 +541,8 @@ pub fn smooth(
         lambda,
         edf: fit.trace,
         criterion,
+        noise,
+        gram,
     })
 }
 

@@ -82,7 +82,7 @@ class EstimatorOptions:
         self.weights = weights
         self.window = None if window is None else as_int("window", window, 1, 2**62)
         self.window_span = None if window_span is None else as_real("window_span", window_span)
-        self.derivative = 2 if derivative is None else as_int("derivative", derivative, 0, 3)
+        self.derivative = 0 if derivative is None else as_int("derivative", derivative, 0, 3)
 
     def describe(self) -> str:
         """Short human-readable summary, e.g. ``smooth (degree 5)``."""
@@ -109,8 +109,10 @@ def fit_core(
     g: Grouping,
     t: npt.NDArray[np.float64],
     x: npt.NDArray[np.float64],
+    uncertainty: Optional[str] = None,
 ) -> _core.FittedPaths:
-    """Fit every track (arrays in kernel row order)."""
+    """Fit every track (arrays in kernel row order); ``uncertainty`` ("sampling" or "posterior")
+    keeps what the standard errors need."""
     start = end = None
     if opts.bc_velocity is not None:
         start, end = _end_velocities(opts.bc_velocity, x.shape[1])
@@ -139,4 +141,5 @@ def fit_core(
         window_span=opts.window_span,
         weights=weights,
         derivative=opts.derivative,
+        uncertainty=uncertainty,
     )

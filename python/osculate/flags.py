@@ -25,6 +25,14 @@ class Flag(enum.IntFlag):
         or a skipped INVALID row.
     INVALID
         The input row is not finite (or its track has too few finite rows): every result is NaN.
+    VAGUE
+        Moving and curved, but the standard error of the curvature (or of the speed) exceeds
+        ``max_relative_se`` (default 1/4) of its value: the values are defined but too uncertain
+        to use, and per-track extremes skip the sample. Set only where standard errors exist.
+
+    With ``min_speed="auto"`` a sample is also STOPPED when its speed is within ``significance``
+    (default 3) standard errors of zero, and with ``min_curvature="auto"`` STRAIGHT likewise for
+    the curvature.
 
     Examples
     --------
@@ -32,7 +40,7 @@ class Flag(enum.IntFlag):
     >>> Flag(5) == Flag.STOPPED | Flag.EDGE
     True
     >>> [f.name for f in Flag]
-    ['STOPPED', 'STRAIGHT', 'EDGE', 'GAP', 'INVALID']
+    ['STOPPED', 'STRAIGHT', 'EDGE', 'GAP', 'INVALID', 'VAGUE']
     """
 
     STOPPED = 1
@@ -40,3 +48,4 @@ class Flag(enum.IntFlag):
     EDGE = 4
     GAP = 8
     INVALID = 16
+    VAGUE = 32

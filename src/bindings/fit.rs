@@ -1,13 +1,13 @@
 //! Bindings of fitted paths: spline, smoothing spline and local-polynomial estimators.
 
 use super::error::{contiguous, detached, rows};
-use super::kinematics::to_dict;
+use super::kinematics::{options, to_dict};
+use crate::diff::FdOrder;
 use crate::fit::{fit_batch, Fits, Method};
-use crate::frame::Thresholds;
-use crate::kinematics::{of_fits, of_fits_at, Options};
+use crate::kinematics::{of_fits, of_fits_at};
 use crate::local::Window;
 use crate::resample::{resample, Spacing};
-use crate::smooth::Smoothing;
+use crate::smooth::{Covariance, Smoothing};
 use crate::spline::EndCondition;
 use crate::KernelError;
 use numpy::{
@@ -38,7 +38,19 @@ fn method(
     window: Option<usize>,
     window_span: Option<f64>,
     derivative: usize,
+    uncertainty: Option<&str>,
 ) -> crate::Result<Method> {
+    let covariance = match uncertainty {
+        None => None,
+        Some("sampling") => Some(Covariance::Sampling),
+        Some("posterior") => Some(Covariance::Posterior),
+        Some(other) => {
+            return Err(bad(
+                "uncertainty",
+                format!("expected \"sampling\" or \"posterior\", got {other:?}"),
+            ))
+        }
+    };
     Ok(match name {
         "spline" => Method::Spline(match bc {
             "not-a-knot" => EndCondition::NotAKnot,
@@ -87,6 +99,7 @@ fn method(
                 degree,
                 smoothing,
                 derivative,
+                covariance,
             }
         }
         "local" => Method::Local {
@@ -102,29 +115,18 @@ fn method(
                 (None, Some(s)) => Window::Span(s),
                 (None, None) => Window::Auto,
             },
+            uncertainty: covariance.is_some(),
         },
         "linear" => Method::Linear,
         other => return Err(bad("method", format!("unknown method {other:?}"))),
     })
 }
 
-fn options(min_speed: f64, min_curvature: f64, gap_factor: f64, up: Option<[f64; 3]>) -> Options {
-    Options {
-        thresholds: Thresholds {
-            min_speed,
-            min_curvature,
-        },
-        gap_factor,
-        up,
-        ..Options::default()
-    }
-}
-
 /// Fit every track of a batch (arrays validated by the Python layer).
 #[pyfunction]
 #[pyo3(signature = (t, positions, offsets, *, method, bc="not-a-knot", bc_start=None, bc_end=None,
     degree=5, smoothing=None, noise=None, window=None, window_span=None, weights=None,
-    derivative=2))]
+    derivative=2, uncertainty=None))]
 #[allow(clippy::too_many_arguments)]
 pub fn fit_paths<'py>(
     py: Python<'py>,
@@ -142,6 +144,7 @@ pub fn fit_paths<'py>(
     window_span: Option<f64>,
     weights: Option<PyReadonlyArray1<'py, f64>>,
     derivative: usize,
+    uncertainty: Option<String>,
 ) -> PyResult<FittedPaths> {
     let dim = positions.shape()[1];
     let t = contiguous("t", t.as_slice())?;
@@ -165,6 +168,7 @@ pub fn fit_paths<'py>(
             window,
             window_span,
             derivative,
+            uncertainty.as_deref(),
         )?;
         fit_batch(t, x, dim, off, w, &m)
     })?;
@@ -185,7 +189,9 @@ impl FittedPaths {
     }
 
     /// Kinematics at the fitted samples, on the rows of the fit.
-    #[pyo3(signature = (*, min_speed, min_curvature, gap_factor, up=None))]
+    #[pyo3(signature = (*, min_speed, min_curvature, gap_factor, up=None, uncertainty=false,
+        auto_speed=false, auto_curvature=false, significance=3.0, max_relative_se=0.25))]
+    #[allow(clippy::too_many_arguments)]
     fn kinematics<'py>(
         &self,
         py: Python<'py>,
@@ -193,8 +199,24 @@ impl FittedPaths {
         min_curvature: f64,
         gap_factor: f64,
         up: Option<[f64; 3]>,
+        uncertainty: bool,
+        auto_speed: bool,
+        auto_curvature: bool,
+        significance: f64,
+        max_relative_se: f64,
     ) -> PyResult<Bound<'py, PyDict>> {
-        let opts = options(min_speed, min_curvature, gap_factor, up);
+        let opts = options(
+            FdOrder::Two,
+            min_speed,
+            min_curvature,
+            gap_factor,
+            up,
+            uncertainty,
+            auto_speed,
+            auto_curvature,
+            significance,
+            max_relative_se,
+        );
         let k = detached(py, || of_fits(&self.fits, &opts))?;
         to_dict(py, k)
     }
@@ -212,7 +234,18 @@ impl FittedPaths {
     ) -> PyResult<Bound<'py, PyDict>> {
         let t = contiguous("t", t.as_slice())?;
         let q = contiguous("query_offsets", query_offsets.as_slice())?;
-        let opts = options(min_speed, min_curvature, f64::INFINITY, up);
+        let opts = options(
+            FdOrder::Two,
+            min_speed,
+            min_curvature,
+            f64::INFINITY,
+            up,
+            false,
+            false,
+            false,
+            3.0,
+            0.25,
+        );
         let k = detached(py, || of_fits_at(&self.fits, t, q, &opts))?;
         to_dict(py, k)
     }
@@ -292,6 +325,7 @@ impl FittedPaths {
         out.set_item("criterion", col(|i| i.criterion))?;
         out.set_item("window", col(|i| i.window))?;
         out.set_item("length_error", col(|i| i.length_error))?;
+        out.set_item("noise", col(|i| i.noise))?;
         Ok(out)
     }
 }

@@ -4,6 +4,7 @@ use super::error::{contiguous, detached, rows};
 use crate::diff::FdOrder;
 use crate::frame::Thresholds;
 use crate::kinematics::{kinematics, Kinematics, Options};
+use crate::uncertainty::Significance;
 use crate::KernelError;
 use numpy::{IntoPyArray, PyArray1, PyReadonlyArray1, PyReadonlyArray2, PyUntypedArrayMethods};
 use pyo3::prelude::*;
@@ -49,12 +50,67 @@ pub(crate) fn to_dict(py: Python<'_>, k: Kinematics) -> PyResult<Bound<'_, PyDic
         out.set_item(name, column(py, v, n, w)?)?;
     }
     out.set_item("flags", k.flags.into_pyarray(py))?;
+    out.set_item("noise", k.noise.into_pyarray(py))?;
+    if k.se_w == 1 {
+        let se = PyDict::new(py);
+        let columns = [
+            ("position", k.se_position),
+            ("velocity", k.se_velocity),
+            ("acceleration", k.se_acceleration),
+            ("jerk", k.se_jerk),
+            ("speed", k.se_speed),
+            ("accel_tangential", k.se_accel_tangential),
+            ("accel_normal", k.se_accel_normal),
+            ("curvature", k.se_curvature),
+            ("torsion", k.se_torsion),
+            ("angular_speed", k.se_angular_speed),
+            ("radius", k.se_radius),
+        ];
+        for (name, v) in columns {
+            se.set_item(name, v.into_pyarray(py))?;
+        }
+        out.set_item("se", se)?;
+    }
     Ok(out)
+}
+
+/// Kinematics options from the keyword arguments shared by every kinematics binding.
+#[allow(clippy::too_many_arguments)]
+pub(crate) fn options(
+    order: FdOrder,
+    min_speed: f64,
+    min_curvature: f64,
+    gap_factor: f64,
+    up: Option<[f64; 3]>,
+    uncertainty: bool,
+    auto_speed: bool,
+    auto_curvature: bool,
+    significance: f64,
+    max_relative_se: f64,
+) -> Options {
+    Options {
+        order,
+        thresholds: Thresholds {
+            min_speed,
+            min_curvature,
+        },
+        gap_factor,
+        up,
+        uncertainty,
+        significance: Significance {
+            speed: auto_speed,
+            curvature: auto_curvature,
+            z: significance,
+            max_relative: max_relative_se,
+        },
+    }
 }
 
 /// Finite-difference kinematics of concatenated tracks (validated arrays from the Python layer).
 #[pyfunction]
-#[pyo3(signature = (t, positions, offsets, *, order, min_speed, min_curvature, gap_factor, up=None))]
+#[pyo3(signature = (t, positions, offsets, *, order, min_speed, min_curvature, gap_factor, up=None,
+    uncertainty=false, auto_speed=false, auto_curvature=false, significance=3.0,
+    max_relative_se=0.25))]
 #[allow(clippy::too_many_arguments)]
 pub fn fd_kinematics<'py>(
     py: Python<'py>,
@@ -66,6 +122,11 @@ pub fn fd_kinematics<'py>(
     min_curvature: f64,
     gap_factor: f64,
     up: Option<[f64; 3]>,
+    uncertainty: bool,
+    auto_speed: bool,
+    auto_curvature: bool,
+    significance: f64,
+    max_relative_se: f64,
 ) -> PyResult<Bound<'py, PyDict>> {
     let dim = positions.shape()[1];
     let (t, x, off) = (
@@ -78,15 +139,18 @@ pub fn fd_kinematics<'py>(
             argument: "order",
             detail: format!("must be 2 or 4, got {order}"),
         })?;
-        let opts = Options {
+        let opts = options(
             order,
-            thresholds: Thresholds {
-                min_speed,
-                min_curvature,
-            },
+            min_speed,
+            min_curvature,
             gap_factor,
             up,
-        };
+            uncertainty,
+            auto_speed,
+            auto_curvature,
+            significance,
+            max_relative_se,
+        );
         kinematics(t, x, dim, off, &opts)
     })?;
     to_dict(py, result)

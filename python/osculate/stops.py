@@ -1,0 +1,214 @@
+"""Stops as intervals: where a track stands still, from its STOPPED samples and held positions."""
+
+from __future__ import annotations
+
+import dataclasses
+from typing import Any
+
+import numpy as np
+import numpy.typing as npt
+
+from .flags import Flag
+
+__all__ = ["Stops", "find_stops"]
+
+#: Runs of moving samples at most this long between two stopped runs are bridged.
+MERGE_SAMPLES = 2
+#: Minimum stop duration, in mean time steps of the track, when none is given.
+MIN_STOP_STEPS = 5.0
+#: A sample holds a stop's position when it lies within this many noise levels of its centre
+#: (for 2-D or 3-D Gaussian noise, |e|/σ exceeds 4 with probability 3.4e-4 or 1.1e-3).
+HOLD_NOISE = 4.0
+
+
+@dataclasses.dataclass(frozen=True)
+class Stops:
+    """Intervals where a track stands still, one row per stop, ordered by track and time.
+
+    Attributes
+    ----------
+    track : ndarray
+        Track label of each stop (the row index 0 for a single track).
+    start, end : ndarray of float
+        Times of the first and last sample of the stop (input time units).
+    duration : ndarray of float
+        ``end - start``.
+    position : ndarray, shape (m, dim)
+        Mean measured position while stopped.
+    samples : ndarray of int
+        Samples in the stop.
+    first_row, last_row : ndarray of int
+        Positions (0-based, in the caller's row order) of the first and last sample.
+    track_index : ndarray of int
+        Position of the track among the tracks (0-based, the order of ``summary()``).
+    """
+
+    track: np.ndarray
+    start: npt.NDArray[np.float64]
+    end: npt.NDArray[np.float64]
+    duration: npt.NDArray[np.float64]
+    position: npt.NDArray[np.float64]
+    samples: npt.NDArray[np.int64]
+    first_row: npt.NDArray[np.int64]
+    last_row: npt.NDArray[np.int64]
+    track_index: npt.NDArray[np.int64]
+
+    def __len__(self) -> int:
+        return len(self.start)
+
+    def __getitem__(self, name: str) -> np.ndarray:
+        return getattr(self, name)  # type: ignore[no-any-return]
+
+    def columns(self) -> dict[str, np.ndarray]:
+        """The stops as flat columns (``position_x``, ``position_y`` [, ``position_z``])."""
+        cols: dict[str, np.ndarray] = {"track": self.track, "start": self.start, "end": self.end}
+        cols["duration"] = self.duration
+        for j, axis in enumerate("xyz"[: self.position.shape[1]]):
+            cols[f"position_{axis}"] = self.position[:, j]
+        cols["samples"] = self.samples
+        return cols
+
+    def to_pandas(self) -> Any:
+        """The stops as a :class:`pandas.DataFrame` (columns of :meth:`columns`)."""
+        import pandas as pd
+
+        return pd.DataFrame(self.columns())
+
+
+def _runs(on: npt.NDArray[np.bool_], code: npt.NDArray[np.intp]) -> tuple[np.ndarray, np.ndarray]:
+    """First and last index of each maximal run of ``on`` within one value of ``code``."""
+    n = len(on)
+    if n == 0:
+        return np.zeros(0, np.intp), np.zeros(0, np.intp)
+    brk = np.ones(n + 1, bool)
+    brk[1:-1] = (on[1:] != on[:-1]) | (code[1:] != code[:-1])
+    starts = np.flatnonzero(brk[:-1])
+    ends = np.flatnonzero(brk[1:])
+    keep = on[starts]
+    return starts[keep], ends[keep]
+
+
+def find_stops(
+    t: npt.NDArray[np.float64],
+    x: npt.NDArray[np.float64],
+    flags: npt.NDArray[np.uint8],
+    offsets: npt.NDArray[np.int64],
+    noise: npt.NDArray[np.float64],
+    min_stop: float | None = None,
+) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Stop intervals of tracks stored contiguously (kernel row order).
+
+    Parameters
+    ----------
+    t, x, flags
+        Times, measured positions and flags of every row, tracks contiguous.
+    offsets : ndarray of int, shape (m + 1,)
+        Row offsets of the tracks.
+    noise : ndarray, shape (m,)
+        Position noise per track (NaN: unknown).
+    min_stop : float, optional
+        Shortest stop (time units); default five mean time steps of the track.
+
+    Returns
+    -------
+    first, last, code : ndarray of int
+        Kernel rows of the first and last sample of each stop, and its track number.
+
+    Notes
+    -----
+    Runs of STOPPED samples (moving gaps of at most two samples bridged) are stops when they last
+    at least ``min_stop``. Speed alone places the ends late (a smoothed speed rises before the
+    object moves), so each end is then moved over the neighbouring samples whose measured
+    position stays within four noise levels of the stop's mean position; stops that touch after
+    that are merged. This is common practice for stay-point detection, here with the radius
+    taken from the estimated noise instead of a fixed distance.
+    """
+    n = len(t)
+    counts = np.diff(offsets)
+    code = np.repeat(np.arange(len(counts)), counts)
+    stopped = (flags & np.uint8(Flag.STOPPED)) != 0
+    stopped &= (flags & np.uint8(Flag.INVALID)) == 0
+    # Bridge short moving runs between stopped runs of the same track.
+    moving_first, moving_last = _runs(~stopped, code)
+    inner = (moving_first > 0) & (moving_last < n - 1)
+    mf, ml = moving_first[inner], moving_last[inner]
+    bridge = (
+        (ml - mf + 1 <= MERGE_SAMPLES)
+        & stopped[mf - 1]
+        & stopped[ml + 1]
+        & (code[mf - 1] == code[ml + 1])
+    )
+    if bridge.any():
+        lengths = ml[bridge] - mf[bridge] + 1
+        rows = np.repeat(mf[bridge], lengths) + _ramp(lengths)
+        stopped[rows] = True
+    first, last = _runs(stopped, code)
+    step = np.full(len(counts), np.nan)
+    ok = counts > 1
+    step[ok] = (t[offsets[1:][ok] - 1] - t[offsets[:-1][ok]]) / (counts[ok] - 1)
+    shortest = MIN_STOP_STEPS * step[code[first]] if min_stop is None else float(min_stop)
+    long_enough = (t[last] - t[first]) >= shortest
+    first, last = first[long_enough], last[long_enough]
+    if len(first) == 0:
+        return first, last, code[first]
+    first, last = _hold(t, x, code, offsets, noise, first, last)
+    return first, last, code[first]
+
+
+def _ramp(lengths: np.ndarray) -> np.ndarray:
+    """0..len−1 for each length, concatenated."""
+    total = int(lengths.sum())
+    starts = np.repeat(np.cumsum(lengths) - lengths, lengths)
+    return np.arange(total) - starts
+
+
+def _centres(x: np.ndarray, first: np.ndarray, last: np.ndarray) -> np.ndarray:
+    finite = np.isfinite(x).all(axis=1)
+    cs = np.concatenate([np.zeros((1, x.shape[1])), np.cumsum(np.where(finite[:, None], x, 0), 0)])
+    cn = np.concatenate([[0], np.cumsum(finite)])
+    cnt = (cn[last + 1] - cn[first]).astype(float)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        return (cs[last + 1] - cs[first]) / cnt[:, None]  # type: ignore[no-any-return]
+
+
+def _hold(
+    t: np.ndarray,
+    x: np.ndarray,
+    code: np.ndarray,
+    offsets: np.ndarray,
+    noise: np.ndarray,
+    first: np.ndarray,
+    last: np.ndarray,
+) -> tuple[np.ndarray, np.ndarray]:
+    """Move stop ends over neighbours that hold the stop's position; merge stops that touch."""
+    n = len(t)
+    centre = _centres(x, first, last)
+    radius = HOLD_NOISE * noise[code[first]]
+    radius = np.where(np.isfinite(radius), radius, 0.0)
+    idx = np.arange(n)
+    # Backwards: every row belongs to the next stop of its track (if any).
+    nxt = np.searchsorted(first, idx, side="left")
+    has = nxt < len(first)
+    owner = np.where(has, nxt, 0)
+    same = has & (code[first[owner]] == code)
+    d = np.linalg.norm(x - centre[owner], axis=1)
+    away = ~same | ~(d <= radius[owner])
+    last_away = np.maximum.accumulate(np.where(away, idx, -1))
+    new_first = np.minimum(first, last_away[np.maximum(first - 1, 0)] + 1)
+    new_first = np.where(first == offsets[code[first]], first, new_first)
+    # Forwards: every row belongs to the previous stop of its track.
+    prv = np.searchsorted(last, idx, side="right") - 1
+    has = prv >= 0
+    owner = np.where(has, prv, 0)
+    same = has & (code[last[owner]] == code)
+    d = np.linalg.norm(x - centre[owner], axis=1)
+    away = ~same | ~(d <= radius[owner])
+    next_away = np.minimum.accumulate(np.where(away, idx, n)[::-1])[::-1]
+    new_last = np.maximum(last, next_away[np.minimum(last + 1, n - 1)] - 1)
+    new_last = np.where(last == offsets[code[last] + 1] - 1, last, new_last)
+    # Stops of one track that now touch or overlap become one.
+    touch = np.zeros(len(first), bool)
+    touch[1:] = (new_first[1:] <= new_last[:-1] + 1) & (code[first[1:]] == code[first[:-1]])
+    merged_first = np.minimum.reduceat(new_first, np.flatnonzero(~touch))
+    merged_last = np.maximum.reduceat(new_last, np.flatnonzero(~touch))
+    return merged_first, merged_last
