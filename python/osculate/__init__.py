@@ -7,6 +7,7 @@ acceleration and turn rate of measured trajectories, one track or thousands, wit
 from __future__ import annotations
 
 from ._core import InputError, __version__
+from .diagnose import SuspectDataWarning
 from .flags import Flag
 from .geodesy import enu_to_geodetic, geodetic_to_enu
 from .intrinsic import (
@@ -21,6 +22,8 @@ from .intrinsic import (
 from .lineint import GridField, LineIntegral, line_integral, power, work
 from .paths import Path, fit
 from .reparam import Resampled, resample
+from .stops import Stops
+from .summary import COLUMNS as SUMMARY_COLUMNS
 
 try:  # the DataFrame.osc accessor registers itself when pandas is importable
     from . import accessor as _accessor  # noqa: F401
@@ -37,6 +40,9 @@ __all__ = [
     "LineIntegral",
     "Path",
     "Resampled",
+    "SUMMARY_COLUMNS",
+    "Stops",
+    "SuspectDataWarning",
     "__version__",
     "arclength",
     "derivatives",

@@ -268,6 +268,8 @@ def _quantities(k: Kinematics) -> list[tuple[str, np.ndarray]]:
         a = getattr(k, f.name)
         if isinstance(a, np.ndarray) and a.ndim in (1, 2) and a.shape[0] == n and a.dtype != object:
             out.append((f.name, a))
+    for name, a in (k.se or {}).items():
+        out.append((f"{name}_se", a))
     # The track labels of Kinematics are batch positions here; the caller has the real column.
     return [(name, a) for name, a in out if name != "tracks"]
 
@@ -486,6 +488,51 @@ class OscAccessor:
             return res
         own = df.drop(columns=[c for c in res.columns if c in df.columns])
         return pd.concat([own, res], axis=1)
+
+    def stops(
+        self,
+        *,
+        time: Hashable,
+        position: Sequence[Hashable],
+        by: Optional[Hashable] = None,
+        crs: str = "cartesian",
+        origin: npt.ArrayLike | None = None,
+        **options: Any,
+    ) -> pd.DataFrame:
+        """Intervals where each track stands still.
+
+        Parameters
+        ----------
+        time, position, by, crs, origin, **options
+            As in :meth:`kinematics`.
+
+        Returns
+        -------
+        pandas.DataFrame
+            One row per stop: the track label (column named as ``by``, or ``track``), ``start``,
+            ``end``, ``duration`` (time units; datetimes give seconds), mean position
+            ``position_x``, ``position_y`` [, ``position_z``] and ``samples``; see
+            :class:`osculate.Stops`.
+
+        Examples
+        --------
+        >>> import numpy as np
+        >>> import pandas as pd
+        >>> import osculate as osc
+        >>> t = np.arange(60.0)
+        >>> x = np.concatenate([np.arange(20.0), np.full(20, 20.0), 20.0 + np.arange(20.0)])
+        >>> df = pd.DataFrame({"t": t, "x": x, "y": 0.0 * t})
+        >>> s = df.osc.stops(time="t", position=["x", "y"])
+        >>> s[["start", "end"]].to_numpy().tolist()
+        [[20.0, 39.0]]
+        """
+        prep = _Prepared(self._df, time, position, by, crs, origin)
+        k = prep.run(options) if prep.n else _synthetic(prep, options)
+        table = k.stops.to_pandas()
+        if prep.n == 0:
+            table = table.iloc[:0]
+        name = "track" if by is None else by
+        return table.rename(columns={"track": name})
 
     def summary(
         self,

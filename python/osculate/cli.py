@@ -147,6 +147,11 @@ def _parse_times(df: Any, column: str) -> Any:
     return df.assign(**{column: parsed})
 
 
+def _auto_or_float(text: str) -> float | str:
+    """A threshold on the command line: a number or "auto"."""
+    return "auto" if text == "auto" else float(text)
+
+
 def _selection(args: argparse.Namespace) -> dict[str, Any]:
     """Accessor keywords (columns, crs, estimator options) from the command line."""
     if args.geodetic is not None:
@@ -291,8 +296,12 @@ def _add_data_commands(sub: Any) -> None:
     common.add_argument("--method", help="derivative estimator, as in osculate.kinematics")
     common.add_argument("--order", type=int, help="finite-difference order")
     common.add_argument("--smoothing", type=float, help="smoothing parameter of the estimator")
-    common.add_argument("--min-speed", type=float, help="slower samples are STOPPED")
-    common.add_argument("--min-curvature", type=float, help="flatter samples are STRAIGHT")
+    common.add_argument(
+        "--min-speed", type=_auto_or_float, help="slower samples are STOPPED (or 'auto')"
+    )
+    common.add_argument(
+        "--min-curvature", type=_auto_or_float, help="flatter samples are STRAIGHT (or 'auto')"
+    )
     common.add_argument(
         "--gap-factor", type=float, help="time steps this many medians long are gaps"
     )

@@ -14,6 +14,7 @@ from . import _core
 from ._estimators import EstimatorOptions, fit_core
 from ._validate import Grouping, as_positions, as_real, as_times, call_kernel, group_rows
 from .flags import Flag
+from .diagnose import check_tracks
 from .stops import Stops, find_stops
 
 __all__ = [
@@ -328,10 +329,13 @@ def kinematics(
     window_span : float
         ``"local"``: window as a time span (all samples within ± span/2). With neither window
         option the length in samples is chosen by generalized cross-validation.
-    derivative : {0, 1, 2, 3}, default 2
+    derivative : {0, 1, 2, 3}, default 1
         ``"smooth"`` with automatic λ: the derivative order the choice is tuned for. 0 keeps the
         GCV (or unbiased-risk) choice, which is best for positions; ν > 0 rescales it for the
-        ν-th derivative by a plug-in rule (see Notes), never by more than 100×.
+        ν-th derivative by a plug-in rule (see Notes), never by more than 100×. The default 1
+        balances bias and noise: on noisy helices its standard errors cover the truth on
+        86–93 % of samples at ±1.96 se (0 gives 92–95 % with noisier curvature, 2 gives smoother
+        curvature whose bias the bands no longer cover, 70–82 %).
     tracks : array_like, shape (n,), optional
         Track id of each row; rows of a track need not be contiguous (they keep their order).
     offsets : array_like of int, shape (m + 1,), optional
@@ -513,6 +517,9 @@ def kinematics(
         )
         raw.update(rmf)
     grouped = tracks is not None or offsets is not None
+    check_tracks(
+        tk, xk, g.offsets, g.labels, raw["flags"], raw["acceleration"], raw["noise"], method
+    )
     stop_rows = _hold_stops(raw, tk, xk, g, min_stop)
     return _assemble(
         tt, x, g, raw, opts, info, grouped=grouped, frame=frame, stop_rows=stop_rows

@@ -12,7 +12,7 @@ from .flags import Flag
 if TYPE_CHECKING:
     from .intrinsic import Kinematics
 
-__all__ = ["COLUMNS", "summarize"]
+__all__ = ["COLUMNS", "group_quantile", "summarize"]
 
 #: Every summary column with its unit ("L" and "T" stand for the input's length and time units).
 COLUMNS: dict[str, str] = {
@@ -67,7 +67,7 @@ def _extreme(
     return out
 
 
-def _quantile(code: np.ndarray, m: int, value: np.ndarray, ok: np.ndarray, q: float) -> np.ndarray:
+def group_quantile(code: np.ndarray, m: int, value: np.ndarray, ok: np.ndarray, q: float) -> np.ndarray:
     """Per-track quantile (linear interpolation, as numpy.quantile) over rows ``ok``."""
     keep = ok & np.isfinite(value)
     c, v = code[keep], value[keep]
@@ -131,9 +131,9 @@ def summarize(k: Kinematics) -> dict[str, np.ndarray]:
         out[f"{name}_at"] = np.where(found, t[r] if len(t) else np.nan, np.nan)
         out[f"{name}_se"] = np.where(found, err[r] if len(err) else np.nan, np.nan)
         if name == "max_accel_normal":
-            out["p95_accel_normal"] = _quantile(code, m, value, trusted, 0.95)
+            out["p95_accel_normal"] = group_quantile(code, m, value, trusted, 0.95)
         if name == "min_radius":
-            out["p5_radius"] = _quantile(code, m, value, trusted, 0.05)
+            out["p5_radius"] = group_quantile(code, m, value, trusted, 0.05)
     # ∫ω dt over segments whose ends are both moving and define ω.
     om = kern(k.angular_speed)
     moving = (flags & int(Flag.STOPPED | Flag.INVALID)) == 0
