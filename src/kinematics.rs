@@ -591,7 +591,8 @@ impl Rows<'_> {
         if let Some(e) = &err {
             let defined = f.flags & (flag::STOPPED | flag::STRAIGHT) == 0;
             let rel = sig.max_relative;
-            if defined && (e.curvature > rel * f.curvature || e.speed > rel * f.speed) {
+            let too_big = |se: f64, v: f64| se.is_finite() && se > rel * v;
+            if defined && (too_big(e.curvature, f.curvature) || too_big(e.speed, f.speed)) {
                 f.flags |= flag::VAGUE;
             }
         }

@@ -217,6 +217,7 @@ def test_to_pandas_columns_and_array_likes():
 
 
 @pytest.mark.parametrize("dtype", [np.float32, np.int64, np.int16])
+@pytest.mark.filterwarnings("ignore::osculate.SuspectDataWarning")  # a zig-zag of integers
 def test_other_real_dtypes_and_layouts(dtype):
     t = np.arange(12)
     x = np.column_stack([t, t**2 % 7, t % 3]).astype(dtype)

@@ -520,11 +520,12 @@ class OscAccessor:
         >>> import pandas as pd
         >>> import osculate as osc
         >>> t = np.arange(60.0)
+        >>> # At x = 20 from t = 20 to t = 40 (the last sample of the stop starts the third leg).
         >>> x = np.concatenate([np.arange(20.0), np.full(20, 20.0), 20.0 + np.arange(20.0)])
         >>> df = pd.DataFrame({"t": t, "x": x, "y": 0.0 * t})
         >>> s = df.osc.stops(time="t", position=["x", "y"])
         >>> s[["start", "end"]].to_numpy().tolist()
-        [[20.0, 39.0]]
+        [[20.0, 40.0]]
         """
         prep = _Prepared(self._df, time, position, by, crs, origin)
         k = prep.run(options) if prep.n else _synthetic(prep, options)

@@ -20,7 +20,8 @@ MAX_PLAUSIBLE_SPEED = 12_000.0
 INTERLEAVED_RATIO = 0.5
 #: fd is useless when the noise of its r″ exceeds this fraction of the typical |r″|.
 FD_NOISE_RATIO = 0.3
-#: Share of a track flagged VAGUE, GAP or INVALID beyond which the track is reported.
+#: Share of a track flagged VAGUE or GAP beyond which the track is reported (INVALID rows are
+#: the input's own NaN, visible to the caller already).
 MOSTLY_FLAGGED = 0.5
 
 
@@ -67,6 +68,43 @@ def check_tracks(
     n = len(t)
     if m == 0 or n < 3:
         return
+    with np.errstate(all="ignore"):  # huge or tiny coordinates: the comparisons stay valid
+        _check(t, x, offsets, labels, flags, acceleration, noise, method)
+
+
+def _robust_noise(t: np.ndarray, x: np.ndarray, code: np.ndarray, m: int) -> np.ndarray:
+    """Per-track noise from the median absolute cubic pseudo-residual (see
+    :func:`osculate.kinematics`, Notes): isolated corners of an exact path do not count."""
+    n = len(t)
+    if n < 5:
+        return np.full(m, np.nan)
+    i = np.arange(2, n - 2)
+    nb = np.stack([i - 2, i - 1, i + 1, i + 2])
+    ti, tn = t[i], t[nb]
+    w = np.ones((4, len(i)))
+    for j in range(4):
+        for k in range(4):
+            if k != j:
+                w[j] *= (ti - tn[k]) / (tn[j] - tn[k])
+    c = 1.0 / np.sqrt(1.0 + (w * w).sum(axis=0))
+    e = np.einsum("ji,jid->id", w, x[nb]) - x[i]
+    ok = (code[i - 2] == code[i + 2]) & np.isfinite(e).all(axis=1)
+    a = np.abs(e * c[:, None])
+    med = group_quantile(np.repeat(code[i], x.shape[1]), m, a.ravel(), np.repeat(ok, x.shape[1]), 0.5)
+    return 1.4826 * med  # type: ignore[no-any-return]
+
+
+def _check(
+    t: npt.NDArray[np.float64],
+    x: npt.NDArray[np.float64],
+    offsets: npt.NDArray[np.int64],
+    labels: np.ndarray,
+    flags: npt.NDArray[np.uint8],
+    acceleration: npt.NDArray[np.float64],
+    noise: npt.NDArray[np.float64],
+    method: str,
+) -> None:
+    m = len(offsets) - 1
     code = np.repeat(np.arange(m), np.diff(offsets))
     finite = np.isfinite(x).all(axis=1)
     step1 = np.linalg.norm(x[1:] - x[:-1], axis=1)
@@ -83,20 +121,21 @@ def check_tracks(
         fast = speed > MAX_PLAUSIBLE_SPEED
         h = group_quantile(code[1:], m, dt, ok1, 0.5)
         acc = group_quantile(code, m, np.linalg.norm(acceleration, axis=1), finite, 0.5)
-        fd_noise = np.sqrt(6.0) * noise / (h * h)
+        robust = _robust_noise(t, x, code, m)
+        fd_noise = np.sqrt(6.0) * robust / (h * h)
         # Noise at the level of rounding (exact or simulated data) is no reason to warn.
-        real_noise = noise > 1e-9 * med1
+        real_noise = (robust > 1e-9 * med1) & (med1 > 0)
         noisy_fd = (fd_noise > FD_NOISE_RATIO * acc) & real_noise & (method == "fd")
-    bad_flags = int(Flag.VAGUE | Flag.GAP | Flag.INVALID)
+    bad_flags = int(Flag.VAGUE | Flag.GAP)
     share = np.bincount(code, weights=(flags & bad_flags) != 0, minlength=m) / np.maximum(counts, 1)
-    mostly = share > MOSTLY_FLAGGED
+    mostly = (share > MOSTLY_FLAGGED) & (counts >= 20)
     if interleaved.any():
         warnings.warn(
             f"track(s) {_names(labels, interleaved)}: every other row jumps away and back (the "
             "median distance two rows apart is less than half the distance between neighbours), "
             "as if several objects were interleaved; give tracks= (by=, --track) to separate them",
             SuspectDataWarning,
-            stacklevel=3,
+            stacklevel=4,
         )
     if fast.any():
         warnings.warn(
@@ -105,7 +144,7 @@ def check_tracks(
             "tracked in metres per second; check the units (millimetres given as metres, or "
             "milliseconds as seconds?)",
             SuspectDataWarning,
-            stacklevel=3,
+            stacklevel=4,
         )
     if noisy_fd.any():
         warnings.warn(
@@ -113,12 +152,12 @@ def check_tracks(
             "position units, finite differences give accelerations that are mostly noise (their "
             "standard error is over 30 % of the typical |r″|); use method='smooth' or 'local'",
             SuspectDataWarning,
-            stacklevel=3,
+            stacklevel=4,
         )
     if mostly.any():
         warnings.warn(
-            f"track(s) {_names(labels, mostly)}: more than half of the samples are flagged VAGUE, "
-            "GAP or INVALID; the figures of these tracks rest on few samples",
+            f"track(s) {_names(labels, mostly)}: more than half of the samples are flagged VAGUE "
+            "or GAP; the figures of these tracks rest on few samples",
             SuspectDataWarning,
-            stacklevel=3,
+            stacklevel=4,
         )

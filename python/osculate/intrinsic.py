@@ -379,7 +379,8 @@ def kinematics(
         A moving, curved sample whose standard error of curvature or speed exceeds this fraction
         of the value is flagged VAGUE (only where standard errors are computed).
     min_stop : float, optional
-        Shortest stop interval (time units) in ``k.stops``; default five mean time steps.
+        Shortest stop interval (time units) in ``k.stops``; default five mean time steps;
+        ``numpy.inf`` finds none and leaves every row as the estimator gave it.
 
     Returns
     -------
@@ -601,8 +602,8 @@ def _hold_stops(
     """Find the stop intervals (kernel rows) and make their rows stand still in ``raw``."""
     if min_stop is not None:
         min_stop = as_real("min_stop", min_stop)
-        if not (np.isfinite(min_stop) and min_stop >= 0):
-            raise _core.InputError(f"min_stop: must be finite and >= 0, got {min_stop!r}")
+        if not min_stop >= 0:
+            raise _core.InputError(f"min_stop: must be >= 0 (inf: none), got {min_stop!r}")
     first, last, code = find_stops(t, x, raw["flags"], g.offsets, raw["noise"], min_stop)
     if len(first) == 0:
         return first, last, code
@@ -759,6 +760,7 @@ def derivatives(
         tracks=tracks,
         offsets=offsets,
         gap_factor=gap_factor,
+        min_stop=np.inf,  # the estimator's own derivatives, stops not held
         **options,
     )
     keep = np.uint8(Flag.EDGE | Flag.GAP | Flag.INVALID)

@@ -88,6 +88,11 @@ def group_quantile(code: np.ndarray, m: int, value: np.ndarray, ok: np.ndarray, 
 
 def summarize(k: Kinematics) -> dict[str, np.ndarray]:
     """Per-track figures of :class:`osculate.Kinematics` (see :data:`COLUMNS`)."""
+    with np.errstate(over="ignore", invalid="ignore"):  # |r‴| of huge coordinates may be inf
+        return _summarize(k)
+
+
+def _summarize(k: Kinematics) -> dict[str, np.ndarray]:
     g = k._grouping
     kern = g.to_kernel
     m = g.n_tracks
