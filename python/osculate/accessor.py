@@ -602,8 +602,8 @@ class OscAccessor:
         first = prep.offsets[:-1] if prep.order is None else prep.order[prep.offsets[:-1]]
         last = prep.offsets[1:] - 1 if prep.order is None else prep.order[prep.offsets[1:] - 1]
         raw = prep.time_values
-        out.insert(0, "start", raw.iloc[first].array)
-        out.insert(1, "end", raw.iloc[last].array)
+        out["start"] = raw.iloc[first].array
+        out["end"] = raw.iloc[last].array
         if prep.crs == "geodetic":
             o = prep.origins if prep.origins is not None else np.empty((0, 3))
             for j, name in enumerate(("origin_lat", "origin_lon", "origin_h")):

@@ -16,6 +16,8 @@ __all__ = ["COLUMNS", "group_quantile", "summarize"]
 
 #: Every summary column with its unit ("L" and "T" stand for the input's length and time units).
 COLUMNS: dict[str, str] = {
+    "start": "T, time of the first sample",
+    "end": "T, time of the last sample",
     "samples": "rows of the track",
     "trusted": "samples with no flag at all (the ones extremes are taken over)",
     "length": "L, path length",
@@ -112,7 +114,10 @@ def _summarize(k: Kinematics) -> dict[str, np.ndarray]:
         a = kern(np.asarray(a))
         return a if a.ndim == 1 else a[:, 0]
 
-    out: dict[str, np.ndarray] = {"track": g.labels, "samples": counts}
+    out: dict[str, np.ndarray] = {"track": g.labels}
+    out["start"] = t[starts] if m else np.zeros(0)
+    out["end"] = t[g.offsets[1:] - 1] if m else np.zeros(0)
+    out["samples"] = counts
     out["trusted"] = np.bincount(code, weights=trusted, minlength=m).astype(np.int64)
     length = np.fmax.reduceat(kern(k.arclength), starts) if m else np.zeros(0)
     duration = t[g.offsets[1:] - 1] - t[starts] if m else np.zeros(0)
