@@ -247,7 +247,7 @@ fn check_options(opts: &Options) -> Result<Option<Vector3<f64>>> {
             detail: format!("must be finite and > 0, got {}", sig.z),
         });
     }
-    if !(sig.max_relative > 0.0) {
+    if sig.max_relative.is_nan() || sig.max_relative <= 0.0 {
         return Err(KernelError::Option {
             argument: "max_relative_se",
             detail: format!("must be > 0, got {}", sig.max_relative),

@@ -315,6 +315,8 @@ mod tests {
         g
     }
 
+    type Quantity<'a> = &'a dyn Fn(&[Vector3<f64>; 3]) -> f64;
+
     #[test]
     fn gradients_match_numerical_differentiation() {
         // A generic 3-D sample; Gram = identity on derivatives 1..=3, so the standard error is
@@ -331,7 +333,7 @@ mod tests {
         let e = propagate(&d[0], &d[1], &d[2], 3, &gram, 1.0);
         let norm = |g: &[Vector3<f64>; 4]| g.iter().map(|v| v.norm_squared()).sum::<f64>().sqrt();
         let c = |d: &[Vector3<f64>; 3]| d[0].cross(&d[1]);
-        let cases: [(f64, &dyn Fn(&[Vector3<f64>; 3]) -> f64); 5] = [
+        let cases: [(f64, Quantity); 5] = [
             (e.accel_tangential, &|d| d[0].dot(&d[1]) / d[0].norm()),
             (e.accel_normal, &|d| c(d).norm() / d[0].norm()),
             (e.curvature, &|d| c(d).norm() / d[0].norm().powi(3)),

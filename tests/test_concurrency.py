@@ -17,8 +17,8 @@ import threading
 import time
 
 import numpy as np
-import pytest
 import osculate as osc
+import pytest
 
 # The inputs carry deliberate noise under fd: the data check rightly warns; not tested here.
 pytestmark = pytest.mark.filterwarnings("ignore::osculate.SuspectDataWarning")

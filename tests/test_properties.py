@@ -33,8 +33,8 @@ from fractions import Fraction
 from math import factorial
 
 import numpy as np
-import pytest
 import osculate as osc
+import pytest
 from hypothesis import HealthCheck, event, given, settings
 from hypothesis import strategies as st
 from hypothesis.extra import numpy as hnp

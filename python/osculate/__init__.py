@@ -31,6 +31,7 @@ except ImportError:  # pragma: no cover - numpy-only installs
     pass
 
 __all__ = [
+    "SUMMARY_COLUMNS",
     "Derivatives",
     "Flag",
     "Frames",
@@ -40,7 +41,6 @@ __all__ = [
     "LineIntegral",
     "Path",
     "Resampled",
-    "SUMMARY_COLUMNS",
     "Stops",
     "SuspectDataWarning",
     "__version__",

@@ -112,7 +112,8 @@ def fit_core(
     uncertainty: Optional[str] = None,
 ) -> _core.FittedPaths:
     """Fit every track (arrays in kernel row order); ``uncertainty`` ("sampling" or "posterior")
-    keeps what the standard errors need."""
+    keeps what the standard errors need.
+    """
     start = end = None
     if opts.bc_velocity is not None:
         start, end = _end_velocities(opts.bc_velocity, x.shape[1])

@@ -74,7 +74,8 @@ def check_tracks(
 
 def _robust_noise(t: np.ndarray, x: np.ndarray, code: np.ndarray, m: int) -> np.ndarray:
     """Per-track noise from the median absolute cubic pseudo-residual (see
-    :func:`osculate.kinematics`, Notes): isolated corners of an exact path do not count."""
+    :func:`osculate.kinematics`, Notes): isolated corners of an exact path do not count.
+    """
     n = len(t)
     if n < 5:
         return np.full(m, np.nan)
@@ -90,7 +91,9 @@ def _robust_noise(t: np.ndarray, x: np.ndarray, code: np.ndarray, m: int) -> np.
     e = np.einsum("ji,jid->id", w, x[nb]) - x[i]
     ok = (code[i - 2] == code[i + 2]) & np.isfinite(e).all(axis=1)
     a = np.abs(e * c[:, None])
-    med = group_quantile(np.repeat(code[i], x.shape[1]), m, a.ravel(), np.repeat(ok, x.shape[1]), 0.5)
+    med = group_quantile(
+        np.repeat(code[i], x.shape[1]), m, a.ravel(), np.repeat(ok, x.shape[1]), 0.5
+    )
     return 1.4826 * med  # type: ignore[no-any-return]
 
 

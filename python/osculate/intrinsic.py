@@ -13,8 +13,8 @@ import numpy.typing as npt
 from . import _core
 from ._estimators import EstimatorOptions, fit_core
 from ._validate import Grouping, as_positions, as_real, as_times, call_kernel, group_rows
-from .flags import Flag
 from .diagnose import check_tracks
+from .flags import Flag
 from .stops import Stops, find_stops
 
 __all__ = [
@@ -522,9 +522,7 @@ def kinematics(
         tk, xk, g.offsets, g.labels, raw["flags"], raw["acceleration"], raw["noise"], method
     )
     stop_rows = _hold_stops(raw, tk, xk, g, min_stop)
-    return _assemble(
-        tt, x, g, raw, opts, info, grouped=grouped, frame=frame, stop_rows=stop_rows
-    )
+    return _assemble(tt, x, g, raw, opts, info, grouped=grouped, frame=frame, stop_rows=stop_rows)
 
 
 def _uncertainty(value: Union[bool, str, None], method: str) -> Optional[str]:

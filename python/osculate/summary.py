@@ -47,9 +47,7 @@ COLUMNS: dict[str, str] = {
     "noise": "L, noise standard deviation of the positions seen by the estimator",
 }
 
-_UNTRUSTED = int(
-    Flag.STOPPED | Flag.STRAIGHT | Flag.EDGE | Flag.GAP | Flag.INVALID | Flag.VAGUE
-)
+_UNTRUSTED = int(Flag.STOPPED | Flag.STRAIGHT | Flag.EDGE | Flag.GAP | Flag.INVALID | Flag.VAGUE)
 
 
 def _extreme(
@@ -69,7 +67,9 @@ def _extreme(
     return out
 
 
-def group_quantile(code: np.ndarray, m: int, value: np.ndarray, ok: np.ndarray, q: float) -> np.ndarray:
+def group_quantile(
+    code: np.ndarray, m: int, value: np.ndarray, ok: np.ndarray, q: float
+) -> np.ndarray:
     """Per-track quantile (linear interpolation, as numpy.quantile) over rows ``ok``."""
     keep = ok & np.isfinite(value)
     c, v = code[keep], value[keep]
@@ -128,7 +128,12 @@ def _summarize(k: Kinematics) -> dict[str, np.ndarray]:
     jerk = np.linalg.norm(kern(k.jerk), axis=1)
     extremes = (
         ("max_speed", kern(k.speed), kse("speed"), True),
-        ("max_abs_accel_tangential", np.abs(kern(k.accel_tangential)), kse("accel_tangential"), True),
+        (
+            "max_abs_accel_tangential",
+            np.abs(kern(k.accel_tangential)),
+            kse("accel_tangential"),
+            True,
+        ),
         ("max_accel_normal", kern(k.accel_normal), kse("accel_normal"), True),
         ("min_radius", kern(k.radius), kse("radius"), False),
         ("max_jerk_magnitude", jerk, kse("jerk"), True),
