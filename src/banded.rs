@@ -140,7 +140,7 @@ impl SymBand {
     /// every step is the tangent of the corresponding step of [`SymBand::ldlt_in_place`] and
     /// [`SymBand::inverse_band`], so the cost stays O(n b²) and only band entries are touched.
     /// The smoothing-spline standard errors need it: the sampling covariance of the coefficients
-    /// is Σ H Σ = Σ + λ dΣ/dλ for M = H + λP.
+    /// is Σ H Σ = −dΣ/dμ for M(μ) = μH + λP at μ = 1.
     pub fn inverse_band_tangent(&self, sigma: &SymBand, dm: &SymBand) -> Result<SymBand> {
         let (n, b) = (self.n, self.b);
         let w = b + 1;

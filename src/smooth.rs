@@ -47,7 +47,8 @@ pub enum Smoothing {
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum Covariance {
     /// The sampling covariance of the estimate, σ² ℓᵢᵀℓᵢ (the spread over repeated noise, bias
-    /// not included): σ² B⁽ᵃ⁾ Σ H Σ B⁽ᵇ⁾ᵀ with Σ = (H + λP)⁻¹ and H the weighted data part.
+    /// not included): σ² B⁽ᵃ⁾ Σ H Σ B⁽ᵇ⁾ᵀ with Σ = (H + λP)⁻¹ and H the weighted data part,
+    /// computed as −dΣ/dμ for M(μ) = μH + λP by [`SymBand::inverse_band_tangent`].
     Sampling,
     /// Wahba's Bayesian posterior covariance σ² B⁽ᵃ⁾ Σ B⁽ᵇ⁾ᵀ (G. Wahba, J. R. Stat. Soc. B 45
     /// (1983) 133–150), larger than the sampling one by an allowance for the smoothing bias; its
@@ -262,28 +263,26 @@ impl Problem {
     }
 
     /// Per sample, the Gram matrix of the rows of derivatives 0..=3 (scaled time units) for the
-    /// fit `e` at `lambda`.
-    fn grams(&self, e: &Eval, lambda: f64, cov: Covariance) -> Result<Vec<Gram>> {
+    /// fit `e`.
+    fn grams(&self, e: &Eval, cov: Covariance) -> Result<Vec<Gram>> {
         let (n, k) = (self.n, self.k);
         let (ldlt, sig) = e.factor.as_ref().expect("evaluated with the trace");
         let c = match cov {
             Covariance::Posterior => sig.clone(),
             Covariance::Sampling => {
-                // Σ H Σ = Σ + λ dΣ/dλ, with dM/dλ = P assembled from the penalty rows.
-                let m = k.div_ceil(2);
-                let mut p = SymBand::zeros(sig.n, k)?;
-                for (r, row) in self.penalty.iter().enumerate() {
-                    let first = r / m;
+                // Σ H Σ = −dΣ/dμ for M(μ) = μH + λP at μ = 1, H = Σᵢ wᵢ bᵢ bᵢᵀ the data part.
+                // (Σ + λ dΣ/dλ is the same matrix, but at large λ it is the small difference
+                // of two large ones near the ends of the track.)
+                let mut h = SymBand::zeros(sig.n, k)?;
+                for ((first, b), w) in self.rows.iter().zip(&self.w) {
                     for a in 0..=k {
-                        for b in 0..=a {
-                            p.add_lower(first + a, first + b, row[a] * row[b]);
+                        for c in 0..=a {
+                            h.add_lower(first + a, first + c, w * b[a] * b[c]);
                         }
                     }
                 }
-                let mut d = ldlt.inverse_band_tangent(sig, &p)?;
-                for (v, s) in d.a.iter_mut().zip(&sig.a) {
-                    *v = s + lambda * *v;
-                }
+                let mut d = ldlt.inverse_band_tangent(sig, &h)?;
+                d.a.iter_mut().for_each(|v| *v = -*v);
                 d
             }
         };
@@ -508,7 +507,7 @@ pub fn smooth_with(
         noise = prob.noise(&fit);
     }
     let mut gram = match covariance {
-        Some(cov) => prob.grams(&fit, lambda, cov)?,
+        Some(cov) => prob.grams(&fit, cov)?,
         None => Vec::new(),
     };
     // Derivative a in scaled time is h̄^a times the derivative in the caller's time.

@@ -92,7 +92,6 @@ def test_bands_cover_the_truth(case, method):
         assert low <= cov <= 0.99, (method, case.__name__, q, cov)
 
 
-@pytest.mark.xfail(reason="measured: agrees to 0.03 % inside, up to 1.8 % near the ends; open")
 def test_smoothing_standard_errors_equal_the_dense_smoother():
     # se of position and velocity of "smooth" = σ sqrt(diag(S Sᵀ)) with S the smoother matrix,
     # built densely here column by column (the fit is linear: S e_j is the fit of a unit impulse
