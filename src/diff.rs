@@ -10,6 +10,8 @@
 //! track the stencil slides inwards and keeps its width (one-sided): r′ keeps its formal order, the
 //! higher derivatives lose one, and the sample is flagged EDGE.
 
+use crate::uncertainty::Gram;
+
 /// Widest stencil used by any order.
 pub const MAX_WIDTH: usize = 7;
 /// Highest derivative order computed.
@@ -130,18 +132,25 @@ pub fn place(i: usize, width: usize, n: usize) -> (usize, bool) {
 /// r′, r″ and r‴ of one sample, and whether any stencil was one-sided or narrowed.
 ///
 /// `t` holds the track's times, `x` its positions row-major with `D` columns. r‴ is NaN when the
-/// track is too short to hold four nodes.
+/// track is too short to hold four nodes. With `gram`, also the Gram matrix of the rows of
+/// derivatives 0..=3 (the position row is the sample itself) from the same weights, for
+/// [`crate::uncertainty`]; its r‴ entries are NaN when r‴ is.
 #[inline]
 pub fn derivatives_at<const D: usize>(
     t: &[f64],
     x: &[f64],
     i: usize,
     order: FdOrder,
+    gram: Option<&mut Gram>,
 ) -> ([f64; D], [f64; D], [f64; D], bool) {
     let n = t.len();
     let wl = order.width_low().min(n);
     let wh = order.width_high().min(n);
     let mut edge = wl < order.width_low() || wh < order.width_high();
+    let want = gram.is_some();
+    // Smoother rows by node, from the first node of the wider stencil (which holds the other).
+    let (s_high, _) = place(i, wh, n);
+    let mut rows = [[0.0; MAX_DERIV + 1]; MAX_WIDTH];
 
     let (s, centred) = place(i, wl, n);
     edge |= !centred;
@@ -153,6 +162,10 @@ pub fn derivatives_at<const D: usize>(
             for k in 0..D {
                 d1[k] += wj[1] * row[k];
                 d2[k] += wj[2] * row[k];
+            }
+            if want {
+                rows[s + j - s_high][1] = wj[1];
+                rows[s + j - s_high][2] = wj[2];
             }
         }
     };
@@ -173,6 +186,9 @@ pub fn derivatives_at<const D: usize>(
                 for k in 0..D {
                     d3[k] += wj[3] * row[k];
                 }
+                if want {
+                    rows[j][3] = wj[3];
+                }
             }
         };
         match wh {
@@ -181,42 +197,16 @@ pub fn derivatives_at<const D: usize>(
             _ => high(&fornberg(t[i], &t[s..s + wh], 3)[..wh]),
         }
     }
+    if let Some(g) = gram {
+        rows[i - s_high][0] = 1.0;
+        *g = crate::uncertainty::gram_of_rows(&rows[..wh], None);
+        if wh <= MAX_DERIV {
+            for a in 0..4 {
+                g[crate::uncertainty::at(a, 3)] = f64::NAN;
+            }
+        }
+    }
     (d1, d2, d3, edge)
-}
-
-/// Gram matrix of the finite-difference rows of derivatives 0..=3 at sample `i` (position: the
-/// sample itself; r′, r″ and r‴ from the stencils of [`derivatives_at`]), for
-/// [`crate::uncertainty`]. The r‴ entries are NaN when the track is too short for its stencil.
-pub fn gram_at(t: &[f64], i: usize, order: FdOrder) -> crate::uncertainty::Gram {
-    let n = t.len();
-    let wl = order.width_low().min(n);
-    let wh = order.width_high().min(n);
-    let (sl, _) = place(i, wl, n);
-    // Rows indexed from `lo`, the first node any stencil reads.
-    let (sh, _) = place(i, wh, n);
-    let lo = sl.min(sh).min(i);
-    let hi = (sl + wl).max(sh + wh).max(i + 1);
-    let mut rows = [[0.0; 4]; 2 * MAX_WIDTH];
-    rows[i - lo][0] = 1.0;
-    let w = fornberg(t[i], &t[sl..sl + wl], 2);
-    for j in 0..wl {
-        rows[sl + j - lo][1] = w[j][1];
-        rows[sl + j - lo][2] = w[j][2];
-    }
-    let no_jerk = wh <= MAX_DERIV;
-    if !no_jerk {
-        let w = fornberg(t[i], &t[sh..sh + wh], 3);
-        for j in 0..wh {
-            rows[sh + j - lo][3] = w[j][3];
-        }
-    }
-    let mut g = crate::uncertainty::gram_of_rows(&rows[..hi - lo], None);
-    if no_jerk {
-        for a in 0..4 {
-            g[crate::uncertainty::at(a, 3)] = f64::NAN;
-        }
-    }
-    g
 }
 
 /// The rows `[first, last]` that the stencils of sample `i` read.
@@ -279,9 +269,9 @@ mod tests {
         let t: Vec<f64> = (0..9).map(|i| (i as f64 * 0.37).powf(1.3)).collect();
         let x: Vec<f64> = t.iter().map(|&u| u * u * u - 2.0 * u).collect();
         for i in 0..t.len() {
-            let (_, _, d3, _) = derivatives_at::<1>(&t, &x, i, FdOrder::Two);
+            let (_, _, d3, _) = derivatives_at::<1>(&t, &x, i, FdOrder::Two, None);
             assert_relative_eq!(d3[0], 6.0, max_relative = 1e-8);
-            let (d1, d2, d3, _) = derivatives_at::<1>(&t, &x, i, FdOrder::Four);
+            let (d1, d2, d3, _) = derivatives_at::<1>(&t, &x, i, FdOrder::Four, None);
             assert_relative_eq!(d1[0], 3.0 * t[i] * t[i] - 2.0, epsilon = 1e-9);
             assert_relative_eq!(d2[0], 6.0 * t[i], epsilon = 1e-9);
             assert_relative_eq!(d3[0], 6.0, max_relative = 1e-8);
@@ -292,9 +282,28 @@ mod tests {
     fn third_derivative_is_nan_on_three_samples() {
         let t = [0.0, 1.0, 2.5];
         let x = [0.0, 1.0, 6.25];
-        let (d1, d2, d3, edge) = derivatives_at::<1>(&t, &x, 1, FdOrder::Two);
+        let (d1, d2, d3, edge) = derivatives_at::<1>(&t, &x, 1, FdOrder::Two, None);
         assert!(d3[0].is_nan() && edge);
         assert_relative_eq!(d1[0], 2.0, max_relative = 1e-12);
         assert_relative_eq!(d2[0], 2.0, max_relative = 1e-12);
+    }
+
+    #[test]
+    fn gram_of_the_central_stencils() {
+        // Uniform step h, order 2, interior: r′ = (x₊ − x₋)/2h, r″ = (x₊ − 2x + x₋)/h² and the
+        // 5-point r‴ = (x₊₂ − 2x₊ + 2x₋ − x₋₂)/2h³ (closed forms), so G₁₁ = 1/(2h²),
+        // G₂₂ = 6/h⁴, G₀₂ = −2/h², G₃₃ = 10/(4h⁶), G₁₃ = −(2 + 2)/(2h · 2h³) = −1/h⁴, G₀₁ = 0.
+        use crate::uncertainty::at;
+        let h = 0.5;
+        let t: Vec<f64> = (0..9).map(|i| i as f64 * h).collect();
+        let x = vec![0.0; 9];
+        let mut g = [0.0; 10];
+        derivatives_at::<1>(&t, &x, 4, FdOrder::Two, Some(&mut g));
+        let close = |a: f64, b: f64| (a - b).abs() <= 1e-12 * b.abs().max(1.0);
+        assert!(close(g[at(0, 0)], 1.0) && close(g[at(0, 1)], 0.0));
+        assert!(close(g[at(1, 1)], 1.0 / (2.0 * h * h)));
+        assert!(close(g[at(2, 2)], 6.0 / h.powi(4)) && close(g[at(0, 2)], -2.0 / (h * h)));
+        assert!(close(g[at(3, 3)], 10.0 / (4.0 * h.powi(6))));
+        assert!(close(g[at(1, 3)], -1.0 / h.powi(4)));
     }
 }

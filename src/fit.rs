@@ -180,6 +180,16 @@ impl TrackFit {
         }
     }
 
+    /// Noise of the positions seen by the fit (NaN where not estimated); cheaper than
+    /// [`TrackFit::info`], which also integrates the length error.
+    pub fn noise(&self) -> f64 {
+        match self {
+            TrackFit::Poly { info, .. } => info.noise,
+            TrackFit::Local(f) => f.noise,
+            _ => f64::NAN,
+        }
+    }
+
     /// Whether fitted sample `j` is an end estimate.
     pub fn is_edge(&self, j: usize) -> bool {
         match self {

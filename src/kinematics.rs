@@ -8,7 +8,7 @@
 use crate::batch::{self, partition, plan_jobs, track_rows, SplitRows};
 use crate::diff::{derivatives_at, reach, FdOrder};
 use crate::error::{try_collect, try_filled, try_zeroed, KernelError, Result};
-use crate::fit::Fits;
+use crate::fit::{Fits, TrackFit};
 use crate::frame::{flag, frenet, Thresholds};
 use crate::uncertainty::{self, propagate, Errors, Gram, Significance};
 use nalgebra::Vector3;
@@ -345,15 +345,12 @@ fn run<const D: usize>(
                 .iter()
                 .any(|v| !v.is_finite());
             let (tk, xk) = (&t[rows.clone()], &x[rows.start * D..rows.end * D]);
-            let (gap_dt, noise) = if has_invalid {
-                let (tv, xv) = finite_rows::<D>(tk, xk)?;
-                (f64::NAN, uncertainty::difference_noise(&tv, &xv, D))
+            let gap_dt = if has_invalid {
+                f64::NAN // decided on the compacted track
             } else {
-                (
-                    opts.gap_factor * batch::median_step(tk)?,
-                    uncertainty::difference_noise(tk, xk, D),
-                )
+                opts.gap_factor * batch::median_step(tk)?
             };
+            let noise = uncertainty::difference_noise(tk, xk, D);
             Ok(TrackPrep {
                 gap_dt,
                 has_invalid,
@@ -431,7 +428,7 @@ fn of_fits_dim<const D: usize>(fits: &Fits, opts: &Options) -> Result<Kinematics
     let parts = partition(out.rows(), (0..m).map(|k| offsets[k + 1] - offsets[k]));
     parts.into_par_iter().enumerate().for_each(|(k, mut rows)| {
         let fit = &fits.tracks[k];
-        let noise = fit.info().noise;
+        let noise = fit.noise();
         let kept = fits.rows[k].as_deref();
         let len = offsets[k + 1] - offsets[k];
         if kept.is_some() {
@@ -475,7 +472,7 @@ fn of_fits_dim<const D: usize>(fits: &Fits, opts: &Options) -> Result<Kinematics
         }
     });
     accumulate_arclength(&mut out.arclength, offsets);
-    out.noise = fits.tracks.iter().map(|f| f.info().noise).collect();
+    out.noise = fits.tracks.iter().map(TrackFit::noise).collect();
     Ok(out)
 }
 
@@ -533,7 +530,7 @@ fn of_fits_at_dim<const D: usize>(
             rows.emit(j, &s, up.as_ref(), opts);
         }
     });
-    out.noise = fits.tracks.iter().map(|f| f.info().noise).collect();
+    out.noise = fits.tracks.iter().map(TrackFit::noise).collect();
     Ok(out)
 }
 
@@ -647,20 +644,6 @@ struct Context<'a> {
     noise: f64,
 }
 
-/// The finite rows of one track.
-fn finite_rows<const D: usize>(t: &[f64], x: &[f64]) -> Result<(Vec<f64>, Vec<f64>)> {
-    let keep = |i: &usize| x[i * D..(i + 1) * D].iter().all(|v| v.is_finite());
-    let m = (0..t.len()).filter(keep).count();
-    let tv = try_collect(m, (0..t.len()).filter(keep).map(|i| t[i]))?;
-    let xv = try_collect(
-        m * D,
-        (0..t.len())
-            .filter(keep)
-            .flat_map(|i| x[i * D..(i + 1) * D].iter().copied()),
-    )?;
-    Ok((tv, xv))
-}
-
 /// Estimates for rows `local` of one track whose positions are all finite. `holes[j]` marks rows
 /// removed between compacted rows j and j + 1. The arclength column receives segment lengths.
 fn dense<const D: usize>(
@@ -676,7 +659,9 @@ fn dense<const D: usize>(
     let want_se = opts.uncertainty || sig.speed || sig.curvature;
     let n = t.len();
     for (j, i) in local.enumerate() {
-        let (d1, d2, d3, edge) = derivatives_at::<D>(t, x, i, opts.order);
+        let mut gram = [0.0; 10];
+        let (d1, d2, d3, edge) =
+            derivatives_at::<D>(t, x, i, opts.order, want_se.then_some(&mut gram));
         let (lo, hi) = reach(i, n, opts.order);
         let gap = (lo..hi).any(|q| t[q + 1] - t[q] > gap_dt || holes.is_some_and(|h| h[q]));
         let mut p = [0.0; D];
@@ -694,7 +679,7 @@ fn dense<const D: usize>(
             d3,
             ds,
             flags,
-            unc: want_se.then(|| (crate::diff::gram_at(t, i, opts.order), ctx.noise)),
+            unc: want_se.then_some((gram, ctx.noise)),
         };
         out.emit(j, &s, ctx.up, opts);
     }

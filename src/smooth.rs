@@ -471,17 +471,22 @@ pub fn smooth_with(
         Smoothing::Noise(s) => s,
         _ => f64::NAN,
     };
+    // The fit at the final λ, when the search already made it.
+    let mut reuse = None;
     let (lambda, criterion) = match how {
         Smoothing::Fixed(l) => (l, f64::NAN),
         Smoothing::Gcv | Smoothing::Noise(_) => {
             let (l, c) = prob.search(how)?;
+            let pilot_fit = prob.eval(10f64.powf(l), true)?;
+            if how == Smoothing::Gcv {
+                if let Some(e) = &pilot_fit {
+                    noise = prob.noise(e);
+                }
+            }
             let pilot = 10f64.powf(l);
             let mut factor = 1.0;
             if derivative > 0 {
-                if let Some(e) = prob.eval(pilot, true)? {
-                    if how == Smoothing::Gcv {
-                        noise = prob.noise(&e);
-                    }
+                if let Some(e) = &pilot_fit {
                     let pp = to_piecewise(&u, degree, &e.coef, dim)?;
                     factor = derivative_factor(
                         degree.div_ceil(2),
@@ -492,17 +497,22 @@ pub fn smooth_with(
                     );
                 }
             }
+            if factor == 1.0 {
+                reuse = pilot_fit;
+            }
             (pilot * factor, c)
         }
     };
-    let fit = prob
-        .eval(lambda, true)?
-        .ok_or_else(|| KernelError::Option {
-            argument: "smoothing",
-            detail: format!(
-                "λ* = {lambda:e} makes the system numerically singular; use a larger value"
-            ),
-        })?;
+    let fit = match reuse {
+        Some(e) => Some(e),
+        None => prob.eval(lambda, true)?,
+    }
+    .ok_or_else(|| KernelError::Option {
+        argument: "smoothing",
+        detail: format!(
+            "λ* = {lambda:e} makes the system numerically singular; use a larger value"
+        ),
+    })?;
     if noise.is_nan() {
         noise = prob.noise(&fit);
     }

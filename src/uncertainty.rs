@@ -237,8 +237,9 @@ pub fn propagate(
 /// cubic instead of linear interpolation: ε̃ᵢ = Σⱼ wⱼ xⱼ − xᵢ with w the weights (Fornberg's,
 /// derivative 0) of the cubic through the two samples on each side, cᵢ² = 1/(1 + Σ wⱼ²), and
 /// σ̂² = Σ cᵢ² ε̃ᵢ² / (dim (n − 4)). A path that is locally cubic gives 0, so a smooth,
-/// well-sampled path is not mistaken for noise (the linear version sees h²|r″| there). Falls back
-/// to the linear (three-point) version for tracks of 3 or 4 samples; NaN with fewer.
+/// well-sampled path is not mistaken for noise (the linear version sees h²|r″| there). Rows with a
+/// non-finite coordinate are skipped. Falls back to the linear (three-point) version for tracks of
+/// 3 or 4 finite rows; NaN with fewer.
 ///
 /// # Examples
 ///
@@ -251,32 +252,45 @@ pub fn propagate(
 /// assert!(s > 0.05 && s < 0.2);
 /// ```
 pub fn difference_noise(t: &[f64], x: &[f64], dim: usize) -> f64 {
+    let finite = |i: &usize| x[i * dim..(i + 1) * dim].iter().all(|v| v.is_finite());
     let n = t.len();
-    if n < 3 {
+    let m = (0..n).filter(finite).count();
+    if m < 3 {
         return f64::NAN;
     }
-    let half = if n >= 5 { 2 } else { 1 };
+    let half = if m >= 5 { 2 } else { 1 };
+    let width = 2 * half + 1;
+    // The last `width` finite rows, oldest first; the middle one is the sample tested.
+    let mut win = [0usize; 5];
+    let mut seen = 0;
     let mut acc = 0.0;
     let mut nodes = [0.0; 4];
-    let mut idx = [0usize; 4];
-    for i in half..n - half {
-        let mut k = 0;
-        for j in i - half..=i + half {
-            if j != i {
-                nodes[k] = t[j];
-                idx[k] = j;
-                k += 1;
-            }
+    for r in (0..n).filter(finite) {
+        win.copy_within(1.., 0);
+        win[4] = r;
+        seen += 1;
+        if seen < width {
+            continue;
         }
-        let w = crate::diff::fornberg(t[i], &nodes[..k], 0);
-        let c2 = 1.0 / (1.0 + (0..k).map(|j| w[j][0] * w[j][0]).sum::<f64>());
+        let rows = &win[5 - width..];
+        let i = rows[half];
+        let others = rows.iter().copied().filter(|&j| j != i);
+        for (node, j) in nodes.iter_mut().zip(others.clone()) {
+            *node = t[j];
+        }
+        let w = crate::diff::fornberg(t[i], &nodes[..width - 1], 0);
+        let c2 = 1.0 / (1.0 + (0..width - 1).map(|j| w[j][0] * w[j][0]).sum::<f64>());
         for d in 0..dim {
-            let e: f64 =
-                (0..k).map(|j| w[j][0] * x[idx[j] * dim + d]).sum::<f64>() - x[i * dim + d];
+            let e: f64 = others
+                .clone()
+                .enumerate()
+                .map(|(k, j)| w[k][0] * x[j * dim + d])
+                .sum::<f64>()
+                - x[i * dim + d];
             acc += c2 * e * e;
         }
     }
-    (acc / (dim * (n - 2 * half)) as f64).sqrt()
+    (acc / (dim * (m - 2 * half)) as f64).sqrt()
 }
 
 #[cfg(test)]
@@ -372,5 +386,19 @@ mod tests {
         let mean = x.iter().sum::<f64>() / n as f64;
         let s = (x.iter().map(|v| (v - mean).powi(2)).sum::<f64>() / n as f64).sqrt();
         assert_relative_eq!(difference_noise(&t, &x, 1), s, max_relative = 0.2);
+        // A NaN row is skipped: the same as the compacted track.
+        let mut holed = x.clone();
+        holed[100] = f64::NAN;
+        let (tc, xc): (Vec<f64>, Vec<f64>) = t
+            .iter()
+            .zip(&x)
+            .enumerate()
+            .filter(|&(i, _)| i != 100)
+            .map(|(_, (a, b))| (*a, *b))
+            .unzip();
+        assert_eq!(
+            difference_noise(&t, &holed, 1),
+            difference_noise(&tc, &xc, 1)
+        );
     }
 }

@@ -1,10 +1,10 @@
 //! Bindings of fitted paths: spline, smoothing spline and local-polynomial estimators.
 
 use super::error::{contiguous, detached, rows};
-use super::kinematics::{options, to_dict};
+use super::kinematics::{options, significance, to_dict};
 use crate::diff::FdOrder;
 use crate::fit::{fit_batch, Fits, Method};
-use crate::kinematics::{of_fits, of_fits_at};
+use crate::kinematics::{of_fits, of_fits_at, Options};
 use crate::local::Window;
 use crate::resample::{resample, Spacing};
 use crate::smooth::{Covariance, Smoothing};
@@ -205,18 +205,16 @@ impl FittedPaths {
         significance: f64,
         max_relative_se: f64,
     ) -> PyResult<Bound<'py, PyDict>> {
-        let opts = options(
-            FdOrder::Two,
-            min_speed,
-            min_curvature,
-            gap_factor,
-            up,
+        let opts = Options {
             uncertainty,
-            auto_speed,
-            auto_curvature,
-            significance,
-            max_relative_se,
-        );
+            significance: self::significance(
+                auto_speed,
+                auto_curvature,
+                significance,
+                max_relative_se,
+            ),
+            ..options(FdOrder::Two, min_speed, min_curvature, gap_factor, up)
+        };
         let k = detached(py, || of_fits(&self.fits, &opts))?;
         to_dict(py, k)
     }
@@ -234,18 +232,7 @@ impl FittedPaths {
     ) -> PyResult<Bound<'py, PyDict>> {
         let t = contiguous("t", t.as_slice())?;
         let q = contiguous("query_offsets", query_offsets.as_slice())?;
-        let opts = options(
-            FdOrder::Two,
-            min_speed,
-            min_curvature,
-            f64::INFINITY,
-            up,
-            false,
-            false,
-            false,
-            3.0,
-            0.25,
-        );
+        let opts = options(FdOrder::Two, min_speed, min_curvature, f64::INFINITY, up);
         let k = detached(py, || of_fits_at(&self.fits, t, q, &opts))?;
         to_dict(py, k)
     }

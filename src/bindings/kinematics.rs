@@ -74,19 +74,14 @@ pub(crate) fn to_dict(py: Python<'_>, k: Kinematics) -> PyResult<Bound<'_, PyDic
     Ok(out)
 }
 
-/// Kinematics options from the keyword arguments shared by every kinematics binding.
-#[allow(clippy::too_many_arguments)]
+/// Kinematics options from the keyword arguments every kinematics binding takes (no standard
+/// errors, absolute thresholds only).
 pub(crate) fn options(
     order: FdOrder,
     min_speed: f64,
     min_curvature: f64,
     gap_factor: f64,
     up: Option<[f64; 3]>,
-    uncertainty: bool,
-    auto_speed: bool,
-    auto_curvature: bool,
-    significance: f64,
-    max_relative_se: f64,
 ) -> Options {
     Options {
         order,
@@ -96,13 +91,22 @@ pub(crate) fn options(
         },
         gap_factor,
         up,
-        uncertainty,
-        significance: Significance {
-            speed: auto_speed,
-            curvature: auto_curvature,
-            z: significance,
-            max_relative: max_relative_se,
-        },
+        ..Options::default()
+    }
+}
+
+/// The noise-aware flag options from their keyword arguments.
+pub(crate) fn significance(
+    speed: bool,
+    curvature: bool,
+    z: f64,
+    max_relative: f64,
+) -> Significance {
+    Significance {
+        speed,
+        curvature,
+        z,
+        max_relative,
     }
 }
 
@@ -139,18 +143,16 @@ pub fn fd_kinematics<'py>(
             argument: "order",
             detail: format!("must be 2 or 4, got {order}"),
         })?;
-        let opts = options(
-            order,
-            min_speed,
-            min_curvature,
-            gap_factor,
-            up,
+        let opts = Options {
             uncertainty,
-            auto_speed,
-            auto_curvature,
-            significance,
-            max_relative_se,
-        );
+            significance: self::significance(
+                auto_speed,
+                auto_curvature,
+                significance,
+                max_relative_se,
+            ),
+            ..options(order, min_speed, min_curvature, gap_factor, up)
+        };
         kinematics(t, x, dim, off, &opts)
     })?;
     to_dict(py, result)
