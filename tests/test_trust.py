@@ -52,9 +52,7 @@ _SHORT = "measured below 85 %: derivative bias of the automatic choice is not in
     "case, method",
     [
         (_helix, "smooth"),
-        pytest.param(
-            _clothoid_arc, "smooth", marks=pytest.mark.xfail(reason=f"a_n 68 %, {_SHORT}")
-        ),
+        (_clothoid_arc, "smooth"),
         pytest.param(_helix, "local", marks=pytest.mark.xfail(reason=f"speed 61 %, {_SHORT}")),
         pytest.param(
             _clothoid_arc, "local", marks=pytest.mark.xfail(reason=f"speed 83 %, {_SHORT}")

@@ -82,7 +82,7 @@ class EstimatorOptions:
         self.weights = weights
         self.window = None if window is None else as_int("window", window, 1, 2**62)
         self.window_span = None if window_span is None else as_real("window_span", window_span)
-        self.derivative = 1 if derivative is None else as_int("derivative", derivative, 0, 3)
+        self.derivative = 0 if derivative is None else as_int("derivative", derivative, 0, 3)
 
     def describe(self) -> str:
         """Short human-readable summary, e.g. ``smooth (degree 5)``."""

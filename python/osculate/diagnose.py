@@ -46,7 +46,6 @@ def check_tracks(
     labels: np.ndarray,
     flags: npt.NDArray[np.uint8],
     acceleration: npt.NDArray[np.float64],
-    noise: npt.NDArray[np.float64],
     method: str,
 ) -> None:
     """Warn (:class:`SuspectDataWarning`) about tracks whose data look wrong (kernel row order).
@@ -59,22 +58,26 @@ def check_tracks(
         Row offsets of the tracks.
     labels : ndarray
         Track labels, for the messages.
-    noise : ndarray
-        Position noise per track.
     method : str
         The estimator.
     """
     m = len(offsets) - 1
-    n = len(t)
-    if m == 0 or n < 3:
+    if m == 0 or len(t) < 3:
         return
     with np.errstate(all="ignore"):  # huge or tiny coordinates: the comparisons stay valid
-        _check(t, x, offsets, labels, flags, acceleration, noise, method)
+        findings = _findings(t, x, offsets, flags, acceleration, method)
+    for bad, message in findings:
+        if bad.any():
+            warnings.warn(
+                f"track(s) {_names(labels, bad)}: {message}", SuspectDataWarning, stacklevel=3
+            )
 
 
 def _robust_noise(t: np.ndarray, x: np.ndarray, code: np.ndarray, m: int) -> np.ndarray:
-    """Per-track noise from the median absolute cubic pseudo-residual (see
-    :func:`osculate.kinematics`, Notes): isolated corners of an exact path do not count.
+    """Estimate the noise per track from the median absolute cubic pseudo-residual.
+
+    The pseudo-residuals are those of :func:`osculate.kinematics` (Notes) for ``"fd"``; their
+    median ignores isolated corners of an exact path.
     """
     n = len(t)
     if n < 5:
@@ -83,7 +86,7 @@ def _robust_noise(t: np.ndarray, x: np.ndarray, code: np.ndarray, m: int) -> np.
     nb = np.stack([i - 2, i - 1, i + 1, i + 2])
     ti, tn = t[i], t[nb]
     w = np.ones((4, len(i)))
-    for j in range(4):
+    for j in range(4):  # Lagrange weights of the cubic through the 4 neighbours
         for k in range(4):
             if k != j:
                 w[j] *= (ti - tn[k]) / (tn[j] - tn[k])
@@ -97,18 +100,18 @@ def _robust_noise(t: np.ndarray, x: np.ndarray, code: np.ndarray, m: int) -> np.
     return 1.4826 * med  # type: ignore[no-any-return]
 
 
-def _check(
+def _findings(
     t: npt.NDArray[np.float64],
     x: npt.NDArray[np.float64],
     offsets: npt.NDArray[np.int64],
-    labels: np.ndarray,
     flags: npt.NDArray[np.uint8],
     acceleration: npt.NDArray[np.float64],
-    noise: npt.NDArray[np.float64],
     method: str,
-) -> None:
+) -> list[tuple[npt.NDArray[np.bool_], str]]:
+    """Per check, the tracks that fail it and what to tell the caller."""
     m = len(offsets) - 1
-    code = np.repeat(np.arange(m), np.diff(offsets))
+    counts = np.diff(offsets)
+    code = np.repeat(np.arange(m), counts)
     finite = np.isfinite(x).all(axis=1)
     step1 = np.linalg.norm(x[1:] - x[:-1], axis=1)
     ok1 = (code[1:] == code[:-1]) & finite[1:] & finite[:-1]
@@ -116,51 +119,44 @@ def _check(
     ok2 = (code[2:] == code[:-2]) & finite[2:] & finite[:-2]
     med1 = group_quantile(code[1:], m, step1, ok1, 0.5)
     med2 = group_quantile(code[2:], m, step2, ok2, 0.5)
-    counts = np.diff(offsets)
-    with np.errstate(invalid="ignore", divide="ignore"):
-        interleaved = (counts >= 10) & (med1 > 0) & (med2 < INTERLEAVED_RATIO * med1)
-        dt = np.diff(t)
-        speed = group_quantile(code[1:], m, step1 / dt, ok1, 0.5)
-        fast = speed > MAX_PLAUSIBLE_SPEED
+    interleaved = (counts >= 10) & (med1 > 0) & (med2 < INTERLEAVED_RATIO * med1)
+    dt = np.diff(t)
+    speed = group_quantile(code[1:], m, step1 / dt, ok1, 0.5)
+    fast = speed > MAX_PLAUSIBLE_SPEED
+    noisy_fd = np.zeros(m, bool)
+    noise = np.full(m, np.nan)
+    if method == "fd":
         h = group_quantile(code[1:], m, dt, ok1, 0.5)
         acc = group_quantile(code, m, np.linalg.norm(acceleration, axis=1), finite, 0.5)
-        robust = _robust_noise(t, x, code, m)
-        fd_noise = np.sqrt(6.0) * robust / (h * h)
+        noise = _robust_noise(t, x, code, m)
         # Noise at the level of rounding (exact or simulated data) is no reason to warn.
-        real_noise = (robust > 1e-9 * med1) & (med1 > 0)
-        noisy_fd = (fd_noise > FD_NOISE_RATIO * acc) & real_noise & (method == "fd")
+        real = (noise > 1e-9 * med1) & (med1 > 0)
+        noisy_fd = real & (np.sqrt(6.0) * noise / (h * h) > FD_NOISE_RATIO * acc)
     bad_flags = int(Flag.VAGUE | Flag.GAP)
     share = np.bincount(code, weights=(flags & bad_flags) != 0, minlength=m) / np.maximum(counts, 1)
     mostly = (share > MOSTLY_FLAGGED) & (counts >= 20)
-    if interleaved.any():
-        warnings.warn(
-            f"track(s) {_names(labels, interleaved)}: every other row jumps away and back (the "
-            "median distance two rows apart is less than half the distance between neighbours), "
-            "as if several objects were interleaved; give tracks= (by=, --track) to separate them",
-            SuspectDataWarning,
-            stacklevel=4,
-        )
-    if fast.any():
-        warnings.warn(
-            f"track(s) {_names(labels, fast)}: the median speed between samples is "
-            f"{np.nanmax(speed[fast]):.3g} position units per time unit, faster than anything "
-            "tracked in metres per second; check the units (millimetres given as metres, or "
-            "milliseconds as seconds?)",
-            SuspectDataWarning,
-            stacklevel=4,
-        )
-    if noisy_fd.any():
-        warnings.warn(
-            f"track(s) {_names(labels, noisy_fd)}: with noise of {np.nanmax(noise[noisy_fd]):.3g} "
-            "position units, finite differences give accelerations that are mostly noise (their "
-            "standard error is over 30 % of the typical |r″|); use method='smooth' or 'local'",
-            SuspectDataWarning,
-            stacklevel=4,
-        )
-    if mostly.any():
-        warnings.warn(
-            f"track(s) {_names(labels, mostly)}: more than half of the samples are flagged VAGUE "
-            "or GAP; the figures of these tracks rest on few samples",
-            SuspectDataWarning,
-            stacklevel=4,
-        )
+    return [
+        (
+            interleaved,
+            "every other row jumps away and back (the median distance two rows apart is less "
+            "than half the distance between neighbours), as if several objects were interleaved; "
+            "give tracks= (by=, --track) to separate them",
+        ),
+        (
+            fast,
+            f"the median speed between samples is up to {np.nanmax(speed, initial=0):.3g} "
+            "position units per time unit, faster than anything tracked in metres per second; "
+            "check the units (millimetres given as metres, or milliseconds as seconds?)",
+        ),
+        (
+            noisy_fd,
+            f"with noise of up to {np.nanmax(noise, initial=0):.3g} position units, finite "
+            "differences give accelerations that are mostly noise (their standard error is over "
+            "30 % of the typical |r″|); use method='smooth' or 'local'",
+        ),
+        (
+            mostly,
+            "more than half of the samples are flagged VAGUE or GAP; the figures of these tracks "
+            "rest on few samples",
+        ),
+    ]

@@ -15,7 +15,8 @@ from ._estimators import EstimatorOptions, fit_core
 from ._validate import Grouping, as_positions, as_real, as_times, call_kernel, group_rows
 from .diagnose import check_tracks
 from .flags import Flag
-from .stops import Stops, find_stops
+from ._stopgo import hold_stops, refit_moving, stop_rows
+from .stops import Stops, find_stops, stop_table
 
 __all__ = [
     "Derivatives",
@@ -503,9 +504,22 @@ def kinematics(
         fitted = fit_core(opts, g, tk, xk, uncertainty=kind)
         raw = call_kernel(g, fitted.kinematics, **options)
         info = fitted.info()
+    check_tracks(tk, xk, g.offsets, g.labels, raw["flags"], raw["acceleration"], method)
+    first, last, code = _find_stops(raw, tk, xk, g, min_stop)
+    held = stop_rows(first, last, len(tk))
+    refit = None
+    if method in ("smooth", "local"):
+        refit = refit_moving(opts, kind, options, tk, xk, g, raw, info, held)
+    hold_stops(raw, held)
     if frame == "rotation-minimizing":
         # The frame is carried along the fitted path (the samples themselves for "fd").
-        fitted_x = xk if method == "fd" else fitted.evaluate(tk, g.offsets, 0)
+        if method == "fd":
+            fitted_x = xk
+        else:
+            fitted_x = fitted.evaluate(tk, g.offsets, 0)
+            if refit is not None:
+                rows, part, part_offsets = refit
+                fitted_x[rows] = part.evaluate(tk[rows], part_offsets, 0)
         start = None if initial is None else _vector3("initial", initial, x.shape[1])
         rmf = call_kernel(
             g,
@@ -518,11 +532,9 @@ def kinematics(
         )
         raw.update(rmf)
     grouped = tracks is not None or offsets is not None
-    check_tracks(
-        tk, xk, g.offsets, g.labels, raw["flags"], raw["acceleration"], raw["noise"], method
-    )
-    stop_rows = _hold_stops(raw, tk, xk, g, min_stop)
-    return _assemble(tt, x, g, raw, opts, info, grouped=grouped, frame=frame, stop_rows=stop_rows)
+    labels = g.labels if grouped else np.zeros(1, np.int64)
+    stops = stop_table(tk, xk, first, last, code, labels, g.order)
+    return _assemble(tt, x, g, raw, opts, info, grouped=grouped, frame=frame, stops=stops)
 
 
 def _uncertainty(value: Union[bool, str, None], method: str) -> Optional[str]:
@@ -563,63 +575,26 @@ def _thresholds(
 
     speed, auto_speed = one("min_speed", min_speed, 1e-3)
     curvature, auto_curvature = one("min_curvature", min_curvature, 1e-6)
-    z = as_real("significance", significance)
-    if not (np.isfinite(z) and z > 0):
-        raise _core.InputError(f"significance: must be finite and > 0, got {significance!r}")
-    rel = as_real("max_relative_se", max_relative_se)
-    if not rel > 0:
-        raise _core.InputError(f"max_relative_se: must be > 0, got {max_relative_se!r}")
     return {
         "min_speed": speed,
         "min_curvature": curvature,
         "auto_speed": auto_speed,
         "auto_curvature": auto_curvature,
-        "significance": z,
-        "max_relative_se": rel,
+        # Their ranges are checked by the kernel.
+        "significance": as_real("significance", significance),
+        "max_relative_se": as_real("max_relative_se", max_relative_se),
     }
 
 
-_HELD = ("velocity", "acceleration", "jerk", "speed", "accel_tangential", "accel_normal")
-_UNDEFINED_WHEN_STOPPED = (
-    "tangent",
-    "normal",
-    "binormal",
-    "curvature",
-    "signed_curvature",
-    "torsion",
-    "radius",
-    "center",
-    "angular_speed",
-    "angular_accel",
-)
-
-
-def _hold_stops(
+def _find_stops(
     raw: dict[str, Any], t: F64, x: F64, g: Grouping, min_stop: float | None
 ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """Find the stop intervals (kernel rows) and make their rows stand still in ``raw``."""
+    """Stop intervals (kernel rows) from the flags of ``raw``."""
     if min_stop is not None:
         min_stop = as_real("min_stop", min_stop)
         if not min_stop >= 0:
             raise _core.InputError(f"min_stop: must be >= 0 (inf: none), got {min_stop!r}")
-    first, last, code = find_stops(t, x, raw["flags"], g.offsets, raw["noise"], min_stop)
-    if len(first) == 0:
-        return first, last, code
-    lengths = last - first + 1
-    rows = np.repeat(first, lengths) + (
-        np.arange(int(lengths.sum())) - np.repeat(np.cumsum(lengths) - lengths, lengths)
-    )
-    invalid = (raw["flags"][rows] & np.uint8(Flag.INVALID)) != 0
-    rows = rows[~invalid]
-    for name in _HELD:
-        raw[name][rows] = 0.0
-    for name in _UNDEFINED_WHEN_STOPPED:
-        if name in raw:
-            raw[name][rows] = np.nan
-    raw["flags"][rows] = (raw["flags"][rows] | np.uint8(Flag.STOPPED)) & ~np.uint8(
-        Flag.STRAIGHT | Flag.VAGUE
-    )
-    return first, last, code
+    return find_stops(t, x, raw["flags"], g.offsets, raw["noise"], min_stop)
 
 
 def _assemble(
@@ -632,7 +607,7 @@ def _assemble(
     *,
     grouped: bool,
     frame: str = "frenet",
-    stop_rows: tuple[np.ndarray, np.ndarray, np.ndarray] | None = None,
+    stops: Stops | None = None,
 ) -> Kinematics:
     """Kinematics on the caller's rows from the kernel's dictionary (kernel row order)."""
     raw = dict(raw)
@@ -643,7 +618,7 @@ def _assemble(
     se = None if se_raw is None else _se_mapping(se_raw, g, x.shape[1])
     return Kinematics(
         se=se,
-        stops=_stops_table(t, x, g, stop_rows, grouped),
+        stops=Stops.none(x.shape[1]) if stops is None else stops,
         t=t,
         position=x,
         tracks=g.labels[_row_codes(g)] if grouped else None,
@@ -668,41 +643,6 @@ def _se_mapping(se: dict[str, np.ndarray], g: Grouping, dim: int) -> Mapping[str
         out[name] = a
     out["signed_curvature"] = out["curvature"]
     return types.MappingProxyType(out)
-
-
-def _stops_table(
-    t: F64,
-    x: F64,
-    g: Grouping,
-    stop_rows: tuple[np.ndarray, np.ndarray, np.ndarray] | None,
-    grouped: bool,
-) -> Stops:
-    """The stop intervals, in caller rows and labels."""
-    if stop_rows is None:
-        first = last = code = np.zeros(0, np.intp)
-    else:
-        first, last, code = stop_rows
-    xk = g.to_kernel(x)
-    tk = g.to_kernel(t)
-    finite = np.isfinite(xk).all(axis=1)
-    cs = np.concatenate([np.zeros((1, x.shape[1])), np.cumsum(np.where(finite[:, None], xk, 0), 0)])
-    cn = np.concatenate([[0], np.cumsum(finite)])
-    with np.errstate(invalid="ignore", divide="ignore"):
-        centre = (cs[last + 1] - cs[first]) / (cn[last + 1] - cn[first])[:, None]
-    order = g.order
-    caller = (lambda r: r) if order is None else (lambda r: order[r])
-    labels = g.labels[code] if grouped else np.zeros(len(code), np.int64)
-    return Stops(
-        track=labels,
-        start=tk[first],
-        end=tk[last],
-        duration=tk[last] - tk[first],
-        position=centre,
-        samples=(last - first + 1).astype(np.int64),
-        first_row=np.asarray(caller(first), np.int64),
-        last_row=np.asarray(caller(last), np.int64),
-        track_index=code.astype(np.int64),
-    )
 
 
 def _row_codes(g: Grouping) -> npt.NDArray[np.intp]:

@@ -10,7 +10,7 @@ import numpy.typing as npt
 
 from .flags import Flag
 
-__all__ = ["Stops", "find_stops"]
+__all__ = ["Stops", "find_stops", "stop_table"]
 
 #: Runs of moving samples at most this long between two stopped runs are bridged.
 MERGE_SAMPLES = 2
@@ -52,6 +52,12 @@ class Stops:
     first_row: npt.NDArray[np.int64]
     last_row: npt.NDArray[np.int64]
     track_index: npt.NDArray[np.int64]
+
+    @classmethod
+    def none(cls, dim: int) -> Stops:
+        """No stops (paths of ``dim`` coordinates)."""
+        empty = np.zeros(0, np.int64)
+        return cls(empty, empty * 0.0, empty * 0.0, empty * 0.0, np.zeros((0, dim)), *[empty] * 4)
 
     def __len__(self) -> int:
         return len(self.start)
@@ -153,6 +159,30 @@ def find_stops(
         return first, last, code[first]
     first, last = _hold(t, x, code, offsets, noise, first, last)
     return first, last, code[first]
+
+
+def stop_table(
+    t: np.ndarray,
+    x: np.ndarray,
+    first: np.ndarray,
+    last: np.ndarray,
+    code: np.ndarray,
+    labels: np.ndarray,
+    order: np.ndarray | None,
+) -> Stops:
+    """The stops of :func:`find_stops` as a table; ``order`` maps kernel rows to the caller's."""
+    caller = (lambda r: r) if order is None else (lambda r: order[r])
+    return Stops(
+        track=labels[code],
+        start=t[first],
+        end=t[last],
+        duration=t[last] - t[first],
+        position=_centres(x, first, last),
+        samples=(last - first + 1).astype(np.int64),
+        first_row=np.asarray(caller(first), np.int64),
+        last_row=np.asarray(caller(last), np.int64),
+        track_index=code.astype(np.int64),
+    )
 
 
 def _ramp(lengths: np.ndarray) -> np.ndarray:

@@ -125,7 +125,7 @@ def _summarize(k: Kinematics) -> dict[str, np.ndarray]:
     out["duration"] = duration
     with np.errstate(invalid="ignore", divide="ignore"):
         out["mean_speed"] = length / np.where(duration > 0, duration, np.nan)
-    jerk = np.linalg.norm(kern(k.jerk), axis=1)
+    jerk = np.hypot.reduce(kern(k.jerk), axis=1)  # scale-safe, unlike a sum of squares
     extremes = (
         ("max_speed", kern(k.speed), kse("speed"), True),
         (
