@@ -8,9 +8,9 @@ use crate::batch::{check_offsets, check_times, track_rows};
 use crate::error::{KernelError, Result};
 use crate::local::{local_with, LocalFit, Window};
 use crate::piecewise::PiecewisePoly;
-use crate::smooth::{self, smooth_with, Covariance, Smoothing};
+use crate::smooth::{self, smooth_with, Covariance, JerkFit, Smoothing};
 use crate::spline::{interpolate, EndCondition};
-use crate::uncertainty::Gram;
+use crate::uncertainty::{at, Gram};
 use rayon::prelude::*;
 
 /// Samples flagged EDGE at each end of a smoothing spline, in smoothing bandwidths.
@@ -87,6 +87,9 @@ pub struct FitInfo {
     pub length_error: f64,
     /// Noise standard deviation of the positions seen by the estimator (NaN where not estimated).
     pub noise: f64,
+    /// Dimensionless λ* of the smoother fit that r‴ comes from (NaN where r‴ has no fit of its
+    /// own).
+    pub jerk_smoothing: f64,
 }
 
 /// The fit of one track.
@@ -104,6 +107,8 @@ pub enum TrackFit {
         edge: usize,
         /// Per fitted sample, the Gram matrix of the derivative rows (empty unless asked for).
         gram: Vec<Gram>,
+        /// A smoother fit of the same samples whose r‴ replaces this one's.
+        jerk: Option<Box<JerkFit>>,
     },
     /// Local polynomial fits.
     Local(LocalFit),
@@ -133,9 +138,15 @@ impl TrackFit {
     pub fn at_sample(&self, j: usize, out: &mut [f64]) {
         match self {
             TrackFit::Invalid => out.iter_mut().for_each(|v| *v = f64::NAN),
-            TrackFit::Poly { poly, .. } => {
+            TrackFit::Poly { poly, jerk, .. } => {
                 let i = j.min(poly.intervals() - 1);
                 poly.eval_on(i, poly.x[j], 3, out);
+                if let Some(f) = jerk {
+                    let mut buf = [0.0; 12];
+                    f.path.eval_on(i, poly.x[j], 3, &mut buf[..out.len()]);
+                    let d = poly.dim;
+                    out[3 * d..4 * d].copy_from_slice(&buf[3 * d..4 * d]);
+                }
             }
             TrackFit::Local(f) => {
                 let w = 4 * f.dim;
@@ -149,7 +160,15 @@ impl TrackFit {
     pub fn at_time(&self, t: f64, out: &mut [f64]) {
         match self {
             TrackFit::Invalid => out.iter_mut().for_each(|v| *v = f64::NAN),
-            TrackFit::Poly { poly, .. } => poly.eval(t, 3, out),
+            TrackFit::Poly { poly, jerk, .. } => {
+                poly.eval(t, 3, out);
+                if let Some(f) = jerk {
+                    let mut buf = [0.0; 12];
+                    f.path.eval(t, 3, &mut buf[..out.len()]);
+                    let d = poly.dim;
+                    out[3 * d..4 * d].copy_from_slice(&buf[3 * d..4 * d]);
+                }
+            }
             TrackFit::Local(f) => f.eval(t, out),
             TrackFit::Linear { t: ts, x, dim } => {
                 // Segment holding t (the right one at a sample), extrapolating at the ends.
@@ -171,11 +190,23 @@ impl TrackFit {
         }
     }
 
-    /// Gram matrix of the derivative rows at fitted sample `j`, when it was kept.
-    pub fn gram(&self, j: usize) -> Option<&Gram> {
+    /// Gram matrix of the derivative rows at fitted sample `j`, when it was kept. With a separate
+    /// fit for r‴, its G₃₃ comes from that fit and the covariances of r‴ with r, r′, r″ (two
+    /// different smoothers of the same data) are left out: an approximation of the torsion's
+    /// standard error, whose r‴ term dominates.
+    pub fn gram(&self, j: usize) -> Option<Gram> {
         match self {
-            TrackFit::Poly { gram, .. } => gram.get(j),
-            TrackFit::Local(f) => f.gram.get(j),
+            TrackFit::Poly { gram, jerk, .. } => {
+                let mut g = *gram.get(j)?;
+                if let Some(f) = jerk {
+                    for a in 0..3 {
+                        g[at(a, 3)] = 0.0;
+                    }
+                    g[at(3, 3)] = f.gram.get(j)?[at(3, 3)];
+                }
+                Some(g)
+            }
+            TrackFit::Local(f) => f.gram.get(j).copied(),
             _ => None,
         }
     }
@@ -316,6 +347,7 @@ impl TrackFit {
                 window: nan,
                 length_error: self.length_error(),
                 noise: nan,
+                jerk_smoothing: nan,
             },
             TrackFit::Poly { info, .. } => FitInfo {
                 length_error: self.length_error(),
@@ -332,6 +364,7 @@ impl TrackFit {
                 },
                 length_error: nan,
                 noise: f.noise,
+                jerk_smoothing: nan,
             },
         }
     }
@@ -372,9 +405,11 @@ pub fn fit_track(
                 window: nan,
                 length_error: nan,
                 noise: nan,
+                jerk_smoothing: nan,
             },
             edge: 2,
             gram: Vec::new(),
+            jerk: None,
         },
         Method::Smooth {
             degree,
@@ -398,9 +433,11 @@ pub fn fit_track(
                     window: nan,
                     length_error: nan,
                     noise: f.noise,
+                    jerk_smoothing: f.jerk.as_ref().map_or(nan, |j| j.lambda),
                 },
                 edge: band.min(t.len()),
                 gram: f.gram,
+                jerk: f.jerk.map(Box::new),
             }
         }
         Method::Local {

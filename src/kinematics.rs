@@ -466,7 +466,7 @@ fn of_fits_dim<const D: usize>(fits: &Fits, opts: &Options) -> Result<Kinematics
                 d3: take(3),
                 ds: if j == 0 { 0.0 } else { fit.segment(j) },
                 flags,
-                unc: fit.gram(j).map(|g| (*g, noise)),
+                unc: fit.gram(j).map(|g| (g, noise)),
             };
             rows.emit(row_of(j), &s, up.as_ref(), opts);
         }

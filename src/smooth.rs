@@ -74,6 +74,20 @@ pub struct SmoothFit {
     /// Per sample, the Gram matrix of the derivative rows in the caller's time units (empty unless
     /// asked for).
     pub gram: Vec<Gram>,
+    /// With automatic λ: the fit whose third derivative (jerk, torsion) is used, at a λ* tuned
+    /// for ν = 3 (see the module notes); `None` when that is not larger than `lambda`.
+    pub jerk: Option<JerkFit>,
+}
+
+/// The smoother fit from which r‴ is taken.
+#[derive(Debug, Clone, PartialEq)]
+pub struct JerkFit {
+    /// The spline (only its third derivative is used).
+    pub path: PiecewisePoly,
+    /// Its dimensionless λ*.
+    pub lambda: f64,
+    /// Per sample, its Gram matrices (only the r‴ entry G₃₃ is used; empty unless asked for).
+    pub gram: Vec<Gram>,
 }
 
 /// Fewest samples a smoothing spline of `degree` needs.
@@ -313,6 +327,49 @@ impl Problem {
         Ok(out)
     }
 
+    /// The spline of an evaluation in the caller's units (t = t₀ + h̄u, positions re-centred)
+    /// and, with `covariance`, its Gram matrices in the caller's time units.
+    fn finish(
+        &self,
+        e: &Eval,
+        t: &[f64],
+        hbar: f64,
+        centre: &[f64],
+        covariance: Option<Covariance>,
+    ) -> Result<(PiecewisePoly, Vec<Gram>)> {
+        let (n, dim, degree) = (self.n, self.dim, self.k);
+        let mut gram = match covariance {
+            Some(cov) => self.grams(e, cov)?,
+            None => Vec::new(),
+        };
+        // Derivative a in scaled time is h̄^a times the derivative in the caller's time.
+        for g in gram.iter_mut() {
+            for a in 0..4 {
+                for b in a..4 {
+                    g[at(a, b)] /= hbar.powi((a + b) as i32);
+                }
+            }
+        }
+        let mut path = to_piecewise(&self.u, degree, &e.coef, dim)?;
+        // The coefficient of u^p scales by h̄^−p.
+        path.x = t.to_vec();
+        let order = degree + 1;
+        for iv in 0..n - 1 {
+            let mut scale = 1.0;
+            for p in 0..order {
+                for d in 0..dim {
+                    let c = &mut path.coef[(iv * order + p) * dim + d];
+                    *c *= scale;
+                    if p == 0 {
+                        *c += centre[d];
+                    }
+                }
+                scale /= hbar;
+            }
+        }
+        Ok((path, gram))
+    }
+
     fn criterion(&self, how: Smoothing, log_lambda: f64) -> Result<f64> {
         let e = match self.eval(10f64.powf(log_lambda), true)? {
             Some(e) => e,
@@ -471,80 +528,59 @@ pub fn smooth_with(
         Smoothing::Noise(s) => s,
         _ => f64::NAN,
     };
-    // The fit at the final λ, when the search already made it.
+    // The fit at the final λ, when the search already made it, and λ* for r‴.
     let mut reuse = None;
+    let mut jerk_lambda = f64::NAN;
     let (lambda, criterion) = match how {
         Smoothing::Fixed(l) => (l, f64::NAN),
         Smoothing::Gcv | Smoothing::Noise(_) => {
             let (l, c) = prob.search(how)?;
-            let pilot_fit = prob.eval(10f64.powf(l), true)?;
-            if how == Smoothing::Gcv {
-                if let Some(e) = &pilot_fit {
-                    noise = prob.noise(e);
-                }
-            }
             let pilot = 10f64.powf(l);
             let mut factor = 1.0;
-            if derivative > 0 {
-                if let Some(e) = &pilot_fit {
-                    let pp = to_piecewise(&u, degree, &e.coef, dim)?;
-                    factor = derivative_factor(
-                        degree.div_ceil(2),
-                        derivative,
-                        pilot,
-                        1.0,
-                        frequency(&pp),
-                    );
+            if let Some(e) = prob.eval(pilot, true)? {
+                if how == Smoothing::Gcv {
+                    noise = prob.noise(&e);
                 }
-            }
-            if factor == 1.0 {
-                reuse = pilot_fit;
+                let omega = frequency(&to_piecewise(&u, degree, &e.coef, dim)?);
+                let m = degree.div_ceil(2);
+                factor = derivative_factor(m, derivative, pilot, 1.0, omega);
+                jerk_lambda = pilot * derivative_factor(m, 3, pilot, 1.0, omega);
+                if factor == 1.0 {
+                    reuse = Some(e);
+                }
             }
             (pilot * factor, c)
         }
     };
-    let fit = match reuse {
-        Some(e) => Some(e),
-        None => prob.eval(lambda, true)?,
-    }
-    .ok_or_else(|| KernelError::Option {
+    let singular = |lambda: f64| KernelError::Option {
         argument: "smoothing",
         detail: format!(
             "λ* = {lambda:e} makes the system numerically singular; use a larger value"
         ),
-    })?;
+    };
+    let fit = match reuse {
+        Some(e) => e,
+        None => prob.eval(lambda, true)?.ok_or_else(|| singular(lambda))?,
+    };
     if noise.is_nan() {
         noise = prob.noise(&fit);
     }
-    let mut gram = match covariance {
-        Some(cov) => prob.grams(&fit, cov)?,
-        None => Vec::new(),
+    let (path, gram) = prob.finish(&fit, t, hbar, &centre, covariance)?;
+    let jerk = if jerk_lambda > lambda * (1.0 + 1e-9) {
+        match prob.eval(jerk_lambda, covariance.is_some())? {
+            Some(e) => {
+                let (path, gram) = prob.finish(&e, t, hbar, &centre, covariance)?;
+                Some(JerkFit {
+                    path,
+                    lambda: jerk_lambda,
+                    gram,
+                })
+            }
+            None => None,
+        }
+    } else {
+        None
     };
-    // Derivative a in scaled time is h̄^a times the derivative in the caller's time.
-    for g in gram.iter_mut() {
-        for a in 0..4 {
-            for b in a..4 {
-                g[at(a, b)] /= hbar.powi((a + b) as i32);
-            }
-        }
-    }
-    let mut path = to_piecewise(&u, degree, &fit.coef, dim)?;
-    // Back to the caller's units: t = t0 + h̄ u, so the coefficient of u^p scales by h̄^−p.
-    path.x = t.to_vec();
-    let order = degree + 1;
-    for iv in 0..n - 1 {
-        let mut scale = 1.0;
-        for p in 0..order {
-            for d in 0..dim {
-                let c = &mut path.coef[(iv * order + p) * dim + d];
-                *c *= scale;
-                if p == 0 {
-                    *c += centre[d];
-                }
-            }
-            scale /= hbar;
-        }
-    }
     Ok(SmoothFit {
         path,
         lambda,
@@ -552,6 +588,7 @@ pub fn smooth_with(
         criterion,
         noise,
         gram,
+        jerk,
     })
 }
 

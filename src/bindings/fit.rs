@@ -313,6 +313,7 @@ impl FittedPaths {
         out.set_item("window", col(|i| i.window))?;
         out.set_item("length_error", col(|i| i.length_error))?;
         out.set_item("noise", col(|i| i.noise))?;
+        out.set_item("jerk_smoothing", col(|i| i.jerk_smoothing))?;
         Ok(out)
     }
 }
