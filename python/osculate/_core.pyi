@@ -38,7 +38,12 @@ def fd_kinematics(
     min_curvature: float,
     gap_factor: float,
     up: tuple[float, float, float] | None = None,
-) -> dict[str, npt.NDArray[np.float64] | npt.NDArray[np.uint8]]: ...
+    uncertainty: bool = False,
+    auto_speed: bool = False,
+    auto_curvature: bool = False,
+    significance: float = 3.0,
+    max_relative_se: float = 0.25,
+) -> dict[str, Any]: ...
 def polyline_arclength(
     t: npt.NDArray[np.float64],
     positions: npt.NDArray[np.float64],
@@ -60,6 +65,7 @@ def fit_paths(
     window_span: float | None = None,
     weights: npt.NDArray[np.float64] | None = None,
     derivative: int = 2,
+    uncertainty: str | None = None,
 ) -> FittedPaths: ...
 
 @final
@@ -74,7 +80,12 @@ class FittedPaths:
         min_curvature: float,
         gap_factor: float,
         up: tuple[float, float, float] | None = None,
-    ) -> dict[str, npt.NDArray[np.float64] | npt.NDArray[np.uint8]]: ...
+        uncertainty: bool = False,
+        auto_speed: bool = False,
+        auto_curvature: bool = False,
+        significance: float = 3.0,
+        max_relative_se: float = 0.25,
+    ) -> dict[str, Any]: ...
     def kinematics_at(
         self,
         t: npt.NDArray[np.float64],
@@ -83,7 +94,7 @@ class FittedPaths:
         min_speed: float,
         min_curvature: float,
         up: tuple[float, float, float] | None = None,
-    ) -> dict[str, npt.NDArray[np.float64] | npt.NDArray[np.uint8]]: ...
+    ) -> dict[str, Any]: ...
     def evaluate(
         self, t: npt.NDArray[np.float64], query_offsets: npt.NDArray[np.int64], nu: int
     ) -> npt.NDArray[np.float64]: ...

@@ -111,8 +111,9 @@ def fit_core(
     x: npt.NDArray[np.float64],
     uncertainty: Optional[str] = None,
 ) -> _core.FittedPaths:
-    """Fit every track (arrays in kernel row order); ``uncertainty`` ("sampling" or "posterior")
-    keeps what the standard errors need.
+    """Fit every track (arrays in kernel row order).
+
+    ``uncertainty`` ("sampling" or "posterior") keeps what the standard errors need.
     """
     start = end = None
     if opts.bc_velocity is not None:

@@ -148,7 +148,7 @@ def _parse_times(df: Any, column: str) -> Any:
 
 
 def _auto_or_float(text: str) -> float | str:
-    """A threshold on the command line: a number or "auto"."""
+    """Parse a threshold on the command line: a number or "auto"."""
     return "auto" if text == "auto" else float(text)
 
 

@@ -1,4 +1,4 @@
-"""Warnings for data that look wrong: interleaved objects, unit mistakes, noise beyond the method."""
+"""Warnings for data that look wrong: interleaved objects, unit mistakes, noise for fd."""
 
 from __future__ import annotations
 

@@ -12,10 +12,10 @@ import numpy.typing as npt
 
 from . import _core
 from ._estimators import EstimatorOptions, fit_core
+from ._stopgo import hold_stops, refit_moving, stop_rows
 from ._validate import Grouping, as_positions, as_real, as_times, call_kernel, group_rows
 from .diagnose import check_tracks
 from .flags import Flag
-from ._stopgo import hold_stops, refit_moving, stop_rows
 from .stops import Stops, find_stops, stop_table
 
 __all__ = [
@@ -538,7 +538,7 @@ def kinematics(
 
 
 def _uncertainty(value: Union[bool, str, None], method: str) -> Optional[str]:
-    """The covariance kind the kernels compute, or None."""
+    """Return the covariance kind the kernels compute, or None."""
     if value is None:
         value = method in ("smooth", "local")
     if value is False:

@@ -66,7 +66,7 @@ class Stops:
         return getattr(self, name)  # type: ignore[no-any-return]
 
     def columns(self) -> dict[str, np.ndarray]:
-        """The stops as flat columns (``position_x``, ``position_y`` [, ``position_z``])."""
+        """Return the stops as flat columns (``position_x``, ``position_y`` [, ``position_z``])."""
         cols: dict[str, np.ndarray] = {"track": self.track, "start": self.start, "end": self.end}
         cols["duration"] = self.duration
         for j, axis in enumerate("xyz"[: self.position.shape[1]]):
@@ -75,7 +75,7 @@ class Stops:
         return cols
 
     def to_pandas(self) -> Any:
-        """The stops as a :class:`pandas.DataFrame` (columns of :meth:`columns`)."""
+        """Return the stops as a :class:`pandas.DataFrame` (columns of :meth:`columns`)."""
         import pandas as pd
 
         return pd.DataFrame(self.columns())
@@ -170,7 +170,7 @@ def stop_table(
     labels: np.ndarray,
     order: np.ndarray | None,
 ) -> Stops:
-    """The stops of :func:`find_stops` as a table; ``order`` maps kernel rows to the caller's."""
+    """Return the stops of :func:`find_stops` as a table (``order``: kernel → caller rows)."""
     caller = (lambda r: r) if order is None else (lambda r: order[r])
     return Stops(
         track=labels[code],
