@@ -226,6 +226,13 @@ def test_summary_columns_are_the_same_everywhere():
     assert set(osc.SUMMARY_COLUMNS) <= set(acc.columns)
     stops = df.osc.stops(time="t", position=["x", "y"], by="car", method="smooth")
     assert len(stops) == len(k.stops)
+    # Rows interleaved with another vehicle's: the same stops, at the same times, on this car.
+    other = df.assign(car="b", x=df["x"] + 500.0)
+    both = pd.concat([df, other]).sort_values("t", kind="stable")
+    got = both.osc.stops(time="t", position=["x", "y"], by="car", method="smooth")
+    mine = got[got["car"] == "a"]
+    np.testing.assert_array_equal(mine["start"], k.stops.start)  # exact: the same rows
+    np.testing.assert_array_equal(mine["end"], k.stops.end)
 
 
 def test_warning_for_interleaved_objects():

@@ -317,6 +317,43 @@ def _select(
     return chosen
 
 
+def summary_and_stops(
+    df: pd.DataFrame,
+    time: Hashable,
+    position: Sequence[Hashable],
+    by: Optional[Hashable],
+    crs: str,
+    origin: npt.ArrayLike | None,
+    options: dict[str, Any],
+) -> tuple[pd.DataFrame, pd.DataFrame]:
+    """Return the tables of :meth:`OscAccessor.summary` and :meth:`OscAccessor.stops`, one run."""
+    prep = _Prepared(df, time, position, by, crs, origin)
+    k = prep.run(options) if prep.n else _synthetic(prep, options)
+    keep = slice(None) if prep.n else slice(0, 0)  # a synthetic run: its layout, none of its rows
+    data = {c: v[keep] for c, v in k.summary_arrays().items()}
+    data.pop("track", None)
+    out = pd.DataFrame(data, index=prep.labels[: prep.n_tracks])
+    first = prep.offsets[:-1] if prep.order is None else prep.order[prep.offsets[:-1]]
+    last = prep.offsets[1:] - 1 if prep.order is None else prep.order[prep.offsets[1:] - 1]
+    raw = prep.time_values
+    out["start"] = raw.iloc[first].array
+    out["end"] = raw.iloc[last].array
+    if prep.crs == "geodetic":
+        o = prep.origins if prep.origins is not None else np.empty((0, 3))
+        for j, name in enumerate(("origin_lat", "origin_lon", "origin_h")):
+            out[name] = o[:, j]
+    cols = {c: v[keep] for c, v in k.stops.columns().items()}
+    stops = pd.DataFrame(cols)
+    stops["track"] = prep.labels[k.stops.track_index[keep]]
+    # The run's rows are the prepared (grouped) rows: map them back to the frame's.
+    rows = (k.stops.first_row[keep], k.stops.last_row[keep])
+    if prep.order is not None:
+        rows = (prep.order[rows[0]], prep.order[rows[1]])
+    stops["start"] = raw.iloc[rows[0]].array
+    stops["end"] = raw.iloc[rows[1]].array
+    return out, stops.rename(columns={"track": "track" if by is None else by})
+
+
 def _synthetic(prep: _Prepared, options: dict[str, Any]) -> Kinematics:
     """Run on a small made-up path with the same options: the layout for zero-row frames."""
     t = np.arange(24, dtype=np.float64)
@@ -527,13 +564,7 @@ class OscAccessor:
         >>> s[["start", "end"]].to_numpy().tolist()
         [[20.0, 40.0]]
         """
-        prep = _Prepared(self._df, time, position, by, crs, origin)
-        k = prep.run(options) if prep.n else _synthetic(prep, options)
-        table = k.stops.to_pandas()
-        if prep.n == 0:
-            table = table.iloc[:0]
-        name = "track" if by is None else by
-        return table.rename(columns={"track": name})
+        return summary_and_stops(self._df, time, position, by, crs, origin, options)[1]
 
     def summary(
         self,
@@ -591,21 +622,4 @@ class OscAccessor:
         >>> len(df.iloc[:0].osc.summary(time="t", position=["x", "y"]))
         0
         """
-        df = self._df
-        prep = _Prepared(df, time, position, by, crs, origin)
-        if prep.n == 0:  # layout and dtypes of a synthetic run, none of its rows
-            data = {c: v[:0] for c, v in _synthetic(prep, options).summary_arrays().items()}
-        else:
-            data = prep.run(options).summary_arrays()
-        data.pop("track", None)
-        out = pd.DataFrame(data, index=prep.labels[: prep.n_tracks])
-        first = prep.offsets[:-1] if prep.order is None else prep.order[prep.offsets[:-1]]
-        last = prep.offsets[1:] - 1 if prep.order is None else prep.order[prep.offsets[1:] - 1]
-        raw = prep.time_values
-        out["start"] = raw.iloc[first].array
-        out["end"] = raw.iloc[last].array
-        if prep.crs == "geodetic":
-            o = prep.origins if prep.origins is not None else np.empty((0, 3))
-            for j, name in enumerate(("origin_lat", "origin_lon", "origin_h")):
-                out[name] = o[:, j]
-        return out
+        return summary_and_stops(self._df, time, position, by, crs, origin, options)[0]

@@ -6,6 +6,7 @@ import argparse
 import sys
 import time
 import traceback
+import warnings
 from collections.abc import Sequence
 from pathlib import Path
 from typing import Any
@@ -13,6 +14,7 @@ from typing import Any
 import numpy as np
 
 from . import __version__
+from .diagnose import SuspectDataWarning
 
 __all__ = ["main"]
 
@@ -261,15 +263,25 @@ def _analyze(args: argparse.Namespace) -> int:
 def _summarize(args: argparse.Namespace) -> int:
     import pandas as pd
 
+    from .accessor import summary_and_stops
+
     spec = _selection(args)
+    keys = ("time", "position", "by", "crs", "origin")
+    where = [spec.pop(k, None) for k in keys]
     df = _parse_times(_read(Path(args.file)), args.time)
-    parts = _in_chunks(df, args.track, lambda part: part.osc.summary(**spec), args)
-    table = pd.concat([p for _, p in parts]) if len(parts) > 1 else parts[0][1]
+    parts = _in_chunks(df, args.track, lambda part: summary_and_stops(part, *where, spec), args)
+    table = pd.concat([p[0] for _, p in parts])
+    stops = pd.concat([p[1] for _, p in parts], ignore_index=True)
     if args.output is not None:
         _write(table, Path(args.output))
+    if args.stops is not None:
+        _write(stops, Path(args.stops))
     if not args.quiet:
         with pd.option_context("display.max_rows", None, "display.width", 250):
             print(table.to_string())
+            print(f"\n{len(stops)} stop(s):")
+            if len(stops):
+                print(stops.to_string(index=False))
         print(CAUTION)
     return EXIT_OK
 
@@ -322,9 +334,24 @@ def _add_data_commands(sub: Any) -> None:
         "summary",
         parents=[common],
         help="one line per track: length, duration, speeds, accelerations, radius",
-        description="Print one line per track; exit status as for analyze.",
+        description="Print one line per track, then the intervals where a track stood still; "
+        "exit status as for analyze. Columns and units: osculate.SUMMARY_COLUMNS.",
     )
     summary.add_argument("-o", "--output", help="also write the table (.csv or .parquet)")
+    summary.add_argument("--stops", help="also write the stop intervals (.csv or .parquet)")
+
+
+def _print_warnings(command: str, caught: list[warnings.WarningMessage]) -> None:
+    """Print data warnings as one line each on stderr (once each, whatever the chunking)."""
+    seen = set()
+    for w in caught:
+        if not issubclass(w.category, SuspectDataWarning):
+            warnings.showwarning(w.message, w.category, w.filename, w.lineno)
+            continue
+        text = " ".join(str(w.message).split())
+        if text not in seen:
+            seen.add(text)
+            print(f"osculate {command}: warning: {text}", file=sys.stderr)
 
 
 def _run_data_command(args: argparse.Namespace) -> int:
@@ -333,7 +360,12 @@ def _run_data_command(args: argparse.Namespace) -> int:
 
     run = _analyze if args.command == "analyze" else _summarize
     try:
-        return run(args)
+        with warnings.catch_warnings(record=True) as caught:
+            warnings.simplefilter("always", SuspectDataWarning)
+            try:
+                return run(args)
+            finally:
+                _print_warnings(args.command, caught)
     except Exception as err:  # one line on stderr; --debug adds the traceback
         if isinstance(err, (_UsageError, InputError, TypeError, KeyError, FileNotFoundError)):
             code, message = EXIT_INPUT, str(err)

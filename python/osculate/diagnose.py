@@ -15,9 +15,13 @@ __all__ = ["SuspectDataWarning", "check_tracks"]
 #: No tracked object moves faster than Earth's escape speed, 11.2 km/s (common practice); a
 #: median step speed above this in metres per second is a unit mistake (e.g. millimetres).
 MAX_PLAUSIBLE_SPEED = 12_000.0
-#: For one object, |x(i+2) − x(i)| is about twice |x(i+1) − x(i)| while moving and about equal
-#: while standing; far less means every other row belongs to another object.
-INTERLEAVED_RATIO = 0.5
+#: For one object, the nearest of the rows 2 to :data:`INTERLEAVED_LAG` ahead is about twice as
+#: far as the next row while moving, and 0.45 times as far while standing in Gaussian noise (the
+#: median of the smallest of five Rayleigh distances); far less means the rows come back to where
+#: they were after a few others, as rows of several interleaved objects do.
+INTERLEAVED_RATIO = 0.2
+#: The most objects whose interleaved rows are recognised.
+INTERLEAVED_LAG = 6
 #: fd is useless when the noise of its r″ exceeds this fraction of the typical |r″|.
 FD_NOISE_RATIO = 0.3
 #: Share of a track flagged VAGUE or GAP beyond which the track is reported (INVALID rows are
@@ -113,13 +117,17 @@ def _findings(
     counts = np.diff(offsets)
     code = np.repeat(np.arange(m), counts)
     finite = np.isfinite(x).all(axis=1)
-    step1 = np.linalg.norm(x[1:] - x[:-1], axis=1)
+    step1 = np.hypot.reduce(x[1:] - x[:-1], axis=1)
     ok1 = (code[1:] == code[:-1]) & finite[1:] & finite[:-1]
-    step2 = np.linalg.norm(x[2:] - x[:-2], axis=1)
-    ok2 = (code[2:] == code[:-2]) & finite[2:] & finite[:-2]
     med1 = group_quantile(code[1:], m, step1, ok1, 0.5)
-    med2 = group_quantile(code[2:], m, step2, ok2, 0.5)
-    interleaved = (counts >= 10) & (med1 > 0) & (med2 < INTERLEAVED_RATIO * med1)
+    # Per row, the distance to the nearest of the rows 2..INTERLEAVED_LAG ahead in its track.
+    nearest = np.full(len(t), np.inf)
+    for lag in range(2, INTERLEAVED_LAG + 1):
+        d = np.hypot.reduce(x[lag:] - x[:-lag], axis=1)
+        d[(code[lag:] != code[:-lag]) | ~finite[lag:] | ~finite[:-lag]] = np.inf
+        nearest[:-lag] = np.fmin(nearest[:-lag], d)
+    back = group_quantile(code, m, nearest, np.isfinite(nearest), 0.5)
+    interleaved = (counts >= 10) & (med1 > 0) & (back < INTERLEAVED_RATIO * med1)
     dt = np.diff(t)
     speed = group_quantile(code[1:], m, step1 / dt, ok1, 0.5)
     fast = speed > MAX_PLAUSIBLE_SPEED
@@ -127,7 +135,7 @@ def _findings(
     noise = np.full(m, np.nan)
     if method == "fd":
         h = group_quantile(code[1:], m, dt, ok1, 0.5)
-        acc = group_quantile(code, m, np.linalg.norm(acceleration, axis=1), finite, 0.5)
+        acc = group_quantile(code, m, np.hypot.reduce(acceleration, axis=1), finite, 0.5)
         noise = _robust_noise(t, x, code, m)
         # Noise at the level of rounding (exact or simulated data) is no reason to warn.
         real = (noise > 1e-9 * med1) & (med1 > 0)
@@ -138,9 +146,10 @@ def _findings(
     return [
         (
             interleaved,
-            "every other row jumps away and back (the median distance two rows apart is less "
-            "than half the distance between neighbours), as if several objects were interleaved; "
-            "give tracks= (by=, --track) to separate them",
+            "the rows jump away and come back a few rows later (the nearest of the next "
+            f"{INTERLEAVED_LAG} rows is typically under {INTERLEAVED_RATIO:.0%} of the step to the "
+            "next row), as if several objects were interleaved; give tracks= (by=, --track) to "
+            "separate them",
         ),
         (
             fast,

@@ -193,11 +193,13 @@ def _ramp(lengths: np.ndarray) -> np.ndarray:
 
 
 def _centres(x: np.ndarray, first: np.ndarray, last: np.ndarray) -> np.ndarray:
+    """Mean finite position of rows ``first[i]..last[i]`` (inf or NaN if the sums overflow)."""
     finite = np.isfinite(x).all(axis=1)
-    cs = np.concatenate([np.zeros((1, x.shape[1])), np.cumsum(np.where(finite[:, None], x, 0), 0)])
-    cn = np.concatenate([[0], np.cumsum(finite)])
-    cnt = (cn[last + 1] - cn[first]).astype(float)
-    with np.errstate(invalid="ignore", divide="ignore"):
+    with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
+        cs = np.cumsum(np.where(finite[:, None], x, 0), 0)
+        cs = np.concatenate([np.zeros((1, x.shape[1])), cs])
+        cn = np.concatenate([[0], np.cumsum(finite)])
+        cnt = (cn[last + 1] - cn[first]).astype(float)
         return (cs[last + 1] - cs[first]) / cnt[:, None]  # type: ignore[no-any-return]
 
 
@@ -221,7 +223,7 @@ def _hold(
     has = nxt < len(first)
     owner = np.where(has, nxt, 0)
     same = has & (code[first[owner]] == code)
-    d = np.linalg.norm(x - centre[owner], axis=1)
+    d = np.hypot.reduce(x - centre[owner], axis=1)  # scale-safe
     away = ~same | ~(d <= radius[owner])
     last_away = np.maximum.accumulate(np.where(away, idx, -1))
     new_first = np.minimum(first, last_away[np.maximum(first - 1, 0)] + 1)
@@ -231,7 +233,7 @@ def _hold(
     has = prv >= 0
     owner = np.where(has, prv, 0)
     same = has & (code[last[owner]] == code)
-    d = np.linalg.norm(x - centre[owner], axis=1)
+    d = np.hypot.reduce(x - centre[owner], axis=1)  # scale-safe
     away = ~same | ~(d <= radius[owner])
     next_away = np.minimum.accumulate(np.where(away, idx, n)[::-1])[::-1]
     new_last = np.maximum(last, next_away[np.minimum(last + 1, n - 1)] - 1)

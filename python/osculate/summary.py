@@ -19,7 +19,8 @@ COLUMNS: dict[str, str] = {
     "start": "T, time of the first sample",
     "end": "T, time of the last sample",
     "samples": "rows of the track",
-    "trusted": "samples with no flag at all (the ones extremes are taken over)",
+    "trusted": "samples with no flag but STRAIGHT (speed, |a_t| and |r‴| extremes use these)",
+    "curved": "samples with no flag at all (a_n and radius extremes use these)",
     "length": "L, path length",
     "duration": "T, last minus first time",
     "mean_speed": "L/T, length / duration",
@@ -29,14 +30,14 @@ COLUMNS: dict[str, str] = {
     "max_abs_accel_tangential": "L/T², largest |a_t| of a trusted sample",
     "max_abs_accel_tangential_at": "T",
     "max_abs_accel_tangential_se": "L/T²",
-    "max_accel_normal": "L/T², largest normal (centripetal, lateral) acceleration a_n",
+    "max_accel_normal": "L/T², largest normal (centripetal, lateral) acceleration, curved samples",
     "max_accel_normal_at": "T",
     "max_accel_normal_se": "L/T²",
-    "p95_accel_normal": "L/T², 95th percentile of a_n over trusted samples",
-    "min_radius": "L, smallest radius of curvature of a trusted sample",
+    "p95_accel_normal": "L/T², 95th percentile of a_n over curved samples",
+    "min_radius": "L, smallest radius of curvature of a curved sample",
     "min_radius_at": "T",
     "min_radius_se": "L",
-    "p5_radius": "L, 5th percentile of the radius over trusted samples",
+    "p5_radius": "L, 5th percentile of the radius over curved samples",
     "max_jerk_magnitude": "L/T³, largest |r‴| (magnitude of the jerk vector) of a trusted sample",
     "max_jerk_magnitude_at": "T",
     "max_jerk_magnitude_se": "L/T³, standard error of one component of r‴ there",
@@ -47,7 +48,7 @@ COLUMNS: dict[str, str] = {
     "noise": "L, noise standard deviation of the positions seen by the estimator",
 }
 
-_UNTRUSTED = int(Flag.STOPPED | Flag.STRAIGHT | Flag.EDGE | Flag.GAP | Flag.INVALID | Flag.VAGUE)
+_UNTRUSTED = int(Flag.STOPPED | Flag.EDGE | Flag.GAP | Flag.INVALID | Flag.VAGUE)
 
 
 def _extreme(
@@ -104,6 +105,7 @@ def _summarize(k: Kinematics) -> dict[str, np.ndarray]:
     t = kern(k.t)
     flags = kern(k.flags)
     trusted = (flags & _UNTRUSTED) == 0
+    curved = trusted & ((flags & int(Flag.STRAIGHT)) == 0)
     se = k.se if k.se is not None else {}
     nan_rows = np.full(len(t), np.nan)
 
@@ -119,6 +121,7 @@ def _summarize(k: Kinematics) -> dict[str, np.ndarray]:
     out["end"] = t[g.offsets[1:] - 1] if m else np.zeros(0)
     out["samples"] = counts
     out["trusted"] = np.bincount(code, weights=trusted, minlength=m).astype(np.int64)
+    out["curved"] = np.bincount(code, weights=curved, minlength=m).astype(np.int64)
     length = np.fmax.reduceat(kern(k.arclength), starts) if m else np.zeros(0)
     duration = t[g.offsets[1:] - 1] - t[starts] if m else np.zeros(0)
     out["length"] = length
@@ -126,29 +129,24 @@ def _summarize(k: Kinematics) -> dict[str, np.ndarray]:
     with np.errstate(invalid="ignore", divide="ignore"):
         out["mean_speed"] = length / np.where(duration > 0, duration, np.nan)
     jerk = np.hypot.reduce(kern(k.jerk), axis=1)  # scale-safe, unlike a sum of squares
+    a_t = np.abs(kern(k.accel_tangential))
+    a_n, radius = kern(k.accel_normal), kern(k.radius)
     extremes = (
-        ("max_speed", kern(k.speed), kse("speed"), True),
-        (
-            "max_abs_accel_tangential",
-            np.abs(kern(k.accel_tangential)),
-            kse("accel_tangential"),
-            True,
-        ),
-        ("max_accel_normal", kern(k.accel_normal), kse("accel_normal"), True),
-        ("min_radius", kern(k.radius), kse("radius"), False),
-        ("max_jerk_magnitude", jerk, kse("jerk"), True),
+        ("max_speed", kern(k.speed), kse("speed"), True, trusted),
+        ("max_abs_accel_tangential", a_t, kse("accel_tangential"), True, trusted),
+        ("max_accel_normal", a_n, kse("accel_normal"), True, curved),
+        ("min_radius", radius, kse("radius"), False, curved),
+        ("max_jerk_magnitude", jerk, kse("jerk"), True, trusted),
     )
-    for name, value, err, largest in extremes:
-        rows = _extreme(code, m, value, trusted, largest)
+    for name, value, err, largest, ok in extremes:
+        rows = _extreme(code, m, value, ok, largest)
         found = rows >= 0
         r = np.where(found, rows, 0)
         out[name] = np.where(found, value[r] if len(value) else np.nan, np.nan)
         out[f"{name}_at"] = np.where(found, t[r] if len(t) else np.nan, np.nan)
         out[f"{name}_se"] = np.where(found, err[r] if len(err) else np.nan, np.nan)
-        if name == "max_accel_normal":
-            out["p95_accel_normal"] = group_quantile(code, m, value, trusted, 0.95)
-        if name == "min_radius":
-            out["p5_radius"] = group_quantile(code, m, value, trusted, 0.05)
+    out["p95_accel_normal"] = group_quantile(code, m, a_n, curved, 0.95)
+    out["p5_radius"] = group_quantile(code, m, radius, curved, 0.05)
     # ∫ω dt over segments whose ends are both moving and define ω.
     om = kern(k.angular_speed)
     moving = (flags & int(Flag.STOPPED | Flag.INVALID)) == 0
