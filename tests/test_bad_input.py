@@ -1,6 +1,7 @@
 """Bad input gives a clear exception naming the argument, track and row; never a panic."""
 
 import re
+import warnings
 
 import numpy as np
 import osculate as osc
@@ -147,9 +148,13 @@ def test_too_short_track_is_named():
 
 
 def test_extreme_magnitudes_stay_finite_or_flagged():
-    # 1e300 positions overflow the squared speed: the result is flagged, never a crash.
+    # 1e300 positions overflow the squared speed: the result is flagged, never a crash. At
+    # 1e300 m/s the data check also says the units look wrong.
     for scale in (1e300, 1e-300):
-        k = osc.kinematics(T5, X5 * scale)
+        with warnings.catch_warnings(record=True) as caught:
+            warnings.simplefilter("always", osc.SuspectDataWarning)
+            k = osc.kinematics(T5, X5 * scale)
+        assert [("units" in str(w.message)) for w in caught] == ([True] if scale > 1 else [])
         assert k.flags.dtype == np.uint8
         assert np.all(np.isfinite(k.speed) | k.flagged(osc.Flag.STOPPED) | np.isinf(k.speed))
 

@@ -8,7 +8,7 @@ import numpy as np
 import osculate as osc
 import pytest
 from matplotlib.backends.backend_agg import FigureCanvasAgg
-from matplotlib.collections import PolyCollection
+from matplotlib.collections import FillBetweenPolyCollection, PolyCollection
 from matplotlib.figure import Figure
 from matplotlib.patches import Circle
 from matplotlib.quiver import Quiver
@@ -232,8 +232,14 @@ def test_profile_shades_flags_and_names_them():
     p = plot.profile(k, x="time")
     names = {t.get_text().split(":")[0] for t in p.figure.legends[0].get_texts()}
     assert {"STOPPED", "STRAIGHT", "EDGE", "GAP", "INVALID", "track a", "track b"} <= names
-    shades = [c for c in p.axes[0].collections if isinstance(c, PolyCollection)]
-    assert len(shades) == 5
+    # One shading layer per flag named in the legend; the 95 % band is a fill of its own.
+    flag_names = names & {f.name for f in osc.Flag}
+    shades = [
+        c
+        for c in p.axes[0].collections
+        if isinstance(c, PolyCollection) and not isinstance(c, FillBetweenPolyCollection)
+    ]
+    assert len(shades) == len(flag_names)
     # The STOPPED shading covers the rest at the start, 0 ≤ t < 3 s, and nothing past t = 3.5.
     stopped = shades[0].get_paths()
     xs = np.concatenate([path.vertices[:, 0] for path in stopped])
@@ -241,8 +247,11 @@ def test_profile_shades_flags_and_names_them():
     only = plot.profile(k, flags=osc.Flag.GAP)
     names = {t.get_text().split(":")[0] for t in only.figure.legends[0].get_texts()}
     assert "GAP" in names and "STOPPED" not in names
-    bare = plot.profile(k, flags=False)
+    bare = plot.profile(k, flags=False, bands=False)
     assert not [c for c in bare.axes[0].collections if isinstance(c, PolyCollection)]
+    banded = plot.profile(k, flags=False)  # the standard-error band stays without flags
+    fills = [c for c in banded.axes[0].collections if isinstance(c, FillBetweenPolyCollection)]
+    assert len(fills) == 1
 
 
 def test_profile_errors():

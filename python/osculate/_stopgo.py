@@ -160,6 +160,10 @@ def hold_stops(raw: dict[str, Any], held: npt.NDArray[np.bool_]) -> None:
     for name in _UNDEFINED_WHEN_STOPPED:
         if name in raw:
             raw[name][rows] = np.nan
+    # Held values are set, not estimated: they have no standard error (the position keeps its).
+    for name, se in raw.get("se", {}).items():
+        if name != "position":
+            se[rows] = np.nan
     raw["flags"][rows] = (raw["flags"][rows] | np.uint8(Flag.STOPPED)) & ~np.uint8(
         Flag.STRAIGHT | Flag.VAGUE
     )

@@ -557,12 +557,14 @@ class OscAccessor:
         >>> import pandas as pd
         >>> import osculate as osc
         >>> t = np.arange(60.0)
-        >>> # At x = 20 from t = 20 to t = 40 (the last sample of the stop starts the third leg).
         >>> x = np.concatenate([np.arange(20.0), np.full(20, 20.0), 20.0 + np.arange(20.0)])
         >>> df = pd.DataFrame({"t": t, "x": x, "y": 0.0 * t})
         >>> s = df.osc.stops(time="t", position=["x", "y"])
         >>> s[["start", "end"]].to_numpy().tolist()
-        [[20.0, 40.0]]
+        [[21.0, 39.0]]
+
+        The position is held from t = 20 to t = 40, but the samples at 20 and 40 are the arrival
+        and the departure: their finite-difference speed is 0.5, so they are moving samples.
         """
         return summary_and_stops(self._df, time, position, by, crs, origin, options)[1]
 

@@ -36,6 +36,7 @@ except ImportError as exc:  # pragma: no cover - depends on the environment
     ) from exc
 
 from . import _core
+from . import _palette as palette
 from .flags import Flag
 from .intrinsic import Kinematics
 
@@ -54,25 +55,25 @@ LIMITS_CAUTION = (
 )
 
 # -- visual design ------------------------------------------------------------------------------
-_INK = "#1d2330"
-_MUTED = "#6b7280"
-_GRID = "#e3e5e8"
-_LINE = "#2f4b7c"
-_UNDEFINED = "#b8bcc4"
-_GLYPHS = {"T": "#c2410c", "N": "#0f766e", "B": "#7e22ce"}  # tangent, normal, binormal
+_INK = palette.INK
+_MUTED = palette.MUTED
+_GRID = palette.GRID
+_LINE = palette.LINE
+_UNDEFINED = palette.UNDEFINED
+_GLYPHS = palette.GLYPHS
 _FLAG_STYLE = {  # colour, description
-    Flag.STOPPED: ("#9ca3af", "STOPPED: speed below min_speed"),
-    Flag.STRAIGHT: ("#93c5fd", "STRAIGHT: curvature below min_curvature"),
-    Flag.GAP: ("#f87171", "GAP: spans a long time step"),
-    Flag.INVALID: ("#374151", "INVALID: non-finite input row"),
-    Flag.EDGE: ("#fcd34d", "EDGE: near a track end, less accurate"),
+    Flag.STOPPED: (palette.FLAGS["STOPPED"], "STOPPED: not moving (speed within noise)"),
+    Flag.STRAIGHT: (palette.FLAGS["STRAIGHT"], "STRAIGHT: curvature within noise of 0"),
+    Flag.VAGUE: (palette.FLAGS["VAGUE"], "VAGUE: curvature too uncertain to use"),
+    Flag.GAP: (palette.FLAGS["GAP"], "GAP: spans a long time step"),
+    Flag.INVALID: (palette.FLAGS["INVALID"], "INVALID: non-finite input row"),
+    Flag.EDGE: (palette.FLAGS["EDGE"], "EDGE: near a track end, less accurate"),
 }
-_REFERENCE_STYLES = [
-    ("#b91c1c", (0, (5, 3))),
-    ("#1d4ed8", (0, (2, 2))),
-    ("#4d7c0f", (0, (8, 3, 2, 3))),
-    ("#6d28d9", (0, (1, 1))),
-]
+#: Half-width of the shaded bands in standard errors (two-sided 95 % of a normal distribution).
+BAND_Z = 1.96
+_REFERENCE_STYLES = list(
+    zip(palette.REFERENCES, [(0, (5, 3)), (0, (2, 2)), (0, (8, 3, 2, 3)), (0, (1, 1))])
+)
 
 # name: (label, unit template); {L} length, {T} time, {F} force, {E} energy.
 _QUANTITIES: dict[str, tuple[str, str]] = {
@@ -243,6 +244,16 @@ class _Samples:
         if a.ndim == 2:
             a = np.sqrt(np.sum(a**2, axis=1))
         return a[self.order]
+
+    def standard_error(self, name: str) -> Optional[F64]:
+        """Return the standard error of a scalar quantity (sorted), or None if there is none."""
+        if self.is_kinematics:
+            se = self.k.se
+            a = None if se is None or name not in se or se[name].ndim != 1 else se[name]
+        else:
+            col = f"{name}_se"
+            a = self.k[col] if col in self.k.columns else None
+        return None if a is None else np.asarray(a, dtype=float)[self.order]
 
     def vector(self, name: str, *, sort: bool = True) -> F64:
         if self.is_kinematics:
@@ -458,6 +469,20 @@ def _lines(ax: Any, x: F64, y: F64, d: _Samples, *, linewidth: float = 1.2) -> l
         Line2D([], [], color=c, linewidth=1.6, label=f"track {names[i]}")
         for i, c in enumerate(_track_colours(m))
     ]
+
+
+def _band(ax: Any, x: F64, y: F64, se: F64, d: _Samples) -> Any:
+    """Shade y ± 1.96 se (a 95 % band) along each track, none across tracks."""
+    # One fill for all tracks: a NaN row after each track's last sample separates them.
+    cut = np.flatnonzero(d.last[:-1]) + 1
+    xs, lo, hi = (np.insert(v, cut, np.nan) for v in (x, y - BAND_Z * se, y + BAND_Z * se))
+    ax.fill_between(xs, lo, hi, facecolor=palette.BAND, edgecolor="none", alpha=0.45, zorder=1.5)
+    # The figure legend's entry (the fill itself stays out of per-axes legends).
+    return Patch(
+        facecolor=palette.BAND,
+        alpha=0.45,
+        label="95 % band: ±1.96 se (noise, not bias)",
+    )
 
 
 # -- path ---------------------------------------------------------------------------------------
@@ -680,7 +705,7 @@ def _frame_3d(ax: Any, pts: F64, names: list[str]) -> None:
     ax.tick_params(labelsize=8, colors=_MUTED, labelcolor=_INK)
     for axis in (ax.xaxis, ax.yaxis, ax.zaxis):
         axis.set_major_locator(MaxNLocator(5))
-        axis.pane.set_facecolor("#f7f8fa")
+        axis.pane.set_facecolor(palette.PANE)
         axis.pane.set_edgecolor(_GRID)
         axis._axinfo["grid"].update(color=_GRID, linewidth=0.6)
 
@@ -743,6 +768,7 @@ def profile(
     title: Optional[str] = None,
     time: Any = None,
     by: Any = None,
+    bands: bool = True,
 ) -> Plot:
     """Stacked panels of quantities against arc length or time, flagged samples shaded.
 
@@ -767,6 +793,9 @@ def profile(
         Figure title.
     time, by : optional
         DataFrame input only: the time and track columns.
+    bands : bool, default True
+        Shade ±1.96 standard errors around each quantity that has them (``k.se`` or
+        ``<quantity>_se`` columns): about 95 % of the noise, not the bias of the estimator.
 
     Returns
     -------
@@ -810,7 +839,7 @@ def profile(
     if not names:
         raise _core.InputError("quantities: expected at least one quantity")
     xs = d.get(x)
-    which = int(Flag.STOPPED | Flag.STRAIGHT | Flag.EDGE | Flag.GAP | Flag.INVALID)
+    which = int(Flag.STOPPED | Flag.STRAIGHT | Flag.VAGUE | Flag.EDGE | Flag.GAP | Flag.INVALID)
     which = which if flags is True else (0 if flags is False else int(flags))
     fl = d.flags()
     if ax is None:
@@ -823,10 +852,14 @@ def profile(
         fig = axes[0].figure
     track_handles: list[Any] = []
     flag_handles: dict[str, Any] = {}
+    band_handle: list[Any] = []
     for a, name in zip(axes, names):  # one panel per quantity: a handful
         y = d.get(name)
         y = np.where(np.isfinite(y), y, np.nan)
         track_handles = _lines(a, xs, y, d)
+        se = d.standard_error(name) if bands else None
+        if se is not None:
+            band_handle = [_band(a, xs, y, se, d)]
         if which:
             for h in _shade(a, xs, fl, d, which):
                 flag_handles.setdefault(h.get_label(), h)
@@ -839,7 +872,7 @@ def profile(
     finite_x = xs[np.isfinite(xs)]
     if finite_x.size:
         axes[-1].set_xlim(float(finite_x.min()), float(finite_x.max()))
-    handles = track_handles + list(flag_handles.values())
+    handles = track_handles + band_handle + list(flag_handles.values())
     if ax is None:
         if handles:
             fig.legend(
@@ -1086,8 +1119,12 @@ def gg(
                 va="bottom",
                 ha="left",
                 fontsize=8.3,
-                color="#7f1d1d",
-                bbox={"boxstyle": "round,pad=0.5", "facecolor": "#fef2f2", "edgecolor": "#fca5a5"},
+                color=palette.CAUTION_TEXT,
+                bbox={
+                    "boxstyle": "round,pad=0.5",
+                    "facecolor": palette.CAUTION_FILL,
+                    "edgecolor": palette.CAUTION_EDGE,
+                },
             )
             engine = fig.get_layout_engine()
             if isinstance(engine, ConstrainedLayoutEngine):  # room for the note below
@@ -1101,13 +1138,13 @@ def gg(
                 va="bottom",
                 ha="left",
                 fontsize=7.5,
-                color="#7f1d1d",
+                color=palette.CAUTION_TEXT,
                 zorder=6,
                 bbox={
                     "boxstyle": "round,pad=0.4",
-                    "facecolor": "#fef2f2",
+                    "facecolor": palette.CAUTION_FILL,
                     "alpha": 0.92,
-                    "edgecolor": "#fca5a5",
+                    "edgecolor": palette.CAUTION_EDGE,
                 },
             )
     return Plot(fig, ax)

@@ -14,6 +14,7 @@ from typing import Any, Optional
 import numpy as np
 import numpy.typing as npt
 
+from ._palette import TRUTH
 from .demo import spiral_loop, survey_flight, swirl_tracers
 
 __all__ = ["CAUTION", "Check", "Report", "run"]
@@ -536,7 +537,7 @@ turn through a few degrees only, and curvature from a short arc is uncertain.
 
 def _truth(ax: Any, x: F64, y: F64, label: str) -> None:
     """Overlay a ground-truth curve (dashed) on a panel, with its own small legend."""
-    ax.plot(x, y, color="#111827", linestyle=(0, (4, 3)), linewidth=1.0, label=label, zorder=3)
+    ax.plot(x, y, color=TRUTH, linestyle=(0, (4, 3)), linewidth=1.0, label=label, zorder=3)
     ax.legend(loc="best", fontsize=7.5, framealpha=0.85)
 
 
