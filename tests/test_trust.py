@@ -224,6 +224,10 @@ def test_summary_columns_are_the_same_everywhere():
     acc = df.osc.summary(time="t", position=["x", "y"], by="car", method="smooth")
     assert list(k.summary().columns) == list(acc.columns)
     assert set(osc.SUMMARY_COLUMNS) <= set(acc.columns)
+    dd = pytest.importorskip("dask.dataframe")
+    ddf = dd.from_pandas(df, npartitions=1)
+    lazy = osc.dask.summary(ddf, time="t", position=["x", "y"], by="car", method="smooth")
+    assert list(lazy.compute(scheduler="synchronous").columns) == list(acc.columns)
     stops = df.osc.stops(time="t", position=["x", "y"], by="car", method="smooth")
     assert len(stops) == len(k.stops)
     # Rows interleaved with another vehicle's: the same stops, at the same times, on this car.
@@ -233,6 +237,24 @@ def test_summary_columns_are_the_same_everywhere():
     mine = got[got["car"] == "a"]
     np.testing.assert_array_equal(mine["start"], k.stops.start)  # exact: the same rows
     np.testing.assert_array_equal(mine["end"], k.stops.end)
+
+
+def test_cli_summary_has_the_same_columns_and_lists_stops(tmp_path):
+    pd = pytest.importorskip("pandas")
+    from osculate.cli import main
+
+    rng = np.random.default_rng(4)
+    t, x, _, _ = _stop_and_go(rng)
+    src = tmp_path / "log.csv"
+    pd.DataFrame({"t": t, "x": x[:, 0], "y": x[:, 1], "car": "a"}).to_csv(src, index=False)
+    out, stops = tmp_path / "s.csv", tmp_path / "stops.csv"
+    args = [str(src), "--time", "t", "--position", "x,y", "--track", "car", "--method", "smooth"]
+    assert main(["summary", *args, "-o", str(out), "--stops", str(stops), "-q"]) == 0
+    k = osc.kinematics(t, x, method="smooth")
+    table = pd.read_csv(out, index_col=0)
+    assert list(table.columns) == list(k.summary().columns)
+    listed = pd.read_csv(stops)
+    np.testing.assert_allclose(listed["start"], k.stops.start, rtol=1e-12)  # CSV round trip
 
 
 def test_warning_for_interleaved_objects():
