@@ -5,7 +5,8 @@
 Data: ``data.many_tracks`` (1,000 tracks of ~1,000 samples, 3-D; ``--quick``: 100 tracks), laid
 out as a log: rows ordered by time, so the tracks are interleaved, on a RangeIndex.
 
-* accessor: ``df.osc.kinematics(time="t", position=["x", "y", "z"], by="track")``, every output on
+* accessor: ``df.osc.kinematics(time="t", position=["x", "y", "z"], by="track", ...)`` (absolute
+  thresholds, no stop intervals, as the reference), every output on
   the caller's rows (one Rust call for all tracks);
 * baseline: ``df.groupby("track")[cols].apply(f)`` where ``f`` sorts the track's rows by time, runs
   ``reference.kinematics`` (the vectorized NumPy implementation of the same quantities beside this
@@ -61,7 +62,10 @@ def make_frame(m: int, mean_len: int) -> pd.DataFrame:
 
 def accessor(df: pd.DataFrame) -> pd.DataFrame:
     """Every output of every track, on the caller's rows, with one call."""
-    return df.osc.kinematics(time="t", position=XYZ, by="track")
+    # The reference knows absolute thresholds only and no stop intervals: ask for the same.
+    return df.osc.kinematics(
+        time="t", position=XYZ, by="track", min_speed=1e-3, min_curvature=1e-6, min_stop=np.inf
+    )
 
 
 def _per_track(g: pd.DataFrame) -> pd.DataFrame:

@@ -350,7 +350,7 @@ fn run<const D: usize>(
             } else {
                 opts.gap_factor * batch::median_step(tk)?
             };
-            let noise = uncertainty::difference_noise(tk, xk, D);
+            let noise = uncertainty::difference_noise(tk, xk, D)?;
             Ok(TrackPrep {
                 gap_dt,
                 has_invalid,
@@ -570,28 +570,30 @@ impl Rows<'_> {
         };
         let (d1, d2, d3) = (vec3(&s.d1), vec3(&s.d2), vec3(&s.d3));
         let sig = &opts.significance;
-        let err = s
-            .unc
-            .as_ref()
-            .map(|(g, sigma)| propagate(&d1, &d2, &d3, D, g, *sigma));
+        // All standard errors when they are written, else only the two the flags need.
+        let err = match &s.unc {
+            Some((g, sigma)) if self.se_w == 1 => Some(propagate(&d1, &d2, &d3, D, g, *sigma)),
+            _ => None,
+        };
+        let (se_speed, se_kappa) = match (&err, &s.unc) {
+            (Some(e), _) => (e.speed, e.curvature),
+            (None, Some((g, sigma))) => uncertainty::speed_and_curvature(&d1, &d2, D, g, *sigma),
+            (None, None) => (f64::NAN, f64::NAN),
+        };
         let mut th = opts.thresholds;
-        if let Some(e) = &err {
-            // NaN standard errors (no noise estimate) leave the absolute thresholds.
-            if sig.speed && sig.z * e.speed > th.min_speed {
-                th.min_speed = sig.z * e.speed;
-            }
-            if sig.curvature && sig.z * e.curvature > th.min_curvature {
-                th.min_curvature = sig.z * e.curvature;
-            }
+        // NaN standard errors (no noise estimate) leave the absolute thresholds.
+        if sig.speed && sig.z * se_speed > th.min_speed {
+            th.min_speed = sig.z * se_speed;
+        }
+        if sig.curvature && sig.z * se_kappa > th.min_curvature {
+            th.min_curvature = sig.z * se_kappa;
         }
         let mut f = frenet(&d1, &d2, &d3, up, &th);
-        if let Some(e) = &err {
-            let defined = f.flags & (flag::STOPPED | flag::STRAIGHT) == 0;
-            let rel = sig.max_relative;
-            let too_big = |se: f64, v: f64| se.is_finite() && se > rel * v;
-            if defined && (too_big(e.curvature, f.curvature) || too_big(e.speed, f.speed)) {
-                f.flags |= flag::VAGUE;
-            }
+        let defined = f.flags & (flag::STOPPED | flag::STRAIGHT) == 0;
+        let rel = sig.max_relative;
+        let too_big = |se: f64, v: f64| se.is_finite() && se > rel * v;
+        if defined && (too_big(se_kappa, f.curvature) || too_big(se_speed, f.speed)) {
+            f.flags |= flag::VAGUE;
         }
         self.velocity[j * D..(j + 1) * D].copy_from_slice(&s.d1);
         self.acceleration[j * D..(j + 1) * D].copy_from_slice(&s.d2);

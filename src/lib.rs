@@ -11,6 +11,7 @@ pub mod arclength;
 pub mod banded;
 pub mod batch;
 pub mod bspline;
+pub mod diagnose;
 pub mod diff;
 pub mod error;
 pub mod field;

@@ -17,7 +17,7 @@
 //! The noise σ itself comes from the estimator's residuals, or for finite differences from the
 //! difference-based estimator of T. Gasser, L. Sroka and C. Jennen-Steinmetz, "Residual variance
 //! and residual pattern in nonlinear regression", Biometrika 73 (1986) 625–633 (with cubic
-//! interpolation, see [`difference_noise`]).
+//! interpolation and a robust scale, see [`difference_noise`]).
 
 use nalgebra::Vector3;
 
@@ -134,6 +134,60 @@ fn spread(g: &[Vector3<f64>; 4], gram: &Gram, dim: usize, sigma: f64) -> f64 {
     sigma * v.max(0.0).sqrt()
 }
 
+/// Standard errors of the speed and of κ only (what the significance tests need), as in
+/// [`propagate`] but without the other quantities.
+#[inline]
+pub fn speed_and_curvature(
+    d1: &Vector3<f64>,
+    d2: &Vector3<f64>,
+    dim: usize,
+    gram: &Gram,
+    sigma: f64,
+) -> (f64, f64) {
+    let speed = sigma * gram[at(1, 1)].max(0.0).sqrt();
+    let v = d1.norm();
+    if !(v > 0.0 && v.is_finite()) {
+        return (speed, f64::NAN);
+    }
+    let (chat, cn) = normal_direction(d1, d2, v, dim);
+    let v3 = v * v * v;
+    let kappa = cn / v3;
+    let z = Vector3::zeros();
+    let g = [
+        z,
+        d2.cross(&chat) / v3 - d1 * (3.0 * kappa / (v * v)),
+        chat.cross(d1) / v3,
+        z,
+    ];
+    (speed, spread(&g, gram, dim, sigma))
+}
+
+/// Unit direction of r′ × r″ and |r′ × r″|, or any unit vector normal to T (and 0) when the
+/// cross product vanishes.
+#[inline]
+fn normal_direction(
+    d1: &Vector3<f64>,
+    d2: &Vector3<f64>,
+    v: f64,
+    dim: usize,
+) -> (Vector3<f64>, f64) {
+    let c = d1.cross(d2);
+    let cn = c.norm();
+    if cn > 0.0 && cn.is_finite() {
+        return (c / cn, cn);
+    }
+    if dim == 2 {
+        return (Vector3::z(), cn);
+    }
+    let t = d1 / v;
+    let trial = if t.x.abs() < 0.9 {
+        Vector3::x()
+    } else {
+        Vector3::y()
+    };
+    (t.cross(&trial).normalize(), cn)
+}
+
 /// Propagate the noise `sigma` through the Frenet formulas at one sample with derivatives
 /// r′ = `d1`, r″ = `d2`, r‴ = `d3` (zero beyond `dim`) and Gram matrix `gram`.
 ///
@@ -176,20 +230,7 @@ pub fn propagate(
     let z = Vector3::zeros();
     let t = d1 / v;
     let c = d1.cross(d2);
-    let cn = c.norm();
-    // Unit direction of r′ × r″, or any unit vector normal to T when it vanishes.
-    let chat = if cn > 0.0 && cn.is_finite() {
-        c / cn
-    } else if dim == 2 {
-        Vector3::z()
-    } else {
-        let trial = if t.x.abs() < 0.9 {
-            Vector3::x()
-        } else {
-            Vector3::y()
-        };
-        t.cross(&trial).normalize()
-    };
+    let (chat, cn) = normal_direction(d1, d2, v, dim);
     let (v2, v3) = (v * v, v * v * v);
     let at_ = d1.dot(d2) / v;
     let an = cn / v;
@@ -234,37 +275,44 @@ pub fn propagate(
 
 /// Noise standard deviation of the positions of one track (`x` row-major, `dim` columns) from
 /// pseudo-residuals, the construction of T. Gasser, L. Sroka and C. Jennen-Steinmetz (1986) with
-/// cubic instead of linear interpolation: ε̃ᵢ = Σⱼ wⱼ xⱼ − xᵢ with w the weights (Fornberg's,
-/// derivative 0) of the cubic through the two samples on each side, cᵢ² = 1/(1 + Σ wⱼ²), and
-/// σ̂² = Σ cᵢ² ε̃ᵢ² / (dim (n − 4)). A path that is locally cubic gives 0, so a smooth,
-/// well-sampled path is not mistaken for noise (the linear version sees h²|r″| there). Rows with a
-/// non-finite coordinate are skipped. Falls back to the linear (three-point) version for tracks of
-/// 3 or 4 finite rows; NaN with fewer.
+/// cubic instead of linear interpolation: ε̃ᵢ = Σⱼ wⱼ xⱼ − xᵢ with w the Lagrange weights of the
+/// cubic through the two samples on each side, cᵢ² = 1/(1 + Σ wⱼ²), so that cᵢ ε̃ᵢ has the
+/// variance σ² of the noise. The scale is robust: σ̂ = 1.4826 × median |cᵢ ε̃ᵢ| over samples and
+/// coordinates (the median absolute deviation of a normal sample, P. J. Huber, *Robust
+/// Statistics*, 1981), so corners of an exact path and the odd outlier do not count. A path that
+/// is locally cubic gives 0 (the linear version sees h²|r″| there). Rows with a non-finite
+/// coordinate are skipped. Tracks of 3 or 4 finite rows use the linear (three-point) version; NaN
+/// with fewer.
 ///
 /// # Examples
 ///
 /// ```
 /// use osculate::uncertainty::difference_noise;
-/// // Alternating ±0.1 on a straight line, uneven times: pseudo-residuals see the noise.
-/// let t = [0.0, 1.0, 2.5, 3.0, 4.2, 5.0, 6.1, 7.0];
-/// let x: Vec<f64> = t.iter().enumerate().map(|(i, &s)| s + if i % 2 == 0 { 0.1 } else { -0.1 }).collect();
-/// let s = difference_noise(&t, &x, 1);
-/// assert!(s > 0.05 && s < 0.2);
+/// // A cubic in t is no noise at all; alternating ±0.1 on uniform times gives the closed form
+/// // 1.4826 · (8/3) · 0.1 / √(70/36) (weights −1/6, 2/3, 2/3, −1/6 and |ε̃| = 8/3 · 0.1).
+/// let t: Vec<f64> = (0..30).map(|i| i as f64 * 0.5).collect();
+/// let cubic: Vec<f64> = t.iter().map(|&s| s * s * s - 2.0 * s).collect();
+/// assert!(difference_noise(&t, &cubic, 1).unwrap() < 1e-9);
+/// let x: Vec<f64> = (0..30).map(|i| if i % 2 == 0 { 0.1 } else { -0.1 }).collect();
+/// let expected = 1.4826 * (8.0 / 3.0) * 0.1 / (70.0f64 / 36.0).sqrt();
+/// assert!((difference_noise(&t, &x, 1).unwrap() - expected).abs() < 1e-12);
 /// ```
-pub fn difference_noise(t: &[f64], x: &[f64], dim: usize) -> f64 {
+pub fn difference_noise(t: &[f64], x: &[f64], dim: usize) -> crate::Result<f64> {
     let finite = |i: &usize| x[i * dim..(i + 1) * dim].iter().all(|v| v.is_finite());
     let n = t.len();
     let m = (0..n).filter(finite).count();
     if m < 3 {
-        return f64::NAN;
+        return Ok(f64::NAN);
     }
     let half = if m >= 5 { 2 } else { 1 };
     let width = 2 * half + 1;
+    let mut scaled = Vec::new();
+    scaled
+        .try_reserve_exact((m - 2 * half) * dim)
+        .map_err(|_| crate::KernelError::OutOfMemory { bytes: m * dim * 8 })?;
     // The last `width` finite rows, oldest first; the middle one is the sample tested.
     let mut win = [0usize; 5];
     let mut seen = 0;
-    let mut acc = 0.0;
-    let mut nodes = [0.0; 4];
     for r in (0..n).filter(finite) {
         win.copy_within(1.., 0);
         win[4] = r;
@@ -274,23 +322,46 @@ pub fn difference_noise(t: &[f64], x: &[f64], dim: usize) -> f64 {
         }
         let rows = &win[5 - width..];
         let i = rows[half];
-        let others = rows.iter().copied().filter(|&j| j != i);
-        for (node, j) in nodes.iter_mut().zip(others.clone()) {
-            *node = t[j];
+        let mut nodes = [0usize; 4];
+        for (slot, &j) in nodes.iter_mut().zip(rows.iter().filter(|&&j| j != i)) {
+            *slot = j;
         }
-        let w = crate::diff::fornberg(t[i], &nodes[..width - 1], 0);
-        let c2 = 1.0 / (1.0 + (0..width - 1).map(|j| w[j][0] * w[j][0]).sum::<f64>());
+        let nodes = &nodes[..width - 1];
+        // Lagrange weights of the polynomial through `nodes`, evaluated at t[i].
+        let mut w = [1.0; 4];
+        for (a, &ja) in nodes.iter().enumerate() {
+            for &jb in nodes.iter().filter(|&&jb| jb != ja) {
+                w[a] *= (t[i] - t[jb]) / (t[ja] - t[jb]);
+            }
+        }
+        let c = 1.0 / (1.0 + w[..nodes.len()].iter().map(|v| v * v).sum::<f64>()).sqrt();
         for d in 0..dim {
-            let e: f64 = others
-                .clone()
-                .enumerate()
-                .map(|(k, j)| w[k][0] * x[j * dim + d])
+            let e: f64 = nodes
+                .iter()
+                .zip(&w)
+                .map(|(&j, wj)| wj * x[j * dim + d])
                 .sum::<f64>()
                 - x[i * dim + d];
-            acc += c2 * e * e;
+            scaled.push((c * e).abs());
         }
     }
-    (acc / (dim * (m - 2 * half)) as f64).sqrt()
+    Ok(1.4826 * median(&mut scaled))
+}
+
+/// Median of the finite values of `v` (NaN if none), by selection; reorders `v`.
+pub fn median(v: &mut Vec<f64>) -> f64 {
+    v.retain(|x| x.is_finite());
+    if v.is_empty() {
+        return f64::NAN;
+    }
+    let (len, k) = (v.len(), v.len() / 2);
+    let (lo, mid, _) = v.select_nth_unstable_by(k, f64::total_cmp);
+    if len % 2 == 1 {
+        *mid
+    } else {
+        let below = lo.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+        0.5 * (below + *mid)
+    }
 }
 
 #[cfg(test)]
@@ -361,13 +432,33 @@ mod tests {
     }
 
     #[test]
+    fn medians() {
+        assert_eq!(median(&mut vec![3.0, 1.0, 2.0]), 2.0);
+        assert_eq!(median(&mut vec![4.0, 1.0, f64::NAN, 2.0, 3.0]), 2.5);
+        assert!(median(&mut vec![f64::NAN]).is_nan());
+    }
+
+    #[test]
+    fn the_short_path_agrees_with_the_full_propagation() {
+        let (d1, d2, d3) = (
+            Vector3::new(1.3, -0.4, 0.7),
+            Vector3::new(0.2, 0.9, -0.5),
+            Vector3::new(-0.6, 0.1, 0.8),
+        );
+        let g: Gram = [1.0, 0.1, -0.2, 0.0, 2.0, 0.3, 0.1, 5.0, 0.4, 9.0];
+        let e = propagate(&d1, &d2, &d3, 3, &g, 0.7);
+        let (sv, sk) = speed_and_curvature(&d1, &d2, 3, &g, 0.7);
+        assert_eq!((sv, sk), (e.speed, e.curvature));
+    }
+
+    #[test]
     fn difference_noise_is_zero_on_lines_and_unbiased_on_noise() {
         let t: Vec<f64> = (0..50).map(|i| (i as f64).powf(1.3)).collect();
         let x: Vec<f64> = t
             .iter()
             .flat_map(|&s| [2.0 * s + 1.0, -s * s * s])
             .collect();
-        assert!(difference_noise(&t, &x, 2) < 1e-9 * 50f64.powf(3.9));
+        assert!(difference_noise(&t, &x, 2).unwrap() < 1e-9 * 50f64.powf(3.9));
         // A fixed pseudo-random sequence with sample standard deviation s: the estimate is
         // within 20 % of s (n = 4000; its relative standard error is about 2 %).
         let n = 4000;
@@ -385,7 +476,7 @@ mod tests {
             .collect();
         let mean = x.iter().sum::<f64>() / n as f64;
         let s = (x.iter().map(|v| (v - mean).powi(2)).sum::<f64>() / n as f64).sqrt();
-        assert_relative_eq!(difference_noise(&t, &x, 1), s, max_relative = 0.2);
+        assert_relative_eq!(difference_noise(&t, &x, 1).unwrap(), s, max_relative = 0.2);
         // A NaN row is skipped: the same as the compacted track.
         let mut holed = x.clone();
         holed[100] = f64::NAN;

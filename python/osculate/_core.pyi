@@ -20,6 +20,7 @@ __all__ = [
     "polyline_arclength",
     "rotation_minimizing",
     "segment_nodes",
+    "track_stats",
 ]
 
 class InputError(ValueError):
@@ -44,6 +45,12 @@ def fd_kinematics(
     significance: float = 3.0,
     max_relative_se: float = 0.25,
 ) -> dict[str, Any]: ...
+def track_stats(
+    t: npt.NDArray[np.float64],
+    positions: npt.NDArray[np.float64],
+    offsets: npt.NDArray[np.int64],
+    acceleration: npt.NDArray[np.float64],
+) -> dict[str, npt.NDArray[np.float64]]: ...
 def polyline_arclength(
     t: npt.NDArray[np.float64],
     positions: npt.NDArray[np.float64],

@@ -7,8 +7,8 @@ import warnings
 import numpy as np
 import numpy.typing as npt
 
+from . import _core
 from .flags import Flag
-from .summary import group_quantile
 
 __all__ = ["SuspectDataWarning", "check_tracks"]
 
@@ -20,7 +20,7 @@ MAX_PLAUSIBLE_SPEED = 12_000.0
 #: median of the smallest of five Rayleigh distances); far less means the rows come back to where
 #: they were after a few others, as rows of several interleaved objects do.
 INTERLEAVED_RATIO = 0.2
-#: The most objects whose interleaved rows are recognised.
+#: The most objects whose interleaved rows are recognised (the kernel's search depth).
 INTERLEAVED_LAG = 6
 #: fd is useless when the noise of its r″ exceeds this fraction of the typical |r″|.
 FD_NOISE_RATIO = 0.3
@@ -50,6 +50,7 @@ def check_tracks(
     labels: np.ndarray,
     flags: npt.NDArray[np.uint8],
     acceleration: npt.NDArray[np.float64],
+    noise: npt.NDArray[np.float64],
     method: str,
 ) -> None:
     """Warn (:class:`SuspectDataWarning`) about tracks whose data look wrong (kernel row order).
@@ -62,6 +63,8 @@ def check_tracks(
         Row offsets of the tracks.
     labels : ndarray
         Track labels, for the messages.
+    noise : ndarray
+        Position noise per track seen by the estimator (NaN: unknown).
     method : str
         The estimator.
     """
@@ -69,39 +72,12 @@ def check_tracks(
     if m == 0 or len(t) < 3:
         return
     with np.errstate(all="ignore"):  # huge or tiny coordinates: the comparisons stay valid
-        findings = _findings(t, x, offsets, flags, acceleration, method)
+        findings = _findings(t, x, offsets, flags, acceleration, noise, method)
     for bad, message in findings:
         if bad.any():
             warnings.warn(
                 f"track(s) {_names(labels, bad)}: {message}", SuspectDataWarning, stacklevel=3
             )
-
-
-def _robust_noise(t: np.ndarray, x: np.ndarray, code: np.ndarray, m: int) -> np.ndarray:
-    """Estimate the noise per track from the median absolute cubic pseudo-residual.
-
-    The pseudo-residuals are those of :func:`osculate.kinematics` (Notes) for ``"fd"``; their
-    median ignores isolated corners of an exact path.
-    """
-    n = len(t)
-    if n < 5:
-        return np.full(m, np.nan)
-    i = np.arange(2, n - 2)
-    nb = np.stack([i - 2, i - 1, i + 1, i + 2])
-    ti, tn = t[i], t[nb]
-    w = np.ones((4, len(i)))
-    for j in range(4):  # Lagrange weights of the cubic through the 4 neighbours
-        for k in range(4):
-            if k != j:
-                w[j] *= (ti - tn[k]) / (tn[j] - tn[k])
-    c = 1.0 / np.sqrt(1.0 + (w * w).sum(axis=0))
-    e = np.einsum("ji,jid->id", w, x[nb]) - x[i]
-    ok = (code[i - 2] == code[i + 2]) & np.isfinite(e).all(axis=1)
-    a = np.abs(e * c[:, None])
-    med = group_quantile(
-        np.repeat(code[i], x.shape[1]), m, a.ravel(), np.repeat(ok, x.shape[1]), 0.5
-    )
-    return 1.4826 * med  # type: ignore[no-any-return]
 
 
 def _findings(
@@ -110,36 +86,23 @@ def _findings(
     offsets: npt.NDArray[np.int64],
     flags: npt.NDArray[np.uint8],
     acceleration: npt.NDArray[np.float64],
+    noise: npt.NDArray[np.float64],
     method: str,
 ) -> list[tuple[npt.NDArray[np.bool_], str]]:
     """Per check, the tracks that fail it and what to tell the caller."""
+    st = _core.track_stats(t, x, offsets, np.ascontiguousarray(acceleration))
     m = len(offsets) - 1
     counts = np.diff(offsets)
-    code = np.repeat(np.arange(m), counts)
-    finite = np.isfinite(x).all(axis=1)
-    step1 = np.hypot.reduce(x[1:] - x[:-1], axis=1)
-    ok1 = (code[1:] == code[:-1]) & finite[1:] & finite[:-1]
-    med1 = group_quantile(code[1:], m, step1, ok1, 0.5)
-    # Per row, the distance to the nearest of the rows 2..INTERLEAVED_LAG ahead in its track.
-    nearest = np.full(len(t), np.inf)
-    for lag in range(2, INTERLEAVED_LAG + 1):
-        d = np.hypot.reduce(x[lag:] - x[:-lag], axis=1)
-        d[(code[lag:] != code[:-lag]) | ~finite[lag:] | ~finite[:-lag]] = np.inf
-        nearest[:-lag] = np.fmin(nearest[:-lag], d)
-    back = group_quantile(code, m, nearest, np.isfinite(nearest), 0.5)
-    interleaved = (counts >= 10) & (med1 > 0) & (back < INTERLEAVED_RATIO * med1)
-    dt = np.diff(t)
-    speed = group_quantile(code[1:], m, step1 / dt, ok1, 0.5)
-    fast = speed > MAX_PLAUSIBLE_SPEED
+    step = st["step"]
+    interleaved = (counts >= 10) & (step > 0) & (st["back"] < INTERLEAVED_RATIO * step)
+    fast = st["speed"] > MAX_PLAUSIBLE_SPEED
     noisy_fd = np.zeros(m, bool)
-    noise = np.full(m, np.nan)
     if method == "fd":
-        h = group_quantile(code[1:], m, dt, ok1, 0.5)
-        acc = group_quantile(code, m, np.hypot.reduce(acceleration, axis=1), finite, 0.5)
-        noise = _robust_noise(t, x, code, m)
-        # Noise at the level of rounding (exact or simulated data) is no reason to warn.
-        real = (noise > 1e-9 * med1) & (med1 > 0)
-        noisy_fd = real & (np.sqrt(6.0) * noise / (h * h) > FD_NOISE_RATIO * acc)
+        # Noise at the level of rounding (exact or simulated data) is no reason to warn. The
+        # 3-point r″ of a uniform grid has the weights (1, −2, 1)/h²: standard error √6 σ/h².
+        real = (noise > 1e-9 * step) & (step > 0) & (counts >= 10)
+        noisy_fd = real & (np.sqrt(6.0) * noise / st["dt"] ** 2 > FD_NOISE_RATIO * st["accel"])
+    code = np.repeat(np.arange(m), counts)
     bad_flags = int(Flag.VAGUE | Flag.GAP)
     share = np.bincount(code, weights=(flags & bad_flags) != 0, minlength=m) / np.maximum(counts, 1)
     mostly = (share > MOSTLY_FLAGGED) & (counts >= 20)
@@ -153,7 +116,7 @@ def _findings(
         ),
         (
             fast,
-            f"the median speed between samples is up to {np.nanmax(speed, initial=0):.3g} "
+            f"the median speed between samples is up to {np.nanmax(st['speed'], initial=0):.3g} "
             "position units per time unit, faster than anything tracked in metres per second; "
             "check the units (millimetres given as metres, or milliseconds as seconds?)",
         ),

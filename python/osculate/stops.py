@@ -175,6 +175,8 @@ def stop_table(
     order: np.ndarray | None,
 ) -> Stops:
     """Return the stops of :func:`find_stops` as a table (``order``: kernel → caller rows)."""
+    if len(first) == 0:
+        return Stops.none(x.shape[1])
     caller = (lambda r: r) if order is None else (lambda r: order[r])
     return Stops(
         track=labels[code],

@@ -177,3 +177,27 @@ pub fn polyline_arclength<'py>(
     })?;
     Ok(s.into_pyarray(py))
 }
+
+/// Per-track medians behind the data checks (kernel order; see `osculate.diagnose`).
+#[pyfunction]
+pub fn track_stats<'py>(
+    py: Python<'py>,
+    t: PyReadonlyArray1<'py, f64>,
+    positions: PyReadonlyArray2<'py, f64>,
+    offsets: PyReadonlyArray1<'py, i64>,
+    acceleration: PyReadonlyArray2<'py, f64>,
+) -> PyResult<Bound<'py, PyDict>> {
+    let dim = positions.shape()[1];
+    let t = contiguous("t", t.as_slice())?;
+    let x = contiguous("positions", positions.as_slice())?;
+    let off = contiguous("offsets", offsets.as_slice())?;
+    let a = contiguous("acceleration", acceleration.as_slice())?;
+    let s = detached(py, || crate::diagnose::track_stats(t, x, dim, off, a))?;
+    let out = PyDict::new(py);
+    out.set_item("step", s.step.into_pyarray(py))?;
+    out.set_item("back", s.back.into_pyarray(py))?;
+    out.set_item("speed", s.speed.into_pyarray(py))?;
+    out.set_item("dt", s.dt.into_pyarray(py))?;
+    out.set_item("accel", s.accel.into_pyarray(py))?;
+    Ok(out)
+}

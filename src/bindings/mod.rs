@@ -18,6 +18,7 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add("InputError", m.py().get_type::<InputError>())?;
     m.add_function(wrap_pyfunction!(kinematics::fd_kinematics, m)?)?;
     m.add_function(wrap_pyfunction!(kinematics::polyline_arclength, m)?)?;
+    m.add_function(wrap_pyfunction!(kinematics::track_stats, m)?)?;
     m.add_function(wrap_pyfunction!(fit::fit_paths, m)?)?;
     m.add_class::<fit::FittedPaths>()?;
     m.add_function(wrap_pyfunction!(fit::rotation_minimizing, m)?)?;

@@ -1,0 +1,156 @@
+//! Per-track statistics behind the data checks (interleaved objects, implausible speeds,
+//! accelerations swamped by noise): medians over each track, one parallel pass.
+//!
+//! The decisions themselves are the Python layer's (`osculate.diagnose`); this computes the
+//! robust figures they compare, in O(n) per track (medians by selection, not sorting).
+
+use crate::batch::{check_offsets, track_rows};
+use crate::error::{try_filled, KernelError, Result};
+use crate::uncertainty::median;
+use rayon::prelude::*;
+
+/// Rows ahead searched for a return to the same place (the most interleaved objects recognised).
+pub const MAX_LAG: usize = 6;
+
+/// Robust figures of one track each (NaN where a track has too few finite rows).
+#[derive(Debug, Clone, PartialEq)]
+pub struct TrackStats {
+    /// Median distance between consecutive finite rows.
+    pub step: Vec<f64>,
+    /// Median over rows of the distance to the nearest of the rows 2..=[`MAX_LAG`] ahead.
+    pub back: Vec<f64>,
+    /// Median of step distance / time step.
+    pub speed: Vec<f64>,
+    /// Median time step.
+    pub dt: Vec<f64>,
+    /// Median |r″| of the estimated accelerations.
+    pub accel: Vec<f64>,
+}
+
+/// Distance between rows `i` and `j` (scale-safe: scaled by the largest difference).
+fn distance(x: &[f64], dim: usize, i: usize, j: usize) -> f64 {
+    crate::arclength::distance(&x[i * dim..(i + 1) * dim], &x[j * dim..(j + 1) * dim])
+}
+
+fn one_track(t: &[f64], x: &[f64], dim: usize, accel: &[f64]) -> Result<[f64; 5]> {
+    let n = t.len();
+    let finite = |i: usize| x[i * dim..(i + 1) * dim].iter().all(|v| v.is_finite());
+    let mut buf = Vec::new();
+    buf.try_reserve_exact(n)
+        .map_err(|_| KernelError::OutOfMemory { bytes: n * 8 })?;
+    let mut fill = |f: &mut dyn FnMut(&mut Vec<f64>)| {
+        buf.clear();
+        f(&mut buf);
+        median(&mut buf)
+    };
+    let step = fill(&mut |b| {
+        b.extend(
+            (1..n)
+                .filter(|&i| finite(i) && finite(i - 1))
+                .map(|i| distance(x, dim, i, i - 1)),
+        )
+    });
+    let back = fill(&mut |b| {
+        b.extend((0..n).filter(|&i| finite(i)).map(|i| {
+            (2..=MAX_LAG)
+                .filter(|&l| i + l < n && finite(i + l))
+                .map(|l| distance(x, dim, i, i + l))
+                .fold(f64::INFINITY, f64::min)
+        }))
+    });
+    let speed = fill(&mut |b| {
+        b.extend(
+            (1..n)
+                .filter(|&i| finite(i) && finite(i - 1))
+                .map(|i| distance(x, dim, i, i - 1) / (t[i] - t[i - 1])),
+        )
+    });
+    let dt = fill(&mut |b| b.extend((1..n).map(|i| t[i] - t[i - 1])));
+    let accel = fill(&mut |b| {
+        b.extend(accel.chunks_exact(dim).map(|a| {
+            let big = a.iter().fold(0.0f64, |m, v| m.max(v.abs()));
+            if big > 0.0 && big.is_finite() {
+                big * a.iter().map(|v| (v / big) * (v / big)).sum::<f64>().sqrt()
+            } else {
+                big
+            }
+        }))
+    });
+    Ok([step, back, speed, dt, accel])
+}
+
+/// The statistics of every track of a batch (`x` and `accel` row-major with `dim` columns).
+///
+/// # Examples
+///
+/// ```
+/// use osculate::diagnose::track_stats;
+/// // Two objects 30 m apart, their rows alternating, each moving at 10 m/s: a row's nearest
+/// // neighbour two rows ahead is 2 m away, the next row 30 m.
+/// let t: Vec<f64> = (0..40).map(|i| i as f64 * 0.1).collect();
+/// let x: Vec<f64> = (0..40).flat_map(|i| [t[i] * 10.0, if i % 2 == 0 { 0.0 } else { 30.0 }]).collect();
+/// let s = track_stats(&t, &x, 2, &[0, 40], &vec![0.0; 80]).unwrap();
+/// assert!(s.back[0] < 0.2 * s.step[0]);
+/// ```
+pub fn track_stats(
+    t: &[f64],
+    x: &[f64],
+    dim: usize,
+    offsets: &[i64],
+    accel: &[f64],
+) -> Result<TrackStats> {
+    let n = t.len();
+    if x.len() != n * dim || accel.len() != n * dim {
+        return Err(KernelError::Shape {
+            argument: "positions",
+            detail: format!("expected {n} rows of {dim} positions and accelerations"),
+        });
+    }
+    let offsets = check_offsets(offsets, n)?;
+    let m = offsets.len() - 1;
+    let rows: Vec<Result<[f64; 5]>> = (0..m)
+        .into_par_iter()
+        .map(|k| {
+            let r = track_rows(&offsets, k);
+            one_track(
+                &t[r.clone()],
+                &x[r.start * dim..r.end * dim],
+                dim,
+                &accel[r.start * dim..r.end * dim],
+            )
+        })
+        .collect();
+    let mut cols: [Vec<f64>; 5] = Default::default();
+    for c in cols.iter_mut() {
+        *c = try_filled(m, f64::NAN)?;
+    }
+    for (k, r) in rows.into_iter().enumerate() {
+        for (c, v) in cols.iter_mut().zip(r?) {
+            c[k] = v;
+        }
+    }
+    let [step, back, speed, dt, accel] = cols;
+    Ok(TrackStats {
+        step,
+        back,
+        speed,
+        dt,
+        accel,
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn one_object_moving_is_not_interleaved() {
+        // A straight line at 10 m/s sampled at 10 Hz: step 1 m, nearest of 2..6 ahead 2 m, speed
+        // 10 m/s, no noise (closed forms).
+        let t: Vec<f64> = (0..50).map(|i| i as f64 * 0.1).collect();
+        let x: Vec<f64> = t.iter().flat_map(|&s| [10.0 * s, 0.0]).collect();
+        let s = track_stats(&t, &x, 2, &[0, 50], &vec![0.0; 100]).unwrap();
+        assert!((s.step[0] - 1.0).abs() < 1e-12 && (s.back[0] - 2.0).abs() < 1e-12);
+        assert!((s.speed[0] - 10.0).abs() < 1e-9 && (s.dt[0] - 0.1).abs() < 1e-12);
+    }
+}
