@@ -150,16 +150,23 @@ pub fn speed_and_curvature(
         return (speed, f64::NAN);
     }
     let (chat, cn) = normal_direction(d1, d2, v, dim);
+    let g = curvature_gradient(d1, &d2.cross(&chat), &chat.cross(d1), v, cn);
+    (speed, spread(&g, gram, dim, sigma))
+}
+
+/// ∂κ/∂r⁽ᵃ⁾ for κ = |c|/v³, given d|c| = δ′·`dc1` + δ″·`dc2`.
+#[inline]
+fn curvature_gradient(
+    d1: &Vector3<f64>,
+    dc1: &Vector3<f64>,
+    dc2: &Vector3<f64>,
+    v: f64,
+    cn: f64,
+) -> [Vector3<f64>; 4] {
     let v3 = v * v * v;
     let kappa = cn / v3;
     let z = Vector3::zeros();
-    let g = [
-        z,
-        d2.cross(&chat) / v3 - d1 * (3.0 * kappa / (v * v)),
-        chat.cross(d1) / v3,
-        z,
-    ];
-    (speed, spread(&g, gram, dim, sigma))
+    [z, dc1 / v3 - d1 * (3.0 * kappa / (v * v)), dc2 / v3, z]
 }
 
 /// Unit direction of r′ × r″ and |r′ × r″|, or any unit vector normal to T (and 0) when the
@@ -231,20 +238,14 @@ pub fn propagate(
     let t = d1 / v;
     let c = d1.cross(d2);
     let (chat, cn) = normal_direction(d1, d2, v, dim);
-    let (v2, v3) = (v * v, v * v * v);
+    let v2 = v * v;
     let at_ = d1.dot(d2) / v;
     let an = cn / v;
     // d|c| = δ′·(r″ × ĉ) + δ″·(ĉ × r′).
     let (dc1, dc2) = (d2.cross(&chat), chat.cross(d1));
     e.accel_tangential = spread(&[z, d2 / v - d1 * (at_ / v2), t, z], gram, dim, sigma);
     e.accel_normal = spread(&[z, dc1 / v - d1 * (an / v2), dc2 / v, z], gram, dim, sigma);
-    let kappa = cn / v3;
-    e.curvature = spread(
-        &[z, dc1 / v3 - d1 * (3.0 * kappa / v2), dc2 / v3, z],
-        gram,
-        dim,
-        sigma,
-    );
+    e.curvature = spread(&curvature_gradient(d1, &dc1, &dc2, v, cn), gram, dim, sigma);
     let omega = cn / v2;
     e.angular_speed = spread(
         &[z, dc1 / v2 - d1 * (2.0 * omega / v2), dc2 / v2, z],
