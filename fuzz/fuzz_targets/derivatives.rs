@@ -12,7 +12,8 @@ use libfuzzer_sys::fuzz_target;
 use osculate::diff::{derivatives_at, fornberg, reach, FdOrder, MAX_DERIV, MAX_WIDTH};
 
 fn at<const D: usize>(t: &[f64], x: &[f64], i: usize, order: FdOrder) {
-    let (d1, d2, d3, _edge) = derivatives_at::<D>(t, x, i, order);
+    let mut gram = [0.0; 10];
+    let (d1, d2, d3, _edge) = derivatives_at::<D>(t, x, i, order, Some(&mut gram));
     assert_eq!((d1.len(), d2.len(), d3.len()), (D, D, D));
     let (lo, hi) = reach(i, t.len(), order);
     assert!(

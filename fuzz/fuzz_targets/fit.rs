@@ -11,8 +11,9 @@ use libfuzzer_sys::fuzz_target;
 use osculate::fit::{evaluate, fit_batch, Method};
 use osculate::kinematics::{of_fits, of_fits_at, Options};
 use osculate::local::Window;
-use osculate::smooth::Smoothing;
+use osculate::smooth::{Covariance, Smoothing};
 use osculate::spline::EndCondition;
+use osculate::uncertainty::Significance;
 
 fn method(b: &mut Bytes, dim: usize) -> Method {
     match b.u8() % 4 {
@@ -43,6 +44,11 @@ fn method(b: &mut Bytes, dim: usize) -> Method {
                 _ => Smoothing::Fixed(b.f64_any()),
             },
             derivative: b.u8() as usize % 5,
+            covariance: match b.u8() % 3 {
+                0 => None,
+                1 => Some(Covariance::Sampling),
+                _ => Some(Covariance::Posterior),
+            },
         },
         2 => Method::Local {
             degree: b.u8() as usize % 8,
@@ -51,6 +57,7 @@ fn method(b: &mut Bytes, dim: usize) -> Method {
                 1 => Window::Span(b.f64_any()),
                 _ => Window::Auto,
             },
+            uncertainty: b.chance(128),
         },
         _ => Method::Linear,
     }
@@ -105,6 +112,13 @@ fuzz_target!(|data: &[u8]| {
             None
         } else {
             Some([b.f64_any(), b.f64_any(), b.f64_any()])
+        },
+        uncertainty: b.chance(128),
+        significance: Significance {
+            speed: b.chance(128),
+            curvature: b.chance(128),
+            z: if b.chance(200) { 3.0 } else { b.f64_any() },
+            max_relative: if b.chance(200) { 0.25 } else { b.f64_any() },
         },
         ..Options::default()
     };

@@ -10,6 +10,7 @@ use libfuzzer_sys::fuzz_target;
 use osculate::diff::FdOrder;
 use osculate::frame::Thresholds;
 use osculate::kinematics::{kinematics, Options};
+use osculate::uncertainty::Significance;
 
 fuzz_target!(|data: &[u8]| {
     let mut b = Bytes::new(data);
@@ -48,6 +49,13 @@ fuzz_target!(|data: &[u8]| {
         thresholds,
         gap_factor,
         up,
+        uncertainty: b.chance(128),
+        significance: Significance {
+            speed: b.chance(128),
+            curvature: b.chance(128),
+            z: if b.chance(200) { 3.0 } else { b.f64_any() },
+            max_relative: if b.chance(200) { 0.25 } else { b.f64_any() },
+        },
     };
     if let Ok(k) = kinematics(&t, &x, dim, &offsets, &opts) {
         assert_eq!(k.n, n);
