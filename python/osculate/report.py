@@ -208,7 +208,7 @@ def _drone(out: Any, figs: bool, files: list[Any]) -> tuple[list[Check], str]:
 
     f = survey_flight()
     enu = geodetic_to_enu(f.lat, f.lon, f.height)
-    opts: dict[str, Any] = {"method": "smooth", "up": (0.0, 0.0, 1.0), "min_speed": 0.2}
+    opts: dict[str, Any] = {"method": "smooth", "up": (0.0, 0.0, 1.0)}
     k = kinematics(f.t, enu, frame="rotation-minimizing", **opts)
     frenet = kinematics(f.t, enu, **opts)
     one = np.ones(len(f.t) - 1, dtype=bool)
@@ -244,6 +244,30 @@ def _drone(out: Any, figs: bool, files: list[Any]) -> tuple[list[Check], str]:
             name, "length of the flight path", "m", float(np.nanmax(k.arclength)), f.length, 0.01
         ),
     ]
+    # The hover: the stop interval that overlaps it, against the plan (a few 0.1 s samples).
+    hover = np.flatnonzero((k.stops.end > f.hover_span[0]) & (k.stops.start < f.hover_span[1]))
+    found = hover[0] if len(hover) else None
+    checks.append(
+        Check(
+            name,
+            "hover: duration of the stop interval found",
+            "s",
+            float(k.stops.duration[found]) if found is not None else float("nan"),
+            f.hover_span[1] - f.hover_span[0],
+            0.1,
+        )
+    )
+    summary = k.summary_arrays()
+    checks.append(
+        Check(
+            name,
+            "summary: smallest radius (min_radius, over trusted curved samples)",
+            "m",
+            float(summary["min_radius"][0]),
+            f.turn_radius,
+            0.1,
+        )
+    )
     cols = _kinematics_columns(k, ("east", "north", "up"))
     cols.update(true_speed=f.speed, true_curvature=f.curvature)
     files.append(_write_table(out / "drone_samples", cols))
@@ -260,14 +284,20 @@ fixes and has one {f.outage:.1f} s outage; position noise {f.noise_horizontal} m
 axis and {f.noise_vertical} m vertically. {len(f.t)} fixes.
 
 Method: `osc.geodetic_to_enu(lat, lon, height)` (east-north-up metres about the first fix), then
-`osc.kinematics(t, enu, method="smooth", up=(0, 0, 1), min_speed=0.2,
-frame="rotation-minimizing")`: quintic smoothing spline, λ* = {_smoothing(k)[0]:.3g}
-chosen by generalized cross-validation (rescaled for the second derivative).
+`osc.kinematics(t, enu, method="smooth", up=(0, 0, 1), frame="rotation-minimizing")`: quintic
+smoothing spline, λ* = {_smoothing(k)[0]:.3g} chosen by generalized cross-validation for
+positions to accelerations (r‴ from a second fit tuned for the third derivative), standard
+errors from the spline's exact weights, STOPPED and STRAIGHT when speed or curvature is within
+3 standard errors of zero. The summary's smallest radius is
+{summary["min_radius"][0]:.1f} ± {summary["min_radius_se"][0]:.1f} m
+(at t = {summary["min_radius_at"][0]:.1f} s; 5th percentile {summary["p5_radius"][0]:.1f} m).
 
 {_table(checks)}
 
-Flags: {int(stopped.sum())} samples STOPPED (speed below 0.2 m/s: at the top of the climb, in the
-hover and at the end), {int(k.flagged(Flag.GAP).sum())} GAP (the outage),
+Stops found: {_stops_text(k)}.
+
+Flags: {int(stopped.sum())} samples STOPPED (not moving within the noise: at the start, at the
+top of the climb, in the hover and at the end), {int(k.flagged(Flag.GAP).sum())} GAP (the outage),
 {int(k.flagged(Flag.EDGE).sum())} EDGE. Frames: on the straight legs the Frenet normal follows the
 noise and flips {_flips(frenet.normal, leg_pairs)} times between consecutive samples; the
 rotation-minimizing frame flips {_flips(k.normal, leg_pairs & one)} times there.
@@ -539,6 +569,17 @@ def _truth(ax: Any, x: F64, y: F64, label: str) -> None:
     """Overlay a ground-truth curve (dashed) on a panel, with its own small legend."""
     ax.plot(x, y, color=TRUTH, linestyle=(0, (4, 3)), linewidth=1.0, label=label, zorder=3)
     ax.legend(loc="best", fontsize=7.5, framealpha=0.85)
+
+
+def _stops_text(k: Any) -> str:
+    """Describe the stop intervals of one track as text."""
+    st = k.stops
+    if len(st) == 0:
+        return "none"
+    return "; ".join(
+        f"{a:.1f}–{b:.1f} s ({d:.1f} s, {n} samples)"
+        for a, b, d, n in zip(st.start, st.end, st.duration, st.samples)
+    )
 
 
 def _save(p: Any, target: Any) -> Any:
