@@ -248,7 +248,7 @@ def test_checks_csv_agrees_with_the_report(demo_run):
     rows = report_rows((out / "report.md").read_text())
     with (out / "checks.csv").open() as fh:
         checks = list(csv.DictReader(fh))
-    assert len(checks) == len(rows) == 14
+    assert len(checks) == len(rows) == 16  # 14 figures + the hover stop and the summary radius
     for c in checks:
         est, true = rows[c["figure"]]
         assert np.isclose(float(c["estimated"]), est, rtol=1e-4)
