@@ -90,6 +90,9 @@ pub struct FitInfo {
     /// Dimensionless λ* of the smoother fit that r‴ comes from (NaN where r‴ has no fit of its
     /// own).
     pub jerk_smoothing: f64,
+    /// Bandwidth of a smoothing spline's equivalent kernel in samples, λ*^(1/2m) (B. W.
+    /// Silverman, Ann. Statist. 12 (1984) 898–916); NaN for other estimators.
+    pub bandwidth: f64,
 }
 
 /// The fit of one track.
@@ -348,6 +351,7 @@ impl TrackFit {
                 length_error: self.length_error(),
                 noise: nan,
                 jerk_smoothing: nan,
+                bandwidth: nan,
             },
             TrackFit::Poly { info, .. } => FitInfo {
                 length_error: self.length_error(),
@@ -365,6 +369,7 @@ impl TrackFit {
                 length_error: nan,
                 noise: f.noise,
                 jerk_smoothing: nan,
+                bandwidth: nan,
             },
         }
     }
@@ -406,6 +411,7 @@ pub fn fit_track(
                 length_error: nan,
                 noise: nan,
                 jerk_smoothing: nan,
+                bandwidth: nan,
             },
             edge: 2,
             gram: Vec::new(),
@@ -421,9 +427,8 @@ pub fn fit_track(
             // The natural end conditions bias derivatives over the reach of the equivalent
             // kernel, about three bandwidths λ*^(1/2m) (in samples) from each end.
             let m = degree.div_ceil(2);
-            let band = (EDGE_BANDWIDTHS * f.lambda.powf(0.5 / m as f64))
-                .ceil()
-                .max(1.0) as usize;
+            let bandwidth = f.lambda.powf(0.5 / m as f64);
+            let band = (EDGE_BANDWIDTHS * bandwidth).ceil().max(1.0) as usize;
             TrackFit::Poly {
                 poly: f.path,
                 info: FitInfo {
@@ -434,6 +439,7 @@ pub fn fit_track(
                     length_error: nan,
                     noise: f.noise,
                     jerk_smoothing: f.jerk.as_ref().map_or(nan, |j| j.lambda),
+                    bandwidth,
                 },
                 edge: band.min(t.len()),
                 gram: f.gram,

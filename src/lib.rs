@@ -26,6 +26,7 @@ pub mod resample;
 pub mod rmf;
 pub mod smooth;
 pub mod spline;
+pub mod summary;
 pub mod uncertainty;
 
 #[cfg(feature = "python")]

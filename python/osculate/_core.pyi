@@ -20,6 +20,7 @@ __all__ = [
     "polyline_arclength",
     "rotation_minimizing",
     "segment_nodes",
+    "summarize",
     "track_stats",
 ]
 
@@ -51,6 +52,20 @@ def track_stats(
     offsets: npt.NDArray[np.int64],
     acceleration: npt.NDArray[np.float64],
 ) -> dict[str, npt.NDArray[np.float64]]: ...
+def summarize(
+    t: npt.NDArray[np.float64],
+    flags: npt.NDArray[np.uint8],
+    speed: npt.NDArray[np.float64],
+    accel_tangential: npt.NDArray[np.float64],
+    accel_normal: npt.NDArray[np.float64],
+    curvature: npt.NDArray[np.float64],
+    angular_speed: npt.NDArray[np.float64],
+    arclength: npt.NDArray[np.float64],
+    jerk: npt.NDArray[np.float64],
+    se: list[npt.NDArray[np.float64] | None],
+    offsets: npt.NDArray[np.int64],
+    half: npt.NDArray[np.int64],
+) -> dict[str, npt.NDArray[Any]]: ...
 def polyline_arclength(
     t: npt.NDArray[np.float64],
     positions: npt.NDArray[np.float64],

@@ -153,6 +153,7 @@ def find_stops(
         rows = np.repeat(mf[bridge], lengths) + _ramp(lengths)
         stopped[rows] = True
     first, last = _runs(stopped, code)
+    first, last = _join_held(x, code, noise, first, last)
     step = np.full(len(counts), np.nan)
     ok = counts > 1
     step[ok] = (t[offsets[1:][ok] - 1] - t[offsets[:-1][ok]]) / (counts[ok] - 1)
@@ -207,6 +208,40 @@ def _centres(x: np.ndarray, first: np.ndarray, last: np.ndarray) -> np.ndarray:
         cn = np.concatenate([[0], np.cumsum(finite)])
         cnt = (cn[last + 1] - cn[first]).astype(float)
         return (cs[last + 1] - cs[first]) / cnt[:, None]  # type: ignore[no-any-return]
+
+
+def _join_held(
+    x: np.ndarray, code: np.ndarray, noise: np.ndarray, first: np.ndarray, last: np.ndarray
+) -> tuple[np.ndarray, np.ndarray]:
+    """Join consecutive runs of a track that hold one position.
+
+    Runs join when every sample between them, and the centre of the shorter run, lie within
+    :data:`HOLD_NOISE` noise levels of the centre of the longer run.
+
+    Inside a stop, a spline's speed can ring just above the significance threshold after an
+    abrupt halt, splitting the stop into pieces shorter than the minimum duration; the positions
+    show that the object never left.
+    """
+    if len(first) < 2:
+        return first, last
+    centre = _centres(x, first, last)
+    radius = HOLD_NOISE * noise[code[first]]
+    gap_first, gap_last = last[:-1] + 1, first[1:] - 1
+    same = code[first[1:]] == code[first[:-1]]
+    size = last - first
+    ref = np.where(size[1:] > size[:-1], np.arange(1, len(first)), np.arange(len(first) - 1))
+    # Largest distance of the rows between run i and i + 1 from the centre of the longer one.
+    lengths = np.maximum(gap_last - gap_first + 1, 0)
+    rows = np.repeat(gap_first, lengths) + _ramp(lengths)
+    owner = np.repeat(np.arange(len(lengths)), lengths)
+    d = np.hypot.reduce(x[rows] - centre[ref[owner]], axis=1) if len(rows) else np.zeros(0)
+    far = np.zeros(len(lengths), bool)
+    np.logical_or.at(far, owner, ~(d <= radius[ref[owner]]))
+    apart = np.hypot.reduce(centre[1:] - centre[:-1], axis=1)
+    join = np.zeros(len(first), bool)
+    join[1:] = same & ~far & (apart <= radius[ref])
+    starts = np.flatnonzero(~join)
+    return first[starts], np.maximum.reduceat(last, starts)
 
 
 def _hold(

@@ -5,14 +5,13 @@ from __future__ import annotations
 from typing import TYPE_CHECKING
 
 import numpy as np
-import numpy.typing as npt
 
-from .flags import Flag
+from . import _core
 
 if TYPE_CHECKING:
     from .intrinsic import Kinematics
 
-__all__ = ["COLUMNS", "group_quantile", "summarize"]
+__all__ = ["COLUMNS", "summarize"]
 
 #: Every summary column with its unit ("L" and "T" stand for the input's length and time units).
 COLUMNS: dict[str, str] = {
@@ -28,20 +27,24 @@ COLUMNS: dict[str, str] = {
     "error is at most twice the track's median for the quantity)",
     "max_speed_at": "T, time of max_speed",
     "max_speed_se": "L/T, standard error of max_speed",
-    "max_abs_accel_tangential": "L/T², largest |a_t| of a trusted sample",
+    "max_abs_accel_tangential": "L/T², largest mean |a_t| over a stretch of 2h + 1 trusted "
+    "samples (h about 1.5 smoothing bandwidths, at most 8; 1 for estimators without one)",
     "max_abs_accel_tangential_at": "T",
     "max_abs_accel_tangential_se": "L/T²",
-    "max_accel_normal": "L/T², largest normal (centripetal, lateral) acceleration, curved samples",
+    "max_accel_normal": "L/T², largest mean normal (centripetal, lateral) acceleration over a "
+    "stretch of 2h + 1 curved samples",
     "max_accel_normal_at": "T",
     "max_accel_normal_se": "L/T²",
     "p95_accel_normal": "L/T², 95th percentile of a_n over curved samples",
-    "min_radius": "L, smallest radius of curvature of a curved sample",
-    "min_radius_at": "T",
+    "min_radius": "L, 1 / the largest mean curvature over a stretch of 2h + 1 curved samples",
+    "min_radius_at": "T, time of the middle sample of the stretch (the same for every extreme)",
     "min_radius_se": "L",
     "p5_radius": "L, 5th percentile of the radius over curved samples",
-    "max_jerk_magnitude": "L/T³, largest |r‴| (magnitude of the jerk vector) of a trusted sample",
+    "max_jerk_magnitude": "L/T³, largest mean |r‴| (magnitude of the jerk vector) over a "
+    "stretch of 2h + 1 trusted samples",
     "max_jerk_magnitude_at": "T",
-    "max_jerk_magnitude_se": "L/T³, standard error of one component of r‴ there",
+    "max_jerk_magnitude_se": "L/T³, standard error of one component of r‴ there (extremes: "
+    "the mean standard error over the stretch, an upper bound for that of the mean)",
     "turning_angle": "rad, ∫ω dt over moving samples (trapezoids, stopped samples skipped)",
     "stops": "number of stop intervals",
     "stopped_time": "T, total duration of the stops",
@@ -49,50 +52,19 @@ COLUMNS: dict[str, str] = {
     "noise": "L, noise standard deviation of the positions seen by the estimator",
 }
 
-#: Extremes are taken over samples whose standard error is at most this multiple of the track's
-#: median standard error of the same quantity (on a noisy 25 m circle with stops, the smallest
-#: radius moved from 18.1 ± 4.4 m, at a slow sample next to a stop, to 22.3 ± 1.6 m).
-PRECISE = 2.0
-
-_UNTRUSTED = int(Flag.STOPPED | Flag.EDGE | Flag.GAP | Flag.INVALID | Flag.VAGUE)
-
-
-def _extreme(
-    code: np.ndarray, m: int, value: np.ndarray, ok: np.ndarray, largest: bool
-) -> npt.NDArray[np.intp]:
-    """Row of the largest (or smallest) ``value`` among rows ``ok`` of each track; −1 if none."""
-    v = np.where(ok & ~np.isnan(value), value, np.nan)
-    key = -v if largest else v
-    key = np.where(np.isnan(key), np.inf, key)
-    order = np.lexsort((key, code))
-    first = np.searchsorted(code[order], np.arange(m), side="left")
-    out = np.full(m, -1, np.intp)
-    has = first < len(order)
-    rows = order[np.minimum(first, len(order) - 1)]
-    good = has & (code[rows] == np.arange(m)) & np.isfinite(key[rows])
-    out[good] = rows[good]
-    return out
+#: Half-width of the stretches whose means compete for an extreme, in bandwidths of the
+#: smoothing spline's equivalent kernel (its main lobe spans about ±3.3 bandwidths for the cubic
+#: spline, Silverman 1984); estimators without a bandwidth use stretches of three samples, which
+#: cancel alternating ringing.
+STRETCH_BANDWIDTHS = 1.5
 
 
-def group_quantile(
-    code: np.ndarray, m: int, value: np.ndarray, ok: np.ndarray, q: float
-) -> np.ndarray:
-    """Per-track quantile (linear interpolation, as numpy.quantile) over rows ``ok``."""
-    keep = ok & np.isfinite(value)
-    c, v = code[keep], value[keep]
-    order = np.lexsort((v, c))
-    c, v = c[order], v[order]
-    counts = np.bincount(c, minlength=m)
-    starts = np.concatenate([[0], np.cumsum(counts)[:-1]])
-    pos = q * (counts - 1)
-    lo = np.floor(pos).astype(np.intp)
-    frac = pos - lo
-    out = np.full(m, np.nan)
-    has = counts > 0
-    i0 = starts[has] + lo[has]
-    i1 = np.minimum(i0 + 1, starts[has] + counts[has] - 1)
-    out[has] = v[i0] * (1 - frac[has]) + v[i1] * frac[has]
-    return out
+def _half_widths(k: Kinematics, m: int) -> np.ndarray:
+    band = (k.fit_info or {}).get("bandwidth")
+    if band is None:
+        return np.ones(m, np.int64)
+    h = np.rint(STRETCH_BANDWIDTHS * np.asarray(band, dtype=float))
+    return np.where(np.isfinite(h), np.maximum(h, 1), 1).astype(np.int64)
 
 
 def summarize(k: Kinematics) -> dict[str, np.ndarray]:
@@ -106,72 +78,60 @@ def _summarize(k: Kinematics) -> dict[str, np.ndarray]:
     kern = g.to_kernel
     m = g.n_tracks
     starts = g.offsets[:-1]
-    counts = np.diff(g.offsets)
-    code = np.repeat(np.arange(m), counts)
     t = kern(k.t)
-    flags = kern(k.flags)
-    trusted = (flags & _UNTRUSTED) == 0
-    curved = trusted & ((flags & int(Flag.STRAIGHT)) == 0)
     se = k.se if k.se is not None else {}
-    nan_rows = np.full(len(t), np.nan)
 
-    def kse(name: str) -> np.ndarray:
+    def kse(name: str) -> np.ndarray | None:
         a = se.get(name)
         if a is None:
-            return nan_rows
+            return None
         a = kern(np.asarray(a))
-        return a if a.ndim == 1 else a[:, 0]
+        return np.ascontiguousarray(a if a.ndim == 1 else a[:, 0])
 
+    figures = _core.summarize(
+        t,
+        kern(k.flags),
+        kern(k.speed),
+        kern(k.accel_tangential),
+        kern(k.accel_normal),
+        kern(k.curvature),
+        kern(k.angular_speed),
+        kern(k.arclength),
+        np.ascontiguousarray(kern(k.jerk)),
+        [kse(q) for q in ("speed", "accel_tangential", "accel_normal", "curvature", "jerk")],
+        g.offsets,
+        _half_widths(k, m),
+    )
     out: dict[str, np.ndarray] = {"track": g.labels}
     out["start"] = t[starts] if m else np.zeros(0)
     out["end"] = t[g.offsets[1:] - 1] if m else np.zeros(0)
-    out["samples"] = counts
-    out["trusted"] = np.bincount(code, weights=trusted, minlength=m).astype(np.int64)
-    out["curved"] = np.bincount(code, weights=curved, minlength=m).astype(np.int64)
-    length = np.fmax.reduceat(kern(k.arclength), starts) if m else np.zeros(0)
-    duration = t[g.offsets[1:] - 1] - t[starts] if m else np.zeros(0)
-    out["length"] = length
-    out["duration"] = duration
+    out["samples"] = np.diff(g.offsets)
+    for name in ("trusted", "curved", "length", "duration"):
+        out[name] = figures[name]
+    duration = figures["duration"]
     with np.errstate(invalid="ignore", divide="ignore"):
-        out["mean_speed"] = length / np.where(duration > 0, duration, np.nan)
-    jerk = np.hypot.reduce(kern(k.jerk), axis=1)  # scale-safe, unlike a sum of squares
-    a_t = np.abs(kern(k.accel_tangential))
-    a_n, radius = kern(k.accel_normal), kern(k.radius)
-    extremes = (
-        ("max_speed", kern(k.speed), kse("speed"), True, trusted),
-        ("max_abs_accel_tangential", a_t, kse("accel_tangential"), True, trusted),
-        ("max_accel_normal", a_n, kse("accel_normal"), True, curved),
-        ("min_radius", radius, kse("radius"), False, curved),
-        ("max_jerk_magnitude", jerk, kse("jerk"), True, trusted),
-    )
-    for name, value, err, largest, ok in extremes:
-        # The most extreme of many noisy values is usually the noisiest one: only samples whose
-        # standard error is within PRECISE times the track's median for the quantity compete.
-        typical = group_quantile(code, m, err, ok, 0.5)
-        precise = ~(err > PRECISE * typical[code])  # all, where there is no standard error
-        rows = _extreme(code, m, value, ok & precise, largest)
-        found = rows >= 0
-        r = np.where(found, rows, 0)
-        out[name] = np.where(found, value[r] if len(value) else np.nan, np.nan)
-        out[f"{name}_at"] = np.where(found, t[r] if len(t) else np.nan, np.nan)
-        out[f"{name}_se"] = np.where(found, err[r] if len(err) else np.nan, np.nan)
-    out["p95_accel_normal"] = group_quantile(code, m, a_n, curved, 0.95)
-    out["p5_radius"] = group_quantile(code, m, radius, curved, 0.05)
-    # ∫ω dt over segments whose ends are both moving and define ω.
-    om = kern(k.angular_speed)
-    moving = (flags & int(Flag.STOPPED | Flag.INVALID)) == 0
-    om = np.where(moving, om, np.nan)
-    seg = 0.5 * (om[1:] + om[:-1]) * np.diff(t)
-    seg = np.concatenate([[0.0], np.where(np.isnan(seg), 0.0, seg)])
-    seg[starts[counts > 0]] = 0.0
-    out["turning_angle"] = np.bincount(code, weights=seg, minlength=m)
+        out["mean_speed"] = figures["length"] / np.where(duration > 0, duration, np.nan)
+    for name, q in (
+        ("max_speed", "speed"),
+        ("max_abs_accel_tangential", "accel_tangential"),
+        ("max_accel_normal", "accel_normal"),
+    ):
+        for suffix in ("", "_at", "_se"):
+            out[name + suffix] = figures[q + suffix]
+    kappa, kappa_se = figures["curvature"], figures["curvature_se"]
+    with np.errstate(invalid="ignore", divide="ignore"):
+        out["min_radius"] = 1.0 / kappa
+        out["min_radius_at"] = figures["curvature_at"]
+        out["min_radius_se"] = kappa_se / kappa**2  # first-order propagation of 1/κ
+    out["p95_accel_normal"] = figures["p95_accel_normal"]
+    out["p5_radius"] = figures["p5_radius"]
+    for suffix in ("", "_at", "_se"):
+        out["max_jerk_magnitude" + suffix] = figures["jerk" + suffix]
+    out["turning_angle"] = figures["turning_angle"]
     stops = k.stops
     out["stops"] = np.bincount(stops.track_index, minlength=m).astype(np.int64)
     out["stopped_time"] = np.bincount(stops.track_index, weights=stops.duration, minlength=m)
-    not_edge = int(Flag.STOPPED | Flag.STRAIGHT | Flag.GAP | Flag.INVALID | Flag.VAGUE)
-    out["flagged"] = np.bincount(code, weights=(flags & not_edge) != 0, minlength=m).astype(
-        np.int64
-    )
+    out["flagged"] = figures["flagged"]
     info = dict(k.fit_info or {})
     out["noise"] = info.pop("noise", np.full(m, np.nan))
     out.update(info)

@@ -314,6 +314,7 @@ impl FittedPaths {
         out.set_item("length_error", col(|i| i.length_error))?;
         out.set_item("noise", col(|i| i.noise))?;
         out.set_item("jerk_smoothing", col(|i| i.jerk_smoothing))?;
+        out.set_item("bandwidth", col(|i| i.bandwidth))?;
         Ok(out)
     }
 }

@@ -6,6 +6,7 @@ mod fit;
 mod geodesy;
 mod kinematics;
 mod line_integral;
+mod summary;
 
 use pyo3::prelude::*;
 
@@ -19,6 +20,7 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(kinematics::fd_kinematics, m)?)?;
     m.add_function(wrap_pyfunction!(kinematics::polyline_arclength, m)?)?;
     m.add_function(wrap_pyfunction!(kinematics::track_stats, m)?)?;
+    m.add_function(wrap_pyfunction!(summary::summarize, m)?)?;
     m.add_function(wrap_pyfunction!(fit::fit_paths, m)?)?;
     m.add_class::<fit::FittedPaths>()?;
     m.add_function(wrap_pyfunction!(fit::rotation_minimizing, m)?)?;
