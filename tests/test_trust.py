@@ -45,7 +45,10 @@ def _clothoid_arc(rng, n=500, sigma=0.03):
     return t, p + rng.normal(0.0, sigma, p.shape), truth
 
 
-_SHORT = "measured below 85 %: derivative bias of the automatic choice is not in the band"
+_SHORT = (
+    "measured below 85 %: the automatic window is chosen for the positions and leaves a bias in "
+    "the derivatives that the band does not hold (0.7 × the window: 94 %)"
+)
 
 
 @pytest.mark.parametrize(
@@ -53,7 +56,7 @@ _SHORT = "measured below 85 %: derivative bias of the automatic choice is not in
     [
         (_helix, "smooth"),
         (_clothoid_arc, "smooth"),
-        pytest.param(_helix, "local", marks=pytest.mark.xfail(reason=f"speed 61 %, {_SHORT}")),
+        pytest.param(_helix, "local", marks=pytest.mark.xfail(reason=f"speed 60 %, {_SHORT}")),
         pytest.param(
             _clothoid_arc, "local", marks=pytest.mark.xfail(reason=f"speed 83 %, {_SHORT}")
         ),
@@ -88,6 +91,45 @@ def test_bands_cover_the_truth(case, method):
         cov = float(np.mean(h))
         low = 0.93 if method == "fd" else 0.85
         assert low <= cov <= 0.99, (method, case.__name__, q, cov)
+
+
+@pytest.mark.parametrize("method, sigma", [("local", 0.05), ("fd", 1e-3)])
+def test_bands_are_exact_for_pure_noise(method, sigma):
+    # A cubic in time (closed-form velocity and acceleration) is reproduced exactly by local
+    # fits of degree 4 and by fd's stencils up to the noise, so the linear-propagation variance
+    # is the whole error: ±1.96 se must cover 95 % (normal quantile); ≥ 93 % over 200 seeded
+    # replications of 240 interior samples (Monte Carlo spread about ±0.1 %). Measured 94.4–95.0 %.
+    rng = np.random.default_rng(5)
+    hits = {q: [] for q in ("speed", "accel_tangential", "velocity", "acceleration")}
+    for _ in range(200):
+        n = 300
+        t = np.sort(rng.uniform(0.0, 30.0, n))
+        p = np.column_stack([2 * t + 0.05 * t**2 - 0.001 * t**3, 1.5 * t - 0.02 * t**2, 0.3 * t])
+        v = np.column_stack([2 + 0.1 * t - 0.003 * t**2, 1.5 - 0.04 * t, np.full(n, 0.3)])
+        a = np.column_stack([0.1 - 0.006 * t, np.full(n, -0.04), np.zeros(n)])
+        speed = np.linalg.norm(v, axis=1)
+        truth = {
+            "velocity": v,
+            "acceleration": a,
+            "speed": speed,
+            "accel_tangential": np.sum(v * a, axis=1) / speed,
+        }
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore", osc.SuspectDataWarning)
+            k = osc.kinematics(
+                t,
+                p + rng.normal(0.0, sigma, p.shape),
+                method=method,
+                uncertainty=True,
+                min_speed=1e-3,
+                min_curvature=1e-9,
+            )
+        inner = slice(n // 10, n - n // 10)
+        for q in hits:
+            est, se, tr = getattr(k, q)[inner], k.se[q][inner], truth[q][inner]
+            hits[q].append(np.mean(np.abs(est - tr) <= 1.96 * se))
+    for q, h in hits.items():
+        assert 0.93 <= float(np.mean(h)) <= 0.97, (method, q, float(np.mean(h)))
 
 
 def test_smoothing_standard_errors_equal_the_dense_smoother():
