@@ -167,7 +167,8 @@ class _Prepared:
         np.cumsum(counts, out=self.offsets[1:])
         self.grouping = Grouping(self.offsets, None, np.arange(m))
         key = self.to_kernel(key)
-        if times.ticks_per_second is not None:  # datetimes: seconds since each track's first time
+        self.datetimes = times.ticks_per_second is not None
+        if self.datetimes:  # datetimes: seconds since each track's first time
             first = np.repeat(key[self.offsets[:-1]], counts)
             self.t = (key - first) / times.ticks_per_second
         else:
@@ -338,6 +339,9 @@ def summary_and_stops(
     raw = prep.time_values
     out["start"] = raw.iloc[first].array
     out["end"] = raw.iloc[last].array
+    if prep.datetimes:  # the times of the extremes, like start and end, in the caller's type
+        for c in [c for c in out.columns if str(c).endswith("_at")]:
+            out[c] = out["start"] + pd.to_timedelta(out[c].to_numpy(), unit="s")
     if prep.crs == "geodetic":
         o = prep.origins if prep.origins is not None else np.empty((0, 3))
         for j, name in enumerate(("origin_lat", "origin_lon", "origin_h")):
@@ -589,7 +593,8 @@ class OscAccessor:
         -------
         pandas.DataFrame
             Indexed by track label (named after ``by``; a single track is labelled 0), with
-            ``start`` and ``end`` (first and last time, in the time column's own type), the
+            ``start``, ``end`` and the ``…_at`` times of the extremes in the time column's own
+            type (datetimes stay datetimes), the
             columns of :meth:`osculate.Kinematics.summary_arrays` (``samples``, ``length``,
             ``duration`` in seconds, ``mean_speed``, ``max_speed``, ``max_accel_normal``,
             ``min_radius``, ...) and, for geodetic input, the origin of each track's local frame
