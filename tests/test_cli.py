@@ -97,9 +97,12 @@ def test_bad_row_exits_2_naming_the_row(tmp_path, capsys):
     args = ("summary", src, "--time", "t", "--position", "x,y", "--track", "id")
     code, _, stderr = main(capsys, *args)
     assert code == 2
-    assert stderr.startswith("osculate summary: error: column 't', row 7 (track 'v000")
-    assert "times must be strictly increasing" in stderr
-    assert stderr.count("\n") == 1
+    # stderr: the tracks line (2 vehicles of 10 rows: the generator's m and per), then one error.
+    tracks, error = stderr.splitlines()
+    assert tracks == "osculate summary: 2 tracks by 'id'; rows per track: min 10, median 10, max 10"
+    assert error.startswith("osculate summary: error: column 't', row 7 (track 'v000")
+    assert "times must be strictly increasing" in error
+    assert stderr.endswith("\n") and "Traceback" not in stderr
     code, _, stderr = main(capsys, *args, "--debug")
     assert code == 2 and "Traceback" in stderr
 
@@ -214,7 +217,7 @@ def test_progress_bar_on_a_terminal_and_chunks_change_nothing(tmp_path, monkeypa
 
 def test_a_million_rows_end_to_end(tmp_path):
     # 1e6 rows, 1000 interleaved vehicles, CSV in, Parquet out, in a subprocess that is not on a
-    # terminal: no progress bar (stderr stays empty).
+    # terminal: no progress bar (stderr holds only the tracks line).
     df, speed = log(m=1000, per=1000, seed=9)
     src, out = tmp_path / "big.csv", tmp_path / "big.parquet"
     pacsv.write_csv(pa.Table.from_pandas(df, preserve_index=False), src)
@@ -225,7 +228,11 @@ def test_a_million_rows_end_to_end(tmp_path):
     )  # fmt: skip
     took = time.perf_counter() - started
     assert res.returncode == 0, res.stderr
-    assert res.stderr == ""
+    # 1000 vehicles of 1000 rows each (the generator's m and per).
+    tracks = (
+        "osculate analyze: 1000 tracks by 'id'; rows per track: min 1000, median 1000, max 1000"
+    )
+    assert res.stderr == tracks + "\n"
     assert "1000000 rows, 1000 tracks" in res.stdout
     got = pd.read_parquet(out)
     assert len(got) == 1_000_000
