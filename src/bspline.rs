@@ -13,13 +13,17 @@ const K1: usize = MAX_DEGREE + 1;
 
 /// Clamped knot vector of degree `k` on the sample times `x`: the ends repeated k + 1 times, the
 /// interior samples once. The space has `x.len() + k − 1` basis functions.
-pub fn clamped_knots(x: &[f64], k: usize) -> Vec<f64> {
+pub fn clamped_knots(x: &[f64], k: usize) -> Result<Vec<f64>> {
     let n = x.len();
-    let mut t = Vec::with_capacity(n + 2 * k);
+    let mut t = Vec::new();
+    t.try_reserve_exact(n + 2 * k)
+        .map_err(|_| crate::error::KernelError::OutOfMemory {
+            bytes: (n + 2 * k) * 8,
+        })?;
     t.extend(std::iter::repeat_n(x[0], k));
     t.extend_from_slice(x);
     t.extend(std::iter::repeat_n(x[n - 1], k));
-    t
+    Ok(t)
 }
 
 /// Values and derivatives 0..=`nd` of the k + 1 basis functions that do not vanish on the knot span
@@ -101,8 +105,8 @@ pub fn span_of_interval(i: usize, k: usize) -> usize {
 /// Convert coefficients `c` (`(n + k − 1) × dim`, row-major) of the clamped degree-`k` basis on the
 /// samples `x` to piecewise-polynomial form.
 pub fn to_piecewise(x: &[f64], k: usize, c: &[f64], dim: usize) -> Result<PiecewisePoly> {
-    let knots = clamped_knots(x, k);
-    let mut p = PiecewisePoly::zeros(x.to_vec(), k + 1, dim)?;
+    let knots = clamped_knots(x, k)?;
+    let mut p = PiecewisePoly::zeros(crate::error::try_copy(x)?, k + 1, dim)?;
     let mut fact = [1.0; K1];
     for j in 1..K1 {
         fact[j] = fact[j - 1] * j as f64;
@@ -131,7 +135,7 @@ mod tests {
     fn partition_of_unity_and_derivatives_sum_to_zero() {
         let x = [0.0, 0.4, 1.0, 1.3, 2.2, 3.0, 3.1];
         for k in [1, 3, 5] {
-            let knots = clamped_knots(&x, k);
+            let knots = clamped_knots(&x, k).unwrap();
             for i in 0..x.len() - 1 {
                 for u in [x[i], 0.5 * (x[i] + x[i + 1]), x[i + 1]] {
                     let d = basis_derivatives(&knots, span_of_interval(i, k), u, k, 3.min(k));
@@ -151,7 +155,7 @@ mod tests {
         // Coefficients equal to the Greville abscissae reproduce f(t) = t (de Boor, ch. IX).
         let x = [0.0, 0.5, 1.5, 2.0, 3.5];
         let k = 5;
-        let knots = clamped_knots(&x, k);
+        let knots = clamped_knots(&x, k).unwrap();
         let nb = x.len() + k - 1;
         let c: Vec<f64> = (0..nb)
             .map(|j| knots[j + 1..j + 1 + k].iter().sum::<f64>() / k as f64)

@@ -66,7 +66,7 @@ pub enum KernelError {
         detail: String,
     },
     /// An output buffer could not be allocated.
-    #[error("cannot allocate {bytes} bytes for the results")]
+    #[error("cannot allocate {bytes} bytes (more memory than this process can get)")]
     OutOfMemory {
         /// Size of the failed request.
         bytes: usize,
@@ -169,6 +169,11 @@ pub fn try_zeroed(len: usize) -> Result<Vec<f64>> {
         }
         Ok(Vec::from_raw_parts(p, len, len))
     }
+}
+
+/// A copy of `s`, or [`KernelError::OutOfMemory`] instead of an abort.
+pub fn try_copy<T: Copy>(s: &[T]) -> Result<Vec<T>> {
+    try_collect(s.len(), s.iter().copied())
 }
 
 /// Collect an iterator into a vector reserved fallibly for `len` items (an upper bound of what the

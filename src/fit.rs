@@ -5,7 +5,7 @@
 //! rows); a track with too few finite rows has no fit and all its rows are INVALID.
 
 use crate::batch::{check_offsets, check_times, track_rows};
-use crate::error::{KernelError, Result};
+use crate::error::{try_collect, try_copy, KernelError, Result};
 use crate::local::{local_with, LocalFit, Window};
 use crate::piecewise::PiecewisePoly;
 use crate::smooth::{self, smooth_with, Covariance, JerkFit, Smoothing};
@@ -290,9 +290,11 @@ impl TrackFit {
     }
 
     /// Cumulative length at the fitted samples (empty for an invalid track).
-    pub fn cumulative_length(&self) -> Vec<f64> {
+    pub fn cumulative_length(&self) -> Result<Vec<f64>> {
         let n = self.times().len();
-        let mut cum = Vec::with_capacity(n);
+        let mut cum = Vec::new();
+        cum.try_reserve_exact(n)
+            .map_err(|_| KernelError::OutOfMemory { bytes: n * 8 })?;
         let mut acc = 0.0;
         for j in 0..n {
             if j > 0 {
@@ -300,7 +302,7 @@ impl TrackFit {
             }
             cum.push(acc);
         }
-        cum
+        Ok(cum)
     }
 
     /// Arc length from the first fitted sample to time `t`, given [`TrackFit::cumulative_length`];
@@ -452,8 +454,8 @@ pub fn fit_track(
             uncertainty,
         } => TrackFit::Local(local_with(t, x, dim, *degree, *window, *uncertainty)?),
         Method::Linear => TrackFit::Linear {
-            t: t.to_vec(),
-            x: x.to_vec(),
+            t: try_copy(t)?,
+            x: try_copy(x)?,
             dim,
         },
     })
@@ -532,16 +534,20 @@ pub fn fit_batch(
                     None,
                 ));
             }
-            let keep: Vec<usize> = (0..tk.len()).filter(|&i| finite(i)).collect();
+            let keep = try_collect(tk.len(), (0..tk.len()).filter(|&i| finite(i)))?;
             if keep.len() < method.min_samples() {
                 return Ok((TrackFit::Invalid, Some(keep)));
             }
-            let tv: Vec<f64> = keep.iter().map(|&i| tk[i]).collect();
-            let xv: Vec<f64> = keep
-                .iter()
-                .flat_map(|&i| xk[i * dim..(i + 1) * dim].iter().copied())
-                .collect();
-            let wv: Option<Vec<f64>> = wk.map(|w| keep.iter().map(|&i| w[i]).collect());
+            let tv = try_collect(keep.len(), keep.iter().map(|&i| tk[i]))?;
+            let xv = try_collect(
+                keep.len() * dim,
+                keep.iter()
+                    .flat_map(|&i| xk[i * dim..(i + 1) * dim].iter().copied()),
+            )?;
+            let wv = match wk {
+                Some(w) => Some(try_collect(keep.len(), keep.iter().map(|&i| w[i]))?),
+                None => None,
+            };
             let fit = fit_track(&tv, &xv, dim, wv.as_deref(), method).map_err(|e| e.in_track(k))?;
             Ok((fit, Some(keep)))
         })

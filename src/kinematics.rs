@@ -503,33 +503,37 @@ fn of_fits_at_dim<const D: usize>(
     let m = q.len() - 1;
     let mut out = Kinematics::alloc(t.len(), D, false)?;
     let parts = partition(out.rows(), (0..m).map(|k| q[k + 1] - q[k]));
-    parts.into_par_iter().enumerate().for_each(|(k, mut rows)| {
-        let fit = &fits.tracks[k];
-        let cum = fit.cumulative_length();
-        let mut buf = [0.0; 12];
-        for (j, &tq) in t[q[k]..q[k + 1]].iter().enumerate() {
-            if !tq.is_finite() || matches!(fit, crate::fit::TrackFit::Invalid) {
-                rows.flags[j] = flag::INVALID;
-                continue;
+    parts
+        .into_par_iter()
+        .enumerate()
+        .try_for_each(|(k, mut rows)| {
+            let fit = &fits.tracks[k];
+            let cum = fit.cumulative_length()?;
+            let mut buf = [0.0; 12];
+            for (j, &tq) in t[q[k]..q[k + 1]].iter().enumerate() {
+                if !tq.is_finite() || matches!(fit, crate::fit::TrackFit::Invalid) {
+                    rows.flags[j] = flag::INVALID;
+                    continue;
+                }
+                fit.at_time(tq, &mut buf[..4 * D]);
+                let take = |nu: usize| {
+                    let mut a = [0.0; D];
+                    a.copy_from_slice(&buf[nu * D..(nu + 1) * D]);
+                    a
+                };
+                let s = Sample {
+                    p: take(0),
+                    d1: take(1),
+                    d2: take(2),
+                    d3: take(3),
+                    ds: fit.length_to(&cum, tq),
+                    flags: 0,
+                    unc: None,
+                };
+                rows.emit(j, &s, up.as_ref(), opts);
             }
-            fit.at_time(tq, &mut buf[..4 * D]);
-            let take = |nu: usize| {
-                let mut a = [0.0; D];
-                a.copy_from_slice(&buf[nu * D..(nu + 1) * D]);
-                a
-            };
-            let s = Sample {
-                p: take(0),
-                d1: take(1),
-                d2: take(2),
-                d3: take(3),
-                ds: fit.length_to(&cum, tq),
-                flags: 0,
-                unc: None,
-            };
-            rows.emit(j, &s, up.as_ref(), opts);
-        }
-    });
+            Ok(())
+        })?;
     out.noise = fits.tracks.iter().map(TrackFit::noise).collect();
     Ok(out)
 }

@@ -7,7 +7,7 @@
 //! number of samples (kept at full width near the ends by sliding inwards, like `mode="interp"`),
 //! a time span (truncated at the ends), or chosen by generalized cross-validation.
 
-use crate::error::{try_filled, KernelError, Result};
+use crate::error::{try_collect, try_copy, try_filled, KernelError, Result};
 use crate::uncertainty::{at, Gram};
 
 /// The window of the local fits.
@@ -346,11 +346,11 @@ pub fn local_with(
 ) -> Result<LocalFit> {
     let n = t.len();
     check(n, degree, window)?;
-    let all: Vec<usize> = (0..n).collect();
+    let all = try_collect(n, 0..n)?;
     let (window, criterion) = match window {
         Window::Auto => {
             let step = n.div_ceil(4000).max(1);
-            let probe: Vec<usize> = (0..n).step_by(step).collect();
+            let probe = try_collect(n.div_ceil(step), (0..n).step_by(step))?;
             let mut best = (f64::INFINITY, Window::Samples(n.min(degree + 2)));
             for w in candidates(n, degree) {
                 let r = run(t, x, dim, degree, Window::Samples(w), &probe, false)?;
@@ -379,8 +379,8 @@ pub fn local_with(
     }
     let dof = dim as f64 * (n as f64 - tr);
     Ok(LocalFit {
-        t: t.to_vec(),
-        x: x.to_vec(),
+        t: try_copy(t)?,
+        x: try_copy(x)?,
         dim,
         degree,
         window,

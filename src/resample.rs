@@ -7,7 +7,7 @@
 //! step would leave the bracket or fails to shrink it fast enough, so it always terminates.
 
 use crate::batch::{partition, CHUNK};
-use crate::error::{try_filled, KernelError, Result};
+use crate::error::{try_collect, try_filled, KernelError, Result};
 use crate::fit::{Fits, TrackFit, LENGTH_NODES};
 use rayon::prelude::*;
 
@@ -72,17 +72,33 @@ fn check_spacing(sp: &Spacing) -> Result<()> {
 
 /// Target arc lengths of one track of length `len`.
 fn targets(sp: &Spacing, len: f64, track: usize) -> Result<Vec<f64>> {
+    // A request for more points than memory holds is the caller's argument, named as such.
+    let too_many = |argument: &'static str, points: f64| KernelError::Track {
+        argument,
+        track,
+        detail: format!(
+            "asks for {points:.3e} points on a track of length {len:.6e} (at least {:.3e} bytes \
+             of output); more than this machine can hold",
+            points * 8.0
+        ),
+    };
     Ok(match sp {
         Spacing::Step { step, endpoint } => {
-            let count = (len / step * (1.0 + 1e-12)).floor() as usize;
-            let mut v: Vec<f64> = (0..=count).map(|j| (j as f64 * step).min(len)).collect();
+            let points = (len / step * (1.0 + 1e-12)).floor() + 2.0;
+            if points.is_nan() || points >= (isize::MAX / 64) as f64 {
+                return Err(too_many("step", points));
+            }
+            let count = points as usize - 2;
+            let mut v = try_collect(count + 2, (0..=count).map(|j| (j as f64 * step).min(len)))
+                .map_err(|_| too_many("step", points))?;
             let last = *v.last().unwrap_or(&0.0);
             if *endpoint && len - last > 1e-9 * step {
                 v.push(len);
             }
             v
         }
-        Spacing::Count(c) => (0..*c).map(|j| len * j as f64 / (*c - 1) as f64).collect(),
+        Spacing::Count(c) => try_collect(*c, (0..*c).map(|j| len * j as f64 / (*c - 1) as f64))
+            .map_err(|_| too_many("count", *c as f64))?,
         Spacing::At(a) => {
             let tol = 1e-12 * len.max(1.0);
             if let Some(bad) = a.iter().find(|&&s| s < -tol || s > len + tol) {
@@ -92,7 +108,7 @@ fn targets(sp: &Spacing, len: f64, track: usize) -> Result<Vec<f64>> {
                     detail: format!("arc length {bad} is outside the track's [0, {len}]"),
                 });
             }
-            a.iter().map(|s| s.clamp(0.0, len)).collect()
+            try_collect(a.len(), a.iter().map(|s| s.clamp(0.0, len)))?
         }
     })
 }
@@ -207,7 +223,7 @@ pub fn resample(
             if matches!(fit, TrackFit::Invalid) {
                 return Ok((Vec::new(), Vec::new(), f64::NAN));
             }
-            let cum = fit.cumulative_length();
+            let cum = fit.cumulative_length()?;
             let len = *cum.last().unwrap_or(&0.0);
             let s = targets(spacing, len, k)?;
             Ok((s, cum, len))
@@ -223,12 +239,13 @@ pub fn resample(
         offsets.push(offsets.last().unwrap() + s.len());
     }
     let total = offsets[m];
+    let oom = || KernelError::OutOfMemory { bytes: usize::MAX };
     let mut out = Resampled {
         offsets: offsets.clone(),
         s: try_filled(total, f64::NAN)?,
         t: try_filled(total, f64::NAN)?,
-        x: try_filled(total * d, f64::NAN)?,
-        extra: try_filled(total * ncols, f64::NAN)?,
+        x: try_filled(total.checked_mul(d).ok_or_else(oom)?, f64::NAN)?,
+        extra: try_filled(total.checked_mul(ncols).ok_or_else(oom)?, f64::NAN)?,
         lengths: plan.iter().map(|p| p.2).collect(),
     };
     // Jobs of at most CHUNK points, so that one long track also runs in parallel.

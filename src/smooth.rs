@@ -27,7 +27,7 @@
 
 use crate::banded::{BandQr, SymBand};
 use crate::bspline::{basis_derivatives, clamped_knots, span_of_interval, to_piecewise};
-use crate::error::{KernelError, Result};
+use crate::error::{try_collect, try_copy, try_filled, KernelError, Result};
 use crate::piecewise::{gauss_legendre, PiecewisePoly};
 use crate::uncertainty::{at, Gram};
 use rayon::prelude::*;
@@ -157,7 +157,7 @@ impl Problem {
     fn new(u: &[f64], y: Vec<f64>, dim: usize, w: Vec<f64>, k: usize) -> Result<Self> {
         let n = u.len();
         let m = k.div_ceil(2);
-        let knots = clamped_knots(u, k);
+        let knots = clamped_knots(u, k)?;
         let oom = |rows: usize| KernelError::OutOfMemory { bytes: rows * 56 };
         let mut rows = Vec::new();
         rows.try_reserve_exact(n).map_err(|_| oom(n))?;
@@ -189,7 +189,7 @@ impl Problem {
         Ok(Problem {
             n,
             knots,
-            u: u.to_vec(),
+            u: try_copy(u)?,
             dim,
             k,
             w,
@@ -352,7 +352,7 @@ impl Problem {
         }
         let mut path = to_piecewise(&self.u, degree, &e.coef, dim)?;
         // The coefficient of u^p scales by h̄^−p.
-        path.x = t.to_vec();
+        path.x = try_copy(t)?;
         let order = degree + 1;
         for iv in 0..n - 1 {
             let mut scale = 1.0;
@@ -503,13 +503,13 @@ pub fn smooth_with(
         });
     }
     let hbar = (t[n - 1] - t[0]) / (n - 1) as f64;
-    let u: Vec<f64> = t.iter().map(|&v| (v - t[0]) / hbar).collect();
-    let wv: Vec<f64> = match w {
+    let u = try_collect(n, t.iter().map(|&v| (v - t[0]) / hbar))?;
+    let wv = match w {
         Some(w) => {
             let mean = w.iter().sum::<f64>() / n as f64;
-            w.iter().map(|v| v / mean).collect()
+            try_collect(n, w.iter().map(|v| v / mean))?
         }
-        None => vec![1.0; n],
+        None => try_filled(n, 1.0)?,
     };
     let mut centre = vec![0.0; dim];
     for row in x.chunks_exact(dim) {
@@ -517,10 +517,11 @@ pub fn smooth_with(
             *c += v / n as f64;
         }
     }
-    let y: Vec<f64> = x
-        .chunks_exact(dim)
-        .flat_map(|row| row.iter().zip(&centre).map(|(v, c)| v - c))
-        .collect();
+    let y = try_collect(
+        x.len(),
+        x.chunks_exact(dim)
+            .flat_map(|row| row.iter().zip(&centre).map(|(v, c)| v - c)),
+    )?;
     let prob = Problem::new(&u, y, dim, wv, degree)?;
     // The noise is estimated at the GCV choice even when λ is then tuned for a derivative: the
     // larger λ leaves signal in the residuals and would overstate it.

@@ -6,7 +6,7 @@
 //! with h_i the steps and m_i the chord slopes; the end rows carry the end condition.
 
 use crate::banded::tridiagonal_solve;
-use crate::error::{try_filled, KernelError, Result};
+use crate::error::{try_collect, try_copy, try_filled, KernelError, Result};
 use crate::piecewise::PiecewisePoly;
 
 /// End condition of an interpolating cubic spline.
@@ -58,7 +58,7 @@ pub fn interpolate(t: &[f64], x: &[f64], dim: usize, bc: &EndCondition) -> Resul
             });
         }
     }
-    let h: Vec<f64> = t.windows(2).map(|w| w[1] - w[0]).collect();
+    let h = try_collect(n - 1, t.windows(2).map(|w| w[1] - w[0]))?;
     let mut m = try_filled((n - 1) * dim, 0.0)?; // chord slopes
     for i in 0..n - 1 {
         for d in 0..dim {
@@ -127,7 +127,7 @@ pub fn interpolate(t: &[f64], x: &[f64], dim: usize, bc: &EndCondition) -> Resul
         }
         tridiagonal_solve(&sub, &mut diag, &sup, &mut s, dim);
     }
-    let mut p = PiecewisePoly::zeros(t.to_vec(), 4, dim)?;
+    let mut p = PiecewisePoly::zeros(try_copy(t)?, 4, dim)?;
     for i in 0..n - 1 {
         let hi = h[i];
         for d in 0..dim {

@@ -125,7 +125,8 @@ OOM_SCRIPT = textwrap.dedent(
     import osculate as osc
 
     fn, headroom, nan_row = sys.argv[1], int(sys.argv[2]), sys.argv[3] == "1"
-    n = 1_000_000
+    kwargs = eval(sys.argv[4]) if len(sys.argv) > 4 else {}
+    n = int(kwargs.pop("n", 1_000_000))
     t = np.arange(n) * 1e-3
     x = np.column_stack([np.cos(t), np.sin(t), 0.1 * t])
     if nan_row:
@@ -138,15 +139,20 @@ OOM_SCRIPT = textwrap.dedent(
     vm = int(re.search(r"VmSize:\\s+(\\d+)", status).group(1)) * 1024
     resource.setrlimit(resource.RLIMIT_AS, (vm + headroom, vm + headroom))
     try:
-        getattr(osc, fn)(t, x)
+        if fn == "work":
+            osc.work(x, x, t=t, **kwargs)
+        else:
+            getattr(osc, fn)(t, x, **kwargs)
         print("ok")
     except MemoryError as err:
         print("MemoryError", err)
+    except osc.InputError as err:
+        print("InputError", err)
     """
 )
 
 
-def run_out_of_memory(fn, headroom_mb, nan_row=False):
+def run_out_of_memory(fn, headroom_mb, nan_row=False, kwargs=None):
     env = {
         **os.environ,
         "MALLOC_ARENA_MAX": "1",
@@ -154,7 +160,7 @@ def run_out_of_memory(fn, headroom_mb, nan_row=False):
         "MALLOC_TRIM_THRESHOLD_": "65536",
         "RUST_BACKTRACE": "0",
     }
-    args = [fn, str(int(headroom_mb * 1e6)), "1" if nan_row else "0"]
+    args = [fn, str(int(headroom_mb * 1e6)), "1" if nan_row else "0", repr(kwargs or {})]
     return subprocess.run(
         [sys.executable, "-c", OOM_SCRIPT, *args],
         env=env,
@@ -176,12 +182,37 @@ def run_out_of_memory(fn, headroom_mb, nan_row=False):
     ],
 )
 def test_impossible_allocation_raises_memory_error(fn, headroom_mb, nan_row):
+    # (the cases of every estimator and function follow in the next test)
     # Design rule (DEVELOPERS.md): an allocation that cannot succeed is a MemoryError, never an
     # abort of the interpreter. The inputs fit; `headroom_mb` more is not enough for the call.
     # (Linux: RLIMIT_AS, /proc/self/status and glibc's malloc variables.)
     out = run_out_of_memory(fn, headroom_mb, nan_row)
     assert out.returncode == 0, f"child died with {out.returncode}: {out.stderr[-500:]}"
     assert out.stdout.startswith("MemoryError"), out.stdout
+
+
+@pytest.mark.parametrize(
+    "fn, headroom_mb, kwargs, expect",
+    [
+        # Every estimator's fit, its own working arrays included (was: smooth aborted in
+        # bspline::clamped_knots and in its collected copies of times, weights and positions).
+        ("kinematics", 64, {"method": "smooth"}, "MemoryError"),
+        ("kinematics", 16, {"method": "smooth"}, "MemoryError"),
+        ("kinematics", 64, {"method": "local", "window": 7}, "MemoryError"),
+        ("kinematics", 64, {"method": "spline"}, "MemoryError"),
+        ("fit", 64, {"method": "smooth"}, "MemoryError"),
+        ("frames", 64, {}, "MemoryError"),
+        ("work", 8, {"cumulative": True}, "MemoryError"),
+        # A requested size beyond memory names the argument (was: an abort collecting targets).
+        ("resample", 64, {"n": 1000, "step": 1e-9}, "InputError step"),
+        ("resample", 64, {"n": 1000, "count": 10**12}, "InputError count"),
+    ],
+)
+def test_every_function_fails_cleanly_without_memory(fn, headroom_mb, kwargs, expect):
+    # The inputs (1e6 rows unless `n`) fit; the call needs more than `headroom_mb` on top.
+    out = run_out_of_memory(fn, headroom_mb, kwargs=kwargs)
+    assert out.returncode == 0, f"child died with {out.returncode}: {out.stderr[-500:]}"
+    assert out.stdout.startswith(expect), out.stdout
 
 
 def manual_run(n):
