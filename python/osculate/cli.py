@@ -155,8 +155,9 @@ def _reason(err: BaseException, width: int = 120) -> str:
     """Return the readable head of a reader's message (parsers quote the bytes they met)."""
     text = " ".join(str(err).split())
     cut = next((i for i, ch in enumerate(text) if ch == "\ufffd" or not ch.isprintable()), None)
-    if cut is not None:
-        text = text[:cut].rstrip(" :")
+    if cut is not None:  # drop the quoted part: "..., got 2: <bytes>" -> "..., got 2"
+        head = text[:cut]
+        text = head.rsplit(": ", 1)[0] if ": " in head else head.rstrip(" :")
     return text if len(text) <= width else text[: width - 1] + "…"
 
 
@@ -203,6 +204,7 @@ def _read(path: Path) -> Any:
     """Read the input table; an unreadable file is a :class:`_UsageError` naming it."""
     pd = _pandas()
     kind = _format(path, "input")
+    name = "Parquet" if kind == "parquet" else "CSV"
     try:
         if kind == "parquet":
             _pyarrow("reading Parquet")
@@ -215,11 +217,11 @@ def _read(path: Path) -> Any:
     except pd.errors.EmptyDataError:
         raise _UsageError(f"input {str(path)!r}: the file is empty (no header, no rows)") from None
     except (pd.errors.ParserError, UnicodeDecodeError, EOFError, OSError) as err:
-        raise _UsageError(f"input {str(path)!r}: cannot read it as {kind}: {_reason(err)}") from err
+        raise _UsageError(f"input {str(path)!r}: cannot read it as {name}: {_reason(err)}") from err
     except Exception as err:
         if not type(err).__module__.startswith("pyarrow"):  # ArrowInvalid and friends
             raise
-        raise _UsageError(f"input {str(path)!r}: cannot read it as {kind}: {_reason(err)}") from err
+        raise _UsageError(f"input {str(path)!r}: cannot read it as {name}: {_reason(err)}") from err
 
 
 def _codec(path: Path) -> Optional[str]:
@@ -471,7 +473,7 @@ def _tracks_line(df: Any, by: Optional[str]) -> str:
 
     n = len(df)
     if n == 0:
-        return "the input has no rows (a header only): the output will have none"
+        return "the input has no rows (a header only): the results will be empty"
     if by is None:
         return f"1 track of {_plural(n, 'row')} (no --track: every row is on one path)"
     codes, labels = pd.factorize(_values(df, by, "by"))
@@ -540,8 +542,8 @@ def _analyze(args: argparse.Namespace) -> int:
         n_tracks = 1 if args.track is None else table[args.track].nunique()
         took = time.perf_counter() - started
         print(
-            f"osculate analyze: {len(table)} rows, {n_tracks} tracks, {res.shape[1]} result "
-            f"columns written to {out_path} in {took:.1f} s"
+            f"osculate analyze: {len(table)} rows, {_plural(n_tracks, 'track')}, "
+            f"{res.shape[1]} result columns written to {out_path} in {took:.1f} s"
         )
         print(CAUTION)
     return EXIT_OK
