@@ -76,6 +76,55 @@ def as_times(t: Any, name: str = "t") -> F64:
     return arr
 
 
+#: Largest span of integer times within one track whose differences float64 holds exactly.
+EXACT_SPAN = 2**53
+
+
+def kernel_times(t: Any, tt: F64, g: Grouping, name: str = "t") -> tuple[F64, F64]:
+    """Return times in kernel row order as the kernels need them (only differences matter).
+
+    Integer times (e.g. epoch nanoseconds) lose their last bits as float64 (steps of 256 ns near
+    the present epoch); each track's first time is subtracted in int64 first, so its differences
+    are exact up to :data:`EXACT_SPAN`. Float times are returned as they are.
+
+    Returns
+    -------
+    (times, shift)
+        The kernel's times and, per track, what was subtracted (as float64; zeros for float
+        times): add it back to times the kernels return.
+    """
+    raw = np.asarray(t)
+    tk = g.to_kernel(tt)
+    if raw.dtype.kind not in "iu" or raw.size == 0 or raw.ndim != 1:
+        return tk, np.zeros(g.n_tracks)
+    if raw.dtype.kind == "u" and raw.max() > np.iinfo(np.int64).max:
+        raise InputError(f"{name}: unsigned times above 2**63 - 1 are not supported")
+    ik = g.to_kernel(raw.astype(np.int64, copy=False))
+    counts = np.diff(g.offsets)
+    has = counts > 0
+    firsts = g.offsets[:-1][has]
+    lo = np.minimum.reduceat(ik, firsts)
+    hi = np.maximum.reduceat(ik, firsts)
+    # The span in float64 is within a few ulps of the true one: enough to tell it from 2**53.
+    span = hi.astype(np.float64) - lo.astype(np.float64)
+    if span.size and span.max() > EXACT_SPAN:
+        j = int(np.argmax(span))
+        label = plain(g.labels[np.flatnonzero(has)[j]])
+        raise InputError(
+            f"{name}: track {label!r}: integer times span {span[j]:.4g} units, more than 2**53, "
+            "so float64 cannot hold their differences exactly; convert to a coarser unit or "
+            "to float seconds first (int64 values near 2**63 are about 292 years of nanoseconds)"
+        )
+    starts = np.minimum(g.offsets[:-1], max(len(ik) - 1, 0))
+    first = ik[starts] * has
+    return (ik - np.repeat(first, counts)).astype(np.float64), first.astype(np.float64)
+
+
+def plain(label: Any) -> Any:
+    """Return a NumPy scalar label as the Python value it holds (3, not np.int64(3))."""
+    return label.item() if isinstance(label, np.generic) else label
+
+
 def as_positions(x: Any, n: int, name: str = "positions") -> F64:
     """Return positions as a contiguous float64 (n, 2) or (n, 3) array."""
     arr = _real(name, x)
@@ -166,8 +215,7 @@ def call_kernel(grouping: Grouping, fn: Callable[..., T], *args: Any, **kwargs: 
         track = getattr(err, "track", None)
         if track is None:
             raise
-        label = grouping.labels[track] if track < len(grouping.labels) else track
-        label = label.item() if isinstance(label, np.generic) else label
+        label = plain(grouping.labels[track]) if track < len(grouping.labels) else track
         where = f"track {label!r}"
         row = getattr(err, "row", None)
         if row is not None:

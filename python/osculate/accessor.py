@@ -20,7 +20,7 @@ except ImportError as exc:  # pragma: no cover - depends on the environment
     ) from exc
 
 from . import _core
-from ._validate import Grouping
+from ._validate import EXACT_SPAN, Grouping, plain
 from .geodesy import enu_and_origins
 from .intrinsic import Kinematics
 from .intrinsic import kinematics as _kinematics
@@ -67,13 +67,22 @@ def _numbers(s: pd.Series, role: str) -> F64:
 class _Times:
     """A time column as a sort key plus how to turn it into seconds."""
 
-    key: np.ndarray  # float64 seconds, or int64 ticks for datetimes
-    ticks_per_second: Optional[float]  # set for datetimes: seconds are relative to each track
+    key: np.ndarray  # float64 seconds, or int64 ticks for datetimes and integer times
+    ticks_per_second: Optional[float]  # set for int64 keys: times are relative to each track
     missing: npt.NDArray[np.bool_]
+    integer: bool = False  # integer times (their own unit), kept exact like datetimes
 
 
 def _times(s: pd.Series) -> _Times:
     dtype = s.dtype
+    if pd.api.types.is_integer_dtype(dtype):
+        # Epoch-nanosecond or tick counters: float64 would round them (256 ns steps today); as
+        # for datetimes, each track's first time is subtracted in int64.
+        missing = np.asarray(s.isna().to_numpy(), dtype=bool)
+        if dtype.kind == "u" and len(s) and s.max() > np.iinfo(np.int64).max:
+            raise _core.InputError(f"time: column {s.name!r} holds unsigned times above 2**63 - 1")
+        ticks = np.asarray(s.to_numpy(dtype=np.int64, na_value=0))
+        return _Times(ticks, 1.0, missing, integer=True)
     if isinstance(dtype, pd.DatetimeTZDtype):
         s = s.dt.tz_convert("UTC").dt.tz_localize(None)
         dtype = s.dtype
@@ -167,10 +176,21 @@ class _Prepared:
         np.cumsum(counts, out=self.offsets[1:])
         self.grouping = Grouping(self.offsets, None, np.arange(m))
         key = self.to_kernel(key)
-        self.datetimes = times.ticks_per_second is not None
-        if self.datetimes:  # datetimes: seconds since each track's first time
-            first = np.repeat(key[self.offsets[:-1]], counts)
-            self.t = (key - first) / times.ticks_per_second
+        self.datetimes = times.ticks_per_second is not None and not times.integer
+        self.integer_times = times.integer
+        if times.ticks_per_second is not None:  # relative to each track's first time, in int64
+            first = np.repeat(key[np.minimum(self.offsets[:-1], max(n - 1, 0))], counts)
+            relative = key - first
+            if times.integer and n:
+                span = np.maximum.reduceat(relative, self.offsets[:-1][counts > 0])
+                if span.max() > EXACT_SPAN:
+                    label = plain(self.labels[np.flatnonzero(counts > 0)[int(np.argmax(span))]])
+                    raise _core.InputError(
+                        f"time: column {time!r}, track {label!r}: integer times span more than "
+                        "2**53 units, so float64 cannot hold their differences exactly; convert "
+                        "to a coarser unit or to float seconds first"
+                    )
+            self.t = relative / times.ticks_per_second
         else:
             self.t = np.ascontiguousarray(key, dtype=np.float64)
         x = np.column_stack([self.to_kernel(c) for c in coords]) if n else np.empty((0, 3))
@@ -339,9 +359,12 @@ def summary_and_stops(
     raw = prep.time_values
     out["start"] = raw.iloc[first].array
     out["end"] = raw.iloc[last].array
-    if prep.datetimes:  # the times of the extremes, like start and end, in the caller's type
-        for c in [c for c in out.columns if str(c).endswith("_at")]:
+    # The times of the extremes, like start and end, in the caller's type and origin.
+    for c in [c for c in out.columns if str(c).endswith("_at")]:
+        if prep.datetimes:
             out[c] = out["start"] + pd.to_timedelta(out[c].to_numpy(), unit="s")
+        elif prep.integer_times:
+            out[c] = out["start"].to_numpy(np.float64) + out[c].to_numpy()
     if prep.crs == "geodetic":
         o = prep.origins if prep.origins is not None else np.empty((0, 3))
         for j, name in enumerate(("origin_lat", "origin_lon", "origin_h")):

@@ -13,7 +13,15 @@ import numpy.typing as npt
 from . import _core
 from ._estimators import EstimatorOptions, fit_core
 from ._stopgo import hold_stops, refit_moving, stop_rows
-from ._validate import Grouping, as_positions, as_real, as_times, call_kernel, group_rows
+from ._validate import (
+    Grouping,
+    as_positions,
+    as_real,
+    as_times,
+    call_kernel,
+    group_rows,
+    kernel_times,
+)
 from .diagnose import check_tracks
 from .flags import Flag
 from .stops import Stops, find_stops, stop_table
@@ -501,7 +509,7 @@ def kinematics(
         "up": _up(up, x.shape[1]),
         "uncertainty": kind is not None,
     }
-    tk, xk = g.to_kernel(tt), g.to_kernel(x)
+    tk, xk = kernel_times(t, tt, g)[0], g.to_kernel(x)
     if method == "fd":
         raw = call_kernel(g, _core.fd_kinematics, tk, xk, g.offsets, order=opts.order, **options)
         info = {"noise": raw["noise"]}
@@ -540,7 +548,7 @@ def kinematics(
         raw.update(rmf)
     grouped = tracks is not None or offsets is not None
     labels = g.labels if grouped else np.zeros(1, np.int64)
-    stops = stop_table(tk, xk, first, last, code, labels, g.order)
+    stops = stop_table(g.to_kernel(tt), xk, first, last, code, labels, g.order)
     return _assemble(tt, x, g, raw, opts, info, grouped=grouped, frame=frame, stops=stops)
 
 
@@ -765,7 +773,9 @@ def arclength(
     tt = as_times(t)
     x = as_positions(positions, len(tt))
     g = group_rows(len(tt), tracks, offsets)
-    s = call_kernel(g, _core.polyline_arclength, g.to_kernel(tt), g.to_kernel(x), g.offsets)
+    s = call_kernel(
+        g, _core.polyline_arclength, kernel_times(t, tt, g)[0], g.to_kernel(x), g.offsets
+    )
     return g.to_caller(s)
 
 

@@ -10,7 +10,15 @@ import numpy.typing as npt
 
 from . import _core
 from ._estimators import FIT_METHODS, EstimatorOptions, fit_core
-from ._validate import as_positions, as_times, call_kernel, group_rows
+from ._validate import (
+    as_int,
+    as_positions,
+    as_real,
+    as_times,
+    call_kernel,
+    group_rows,
+    kernel_times,
+)
 
 __all__ = ["Resampled", "resample"]
 
@@ -180,7 +188,7 @@ def resample(
     x = as_positions(positions, len(tt))
     g = group_rows(len(tt), tracks, offsets)
     stacked, unstack = _extra_columns(extra, len(tt))
-    tk = g.to_kernel(tt)
+    tk, shift = kernel_times(t, tt, g)
     fitted = fit_core(opts, g, tk, g.to_kernel(x))
     at_arr = None
     if at is not None:
@@ -192,8 +200,8 @@ def resample(
         fitted.resample,
         tk,
         np.ascontiguousarray(g.to_kernel(stacked)),
-        step=None if step is None else float(step),
-        count=None if count is None else int(count),
+        step=None if step is None else as_real("step", step),
+        count=None if count is None else as_int("count", count, 0, np.iinfo(np.int64).max),
         at=at_arr,
         endpoint=bool(endpoint),
     )
@@ -203,7 +211,7 @@ def resample(
         labels = np.repeat(g.labels, np.diff(off))
     return Resampled(
         s=raw["s"],
-        t=raw["t"],
+        t=raw["t"] + np.repeat(shift, np.diff(off)),
         position=raw["position"],
         extra=unstack(raw["extra"]),
         tracks=labels,
