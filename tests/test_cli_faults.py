@@ -5,6 +5,7 @@ the lines the commands print about them. Message wording is the CLI's own (pytho
 where a test checks a message, the comment says which argument, path or cell it must name.
 """
 
+import inspect
 import os
 import re
 import signal
@@ -15,6 +16,7 @@ import time
 from pathlib import Path
 
 import numpy as np
+import osculate as osc
 import pandas as pd
 import pyarrow  # noqa: F401  (Parquet outputs; part of the test extra)
 import pytest
@@ -336,6 +338,9 @@ def test_help_lists_methods_defaults_and_caution():
     assert "indicative" in help_text and "130 interrupted" in help_text
     res = run("analyze", "in.csv", *SMALL, "--method", "linear", "-o", "o.csv")
     assert res.returncode == 2 and "invalid choice: 'linear'" in res.stderr
+    # The default shown is osculate.kinematics's own (the CLI passes no method unless given).
+    default = inspect.signature(osc.kinematics).parameters["method"].default
+    assert f"(default: {default})" in help_text
     res = run("demo", "--help")
     assert "(default: osculate-report)" in " ".join(res.stdout.split())
 

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import argparse
 import contextlib
+import inspect
 import os
 import signal
 import stat
@@ -231,7 +232,7 @@ def _codec(path: Path) -> Optional[str]:
 
 
 def _new_file_mode(dest: Path) -> int:
-    """Permission bits for the output: those of the file it replaces, else 0o666 less the umask."""
+    """Return the output's permission bits: the replaced file's, else 0o666 less the umask."""
     try:
         return stat.S_IMODE(os.stat(dest).st_mode)
     except OSError:
@@ -584,6 +585,13 @@ def _summarize(args: argparse.Namespace) -> int:
     return EXIT_OK
 
 
+def _default_method() -> str:
+    """Return the default ``method`` of :func:`osculate.kinematics` (what the CLI passes on)."""
+    from .intrinsic import kinematics
+
+    return str(inspect.signature(kinematics).parameters["method"].default)
+
+
 def _add_data_commands(sub: Any) -> None:
     """Add the ``analyze`` and ``summary`` subcommands."""
     common = argparse.ArgumentParser(add_help=False)
@@ -606,7 +614,7 @@ def _add_data_commands(sub: Any) -> None:
     common.add_argument(
         "--method",
         choices=KINEMATICS_METHODS,
-        help="derivative estimator, as in osculate.kinematics (default there: fd)",
+        help=f"derivative estimator, as in osculate.kinematics (default: {_default_method()})",
     )
     common.add_argument("--order", type=int, help="finite-difference order")
     common.add_argument("--smoothing", type=float, help="smoothing parameter of the estimator")
