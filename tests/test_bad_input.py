@@ -112,6 +112,24 @@ CASES = [
         r"tracks: expected one id per row \(5\)",
     ),
     ("empty input", {"t": np.zeros(0), "x": np.zeros((0, 3))}, osc.InputError, r"t: is empty"),
+    (
+        "NaN track id",
+        {"tracks": np.array([0.0, 0.0, np.nan, 1.0, 1.0])},
+        osc.InputError,
+        r"tracks: row 2: the track id is missing",
+    ),
+    (
+        "None track id",
+        {"tracks": np.array(["a", "a", "a", None, "b"], dtype=object)},
+        osc.InputError,
+        r"tracks: row 3: the track id is missing",
+    ),
+    (
+        "integer times beyond 2**53",
+        {"t": np.array([0, 1, 2, 3, 2**60])},
+        osc.InputError,
+        r"t: track 0: integer times span .* more than 2\*\*53",
+    ),
 ]
 
 
@@ -126,6 +144,15 @@ def test_bad_input_battery(desc, kw, exc, msg):
     # Inputs are never modified.
     np.testing.assert_array_equal(np.asarray(t), before[0])
     np.testing.assert_array_equal(np.asarray(x), before[1])
+
+
+def test_track_ids_keep_their_type():
+    # One rule with the accessor (pandas.factorize): 1 and "1" are two tracks, labels keep type.
+    t = np.tile(np.arange(10.0), 2)
+    ids = np.array([1] * 10 + ["1"] * 10, dtype=object)
+    k = osc.kinematics(t, np.column_stack([t, t**2]), tracks=ids)
+    assert list(k.summary_arrays()["track"]) == [1, "1"]
+    assert [type(v) for v in k.tracks[[0, 10]]] == [int, str]
 
 
 def test_errors_name_the_callers_track_and_row():

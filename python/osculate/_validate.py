@@ -195,16 +195,45 @@ def group_rows(n: int, tracks: Any = None, offsets: Any = None) -> Grouping:
         raise InputError(f"tracks: expected one id per row ({n}), got shape {ids.shape}")
     if n == 0:
         return Grouping(np.array([0, 0], dtype=np.int64), None, np.array([0]))
+    if ids.dtype.kind == "f" and np.isnan(ids).any():
+        raise InputError(
+            f"tracks: row {int(np.argmax(np.isnan(ids)))}: the track id is missing (NaN)"
+        )
     if ids.dtype.kind == "O":
-        ids = ids.astype(str)
-    labels, codes = np.unique(ids, return_inverse=True)
-    codes = codes.reshape(-1)
+        labels, codes = _factorize_objects(ids)
+    else:
+        labels, codes = np.unique(ids, return_inverse=True)
+        codes = codes.reshape(-1)
     grouped = bool(np.all(codes[1:] >= codes[:-1]))
     order = None if grouped else np.argsort(codes, kind="stable")
     counts = np.bincount(codes, minlength=len(labels))
     off = np.zeros(len(labels) + 1, dtype=np.int64)
     np.cumsum(counts, out=off[1:])
     return Grouping(off, order, labels)
+
+
+def _factorize_objects(ids: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Labels and codes of object ids, each id keeping its type (1 and "1" are two tracks).
+
+    The same rule as the DataFrame accessor: sorted labels when the ids can be sorted, else
+    first-seen order; a missing id (None, NaN) is an error naming the row.
+    """
+    try:
+        import pandas as pd
+    except ImportError:  # pragma: no cover - the test environment has pandas
+        raise InputError(
+            "tracks: ids of mixed or object types need pandas to keep them apart "
+            "(pip install 'osculate[pandas]'), or pass one NumPy dtype (integers or strings)"
+        ) from None
+    try:
+        codes, uniques = pd.factorize(ids, sort=True)
+    except TypeError:  # labels of mixed types cannot be sorted: first-seen order
+        codes, uniques = pd.factorize(ids, sort=False)
+    if len(codes) and codes.min() < 0:
+        raise InputError(f"tracks: row {int(np.argmax(codes < 0))}: the track id is missing")
+    labels = np.empty(len(uniques), dtype=object)
+    labels[:] = list(uniques)
+    return labels, np.asarray(codes, dtype=np.intp)
 
 
 def call_kernel(grouping: Grouping, fn: Callable[..., T], *args: Any, **kwargs: Any) -> T:
