@@ -156,12 +156,17 @@ pub fn derivatives_at<const D: usize>(
     edge |= !centred;
     let mut d1 = [0.0; D];
     let mut d2 = [0.0; D];
+    // The weights of a derivative sum to zero, so differences from the sample itself give the
+    // same sums; they are exact for nearby positions (Sterbenz), which keeps coordinates far from
+    // the origin (ECEF metres) from adding the rounding of large products.
+    let xi = &x[i * D..(i + 1) * D];
     let mut low = |w: &[[f64; MAX_DERIV + 1]]| {
         for (j, wj) in w.iter().enumerate() {
             let row = &x[(s + j) * D..(s + j + 1) * D];
             for k in 0..D {
-                d1[k] += wj[1] * row[k];
-                d2[k] += wj[2] * row[k];
+                let dx = row[k] - xi[k];
+                d1[k] += wj[1] * dx;
+                d2[k] += wj[2] * dx;
             }
             if want {
                 rows[s + j - s_high][1] = wj[1];
@@ -184,7 +189,7 @@ pub fn derivatives_at<const D: usize>(
             for (j, wj) in w.iter().enumerate() {
                 let row = &x[(s + j) * D..(s + j + 1) * D];
                 for k in 0..D {
-                    d3[k] += wj[3] * row[k];
+                    d3[k] += wj[3] * (row[k] - xi[k]);
                 }
                 if want {
                     rows[j][3] = wj[3];

@@ -10,7 +10,7 @@ use crate::diff::{derivatives_at, reach, FdOrder};
 use crate::error::{try_collect, try_filled, try_zeroed, KernelError, Result};
 use crate::fit::{Fits, TrackFit};
 use crate::frame::{flag, frenet, Thresholds};
-use crate::uncertainty::{self, propagate, Errors, Gram, Significance};
+use crate::uncertainty::{self, at, propagate, Errors, Gram, Significance};
 use nalgebra::Vector3;
 use rayon::prelude::*;
 
@@ -467,6 +467,7 @@ fn of_fits_dim<const D: usize>(fits: &Fits, opts: &Options) -> Result<Kinematics
                 ds: if j == 0 { 0.0 } else { fit.segment(j) },
                 flags,
                 unc: fit.gram(j).map(|g| (g, noise)),
+                rounding: 0.0,
             };
             rows.emit(row_of(j), &s, up.as_ref(), opts);
         }
@@ -529,6 +530,7 @@ fn of_fits_at_dim<const D: usize>(
                     ds: fit.length_to(&cum, tq),
                     flags: 0,
                     unc: None,
+                    rounding: 0.0,
                 };
                 rows.emit(j, &s, up.as_ref(), opts);
             }
@@ -551,6 +553,9 @@ struct Sample<const D: usize> {
     flags: u8,
     /// Gram matrix of the derivative rows and the noise, for standard errors.
     unc: Option<(Gram, f64)>,
+    /// Largest rounding of the stored positions the derivatives were taken from (half an ulp
+    /// of the largest coordinate, rounded up to a full one); 0 for fitted paths.
+    rounding: f64,
 }
 
 fn vec3<const D: usize>(a: &[f64; D]) -> Vector3<f64> {
@@ -591,6 +596,22 @@ impl Rows<'_> {
         }
         if sig.curvature && sig.z * se_kappa > th.min_curvature {
             th.min_curvature = sig.z * se_kappa;
+        }
+        if let (Some((g, _)), true) = (&s.unc, s.rounding > 0.0) {
+            // No float64 method removes the rounding δ of the stored positions: r′ and r″ can be
+            // off by Σ|w|·δ·√D, bounded by √(width·Σw²) from the Gram matrix (Cauchy–Schwarz).
+            // A speed or curvature within that of zero is not told apart from zero.
+            let width = opts.order.width_low() as f64;
+            let root = (D as f64).sqrt() * s.rounding;
+            let (dv, da) = (
+                (width * g[at(1, 1)]).sqrt() * root,
+                (width * g[at(2, 2)]).sqrt() * root,
+            );
+            let v = d1.norm();
+            th.min_speed = th.min_speed.max(dv);
+            if v > 0.0 {
+                th.min_curvature = th.min_curvature.max(da / (v * v));
+            }
         }
         let mut f = frenet(&d1, &d2, &d3, up, &th);
         let defined = f.flags & (flag::STOPPED | flag::STRAIGHT) == 0;
@@ -686,6 +707,7 @@ fn dense<const D: usize>(
             ds,
             flags,
             unc: want_se.then_some((gram, ctx.noise)),
+            rounding: p.iter().fold(0.0f64, |m, v| m.max(v.abs())) * f64::EPSILON,
         };
         out.emit(j, &s, ctx.up, opts);
     }
