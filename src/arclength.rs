@@ -65,12 +65,7 @@ pub fn polyline(x: &[f64], dim: usize, offsets: &[i64]) -> Result<Vec<f64>> {
                 continue;
             }
             if let Some(q) = prev {
-                acc += p
-                    .iter()
-                    .zip(q)
-                    .map(|(a, b)| (a - b) * (a - b))
-                    .sum::<f64>()
-                    .sqrt();
+                acc += distance(p, q);
             }
             out[j] = acc;
             prev = Some(p);

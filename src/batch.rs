@@ -76,8 +76,12 @@ pub fn track_rows(offsets: &[usize], k: usize) -> Range<usize> {
     offsets[k]..offsets[k + 1]
 }
 
-/// Check that times are finite and strictly increasing inside every track, and that every track
-/// holds at least `need` samples. Reports the first offending track and row.
+/// Smallest time step accepted: 1/h³ (in the jerk) must stay finite.
+pub const MIN_STEP: f64 = 1e-100;
+
+/// Check that times are finite and strictly increasing inside every track, with steps of at least
+/// [`MIN_STEP`], and that every track holds at least `need` samples. Reports the first offending
+/// track and row.
 pub fn check_times(t: &[f64], offsets: &[usize], need: usize, method: &'static str) -> Result<()> {
     let m = offsets.len() - 1;
     // The first offending track in order is reported, whatever the thread schedule.
@@ -102,6 +106,18 @@ pub fn check_times(t: &[f64], offsets: &[usize], need: usize, method: &'static s
                         track: k,
                         row,
                         detail: format!("time is not finite ({v})"),
+                    });
+                }
+                if j > 0 && v > tk[j - 1] && v - tk[j - 1] < MIN_STEP {
+                    return Err(KernelError::Row {
+                        argument: "t",
+                        track: k,
+                        row,
+                        detail: format!(
+                            "the time step {:e} is too small to divide by (its cube, in the jerk, \
+                             would overflow); express the times in a larger unit",
+                            v - tk[j - 1]
+                        ),
                     });
                 }
                 if j > 0 && v <= tk[j - 1] {

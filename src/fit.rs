@@ -252,12 +252,7 @@ impl TrackFit {
                 )
             }
             TrackFit::Linear { x, dim, .. } => {
-                let (p, q) = (&x[(j - 1) * dim..j * dim], &x[j * dim..(j + 1) * dim]);
-                p.iter()
-                    .zip(q)
-                    .map(|(a, b)| (b - a) * (b - a))
-                    .sum::<f64>()
-                    .sqrt()
+                crate::arclength::distance(&x[(j - 1) * dim..j * dim], &x[j * dim..(j + 1) * dim])
             }
         }
     }
@@ -380,14 +375,19 @@ impl TrackFit {
 /// Trapezoid of the speed with the Euler–Maclaurin end correction over a step h:
 /// h (v₀ + v₁)/2 − h² (v̇₁ − v̇₀)/12 with v̇ = a_t = r′·r″/v, from derivative blocks 0..=3.
 fn trapezoid_em(a: &[f64], b: &[f64], d: usize, h: f64) -> f64 {
+    // Scale-safe: |r′| without squaring (1e200 m steps stay finite), a_t = (r′/|r′|)·r″.
     let sv = |r: &[f64]| {
-        let v = r[d..2 * d].iter().map(|x| x * x).sum::<f64>().sqrt();
-        let dot: f64 = r[d..2 * d]
-            .iter()
-            .zip(&r[2 * d..3 * d])
-            .map(|(x, y)| x * y)
-            .sum();
-        (v, if v > 0.0 { dot / v } else { 0.0 })
+        let v = crate::arclength::distance(&r[d..2 * d], &[0.0; 3][..d]);
+        let at: f64 = if v > 0.0 {
+            r[d..2 * d]
+                .iter()
+                .zip(&r[2 * d..3 * d])
+                .map(|(x, y)| (x / v) * y)
+                .sum()
+        } else {
+            0.0
+        };
+        (v, at)
     };
     let ((v0, a0), (v1, a1)) = (sv(a), sv(b));
     h * 0.5 * (v0 + v1) - h * h * (a1 - a0) / 12.0

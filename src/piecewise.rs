@@ -147,7 +147,7 @@ impl PiecewisePoly {
         let mut s = 0.0;
         for (&xq, &wq) in xs.iter().zip(ws) {
             self.eval_on(i, mid + half * xq, 1, &mut buf[..2 * dim]);
-            let v: f64 = buf[dim..2 * dim].iter().map(|v| v * v).sum::<f64>().sqrt();
+            let v = crate::arclength::distance(&buf[dim..2 * dim], &[0.0; 4][..dim]);
             s += wq * v;
         }
         s * half

@@ -563,6 +563,22 @@ pub fn smooth_with(
         Some(e) => e,
         None => prob.eval(lambda, true)?.ok_or_else(|| singular(lambda))?,
     };
+    // The fit reproduces the m polynomials of the penalty's null space, so tr A ≥ m; a smaller
+    // trace at a given λ* means the factorization lost its accuracy (the fit is not the
+    // smoothing spline any more: at λ* = 1e30 the velocity came out halved).
+    let m = degree.div_ceil(2);
+    if matches!(how, Smoothing::Fixed(_)) && fit.trace < m as f64 - 0.01 {
+        let usable = LOG_LAMBDA_MAX.min(2.0 * m as f64 * (n as f64).log10() + 2.0);
+        return Err(KernelError::Option {
+            argument: "smoothing",
+            detail: format!(
+                "λ* = {lambda:e} is beyond the usable range for {n} samples: the fit's degrees \
+                 of freedom fall to {:.3}, below the {m} of the polynomials it must keep; use \
+                 at most about 1e{usable:.0} (a straight or polynomial fit is the limit anyway)",
+                fit.trace
+            ),
+        });
+    }
     if noise.is_nan() {
         noise = prob.noise(&fit);
     }

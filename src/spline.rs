@@ -57,6 +57,12 @@ pub fn interpolate(t: &[f64], x: &[f64], dim: usize, bc: &EndCondition) -> Resul
                 detail: format!("clamped end velocities need {dim} values each"),
             });
         }
+        if let Some(v) = start.iter().chain(end).find(|v| !v.is_finite()) {
+            return Err(KernelError::Option {
+                argument: "bc_velocity",
+                detail: format!("end velocities must be finite, got {v}"),
+            });
+        }
     }
     let h = try_collect(n - 1, t.windows(2).map(|w| w[1] - w[0]))?;
     let mut m = try_filled((n - 1) * dim, 0.0)?; // chord slopes

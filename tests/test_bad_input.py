@@ -113,6 +113,29 @@ CASES = [
     ),
     ("empty input", {"t": np.zeros(0), "x": np.zeros((0, 3))}, osc.InputError, r"t: is empty"),
     (
+        "subnormal time step",
+        {"t": np.array([0.0, 5e-324, 1e-323, 1.5e-323, 2e-323])},
+        osc.InputError,
+        r"t: track 0, row 1: the time step 5e-324 is too small to divide by",
+    ),
+    (
+        "smoothing beyond the usable range",
+        {
+            "t": np.linspace(0.0, 10.0, 200),
+            "x": np.zeros((200, 3)),
+            "method": "smooth",
+            "smoothing": 1e30,
+        },
+        osc.InputError,
+        r"smoothing: track 0: λ\* = 1e30 is beyond the usable range for 200 samples",
+    ),
+    (
+        "bc_velocity not finite",
+        {"method": "spline", "bc": "clamped", "bc_velocity": [[1.0, np.nan, 0.0], [1.0, 2.0, 0.0]]},
+        osc.InputError,
+        r"bc_velocity: track 0: end velocities must be finite, got NaN",
+    ),
+    (
         "NaN track id",
         {"tracks": np.array([0.0, 0.0, np.nan, 1.0, 1.0])},
         osc.InputError,
@@ -144,6 +167,18 @@ def test_bad_input_battery(desc, kw, exc, msg):
     # Inputs are never modified.
     np.testing.assert_array_equal(np.asarray(t), before[0])
     np.testing.assert_array_equal(np.asarray(x), before[1])
+
+
+@pytest.mark.parametrize("method", ["fd", "spline", "smooth"])
+def test_arc_length_of_huge_steps_stays_finite(method):
+    # Steps of 1.4e200 (squares overflow): the length is the sum of the steps (closed form for a
+    # straight line), to 1e-12 relative.
+    t = np.arange(6.0)
+    x = np.column_stack([1.4e200 * t, np.zeros(6)])
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", osc.SuspectDataWarning)  # it is implausibly fast
+        s = osc.arclength(t, x, method=method)
+    np.testing.assert_allclose(s, 1.4e200 * t, rtol=1e-12)
 
 
 def test_track_ids_keep_their_type():
