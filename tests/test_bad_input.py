@@ -78,7 +78,6 @@ CASES = [
         TypeError,
         r"t: expected real numbers, got string",
     ),
-    ("datetime times", {"t": np.arange(5).astype("datetime64[s]")}, TypeError, r"datetime64"),
     (
         "offsets not ending at n",
         {"offsets": [0, 3]},
@@ -179,6 +178,11 @@ def test_arc_length_of_huge_steps_stays_finite(method):
         warnings.simplefilter("ignore", osc.SuspectDataWarning)  # it is implausibly fast
         s = osc.arclength(t, x, method=method)
     np.testing.assert_allclose(s, 1.4e200 * t, rtol=1e-12)
+
+
+def test_ragged_positions_are_named():
+    with pytest.raises(osc.InputError, match=r"positions: expected a regular array, got a ragged"):
+        osc.kinematics(T5, [[0, 0, 0], [1, 1], [2, 2, 2], [3, 3, 3], [4, 4, 4]])
 
 
 def test_track_ids_keep_their_type():

@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import warnings
+
 import numpy as np
 import osculate as osc
 import pytest
@@ -68,3 +70,38 @@ def test_resample_sizes_are_checked_and_named(kw, error, msg):
     t = np.arange(6.0)
     with pytest.raises(error, match=msg):
         osc.resample(t, np.column_stack([t, t**2]), **kw)
+
+
+def test_datetimes_are_seconds_with_exact_differences():
+    pd = pytest.importorskip("pandas")
+    # One metre per millisecond (1000 m/s, closed form) on nanosecond datetimes: naive NumPy,
+    # and pandas timezone-aware (converted to UTC); speed exact to 1e-9 relative.
+    x = np.column_stack([np.arange(50.0), np.zeros(50)])
+    naive = np.datetime64("2026-12-04T10:00:00", "ns") + np.arange(50) * np.timedelta64(1, "ms")
+    aware = pd.Series(pd.DatetimeIndex(naive).tz_localize("Europe/Rome"))
+    for t in (naive, aware):
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore", osc.SuspectDataWarning)  # 1000 m/s is implausible
+            k = osc.kinematics(t, x)
+        np.testing.assert_allclose(k.speed, 1000.0, rtol=1e-9)
+        assert np.nanmax(np.abs(k.accel_tangential)) <= 1e-6  # closed form 0
+
+
+def test_extension_columns_are_numbers_and_a_missing_one_is_named():
+    pd = pytest.importorskip("pandas")
+    xy = pd.DataFrame({"x": np.arange(5.0), "y": np.zeros(5)}).astype("Float64")
+    k = osc.kinematics(np.arange(5.0), xy)
+    np.testing.assert_allclose(k.speed, 1.0)  # closed form: unit steps per unit time
+    xy.loc[2, "x"] = pd.NA
+    with pytest.raises(osc.InputError, match=r"positions: row 2: the value is missing"):
+        osc.kinematics(np.arange(5.0), xy)
+
+
+def test_arguments_of_the_wrong_kind_are_named():
+    pd = pytest.importorskip("pandas")
+    t = np.arange(6.0)
+    with pytest.raises(TypeError, match=r"at: expected arc lengths \(real numbers\), got 'abc'"):
+        osc.resample(t, np.column_stack([t, t]), at="abc")
+    df = pd.DataFrame({"t": t, "x": t, "y": 0.0, "a": 1, "b": 2})
+    with pytest.raises(TypeError, match=r"by: expected the name of one column or index level"):
+        df.osc.kinematics(time="t", position=["x", "y"], by=["a", "b"])

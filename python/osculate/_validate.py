@@ -27,8 +27,34 @@ F64 = npt.NDArray[np.float64]
 T = TypeVar("T")
 
 
+def _array(name: str, value: Any) -> np.ndarray:
+    """Return ``value`` as a NumPy array.
+
+    pandas extension columns (nullable Float64/Int64) become float64; a missing value is an
+    InputError naming its row.
+    """
+    if hasattr(value, "to_numpy") and (hasattr(value, "dtype") or hasattr(value, "dtypes")):
+        dtypes = [value.dtype] if hasattr(value, "dtype") else list(value.dtypes)
+        if any(_is_extension_number(d) for d in dtypes):
+            missing = np.asarray(value.isna())
+            if missing.any():
+                row = int(np.flatnonzero(missing.reshape(len(missing), -1).any(axis=1))[0])
+                raise InputError(f"{name}: row {row}: the value is missing (NA)")
+            return np.asarray(value.to_numpy(dtype=np.float64))
+    try:
+        return np.asarray(value)
+    except ValueError as exc:  # ragged nested sequences
+        raise InputError(
+            f"{name}: expected a regular array, got a ragged sequence ({exc})"
+        ) from None
+
+
+def _is_extension_number(dtype: Any) -> bool:
+    return not isinstance(dtype, np.dtype) and getattr(dtype, "kind", "") in "fiu"
+
+
 def _real(name: str, value: Any) -> F64:
-    arr = np.asarray(value)
+    arr = _array(name, value)
     kind = arr.dtype.kind
     if kind not in "fiu":
         what = {
@@ -37,7 +63,6 @@ def _real(name: str, value: Any) -> F64:
             "O": "object",
             "U": "string",
             "S": "bytes",
-            "M": "datetime64 (convert to seconds first)",
             "m": "timedelta64 (convert to seconds first)",
         }.get(kind, str(arr.dtype))
         raise TypeError(f"{name}: expected real numbers, got {what} array (dtype {arr.dtype})")
@@ -66,8 +91,40 @@ def as_int(name: str, value: Any, low: int, high: int) -> int:
     return v
 
 
+def _ticks(t: Any) -> tuple[np.ndarray, float] | None:
+    """Integer or datetime times as int64 ticks and ticks per time unit; None for float times.
+
+    Datetimes (NumPy ``datetime64`` or pandas, naive or timezone-aware) count nanoseconds since
+    1970-01-01 UTC and their time unit is the second.
+    """
+    dtype = getattr(t, "dtype", None)
+    if dtype is not None and not isinstance(dtype, np.dtype) and hasattr(t, "dt"):
+        if getattr(dtype, "tz", None) is not None:  # pandas timezone-aware: to UTC
+            t = t.dt.tz_convert("UTC").dt.tz_localize(None)
+    try:
+        arr = np.asarray(t)
+    except ValueError:
+        return None  # ragged: reported by as_times
+    if arr.dtype.kind == "M":
+        if np.isnat(arr).any():
+            raise InputError(f"t: row {int(np.argmax(np.isnat(arr)))}: the time is missing (NaT)")
+        return arr.astype("datetime64[ns]").view(np.int64), 1e9
+    if arr.dtype.kind in "iu":
+        if arr.dtype.kind == "u" and arr.size and arr.max() > np.iinfo(np.int64).max:
+            raise InputError("t: unsigned times above 2**63 - 1 are not supported")
+        return arr.astype(np.int64, copy=False), 1.0
+    return None
+
+
 def as_times(t: Any, name: str = "t") -> F64:
-    """Return times as a contiguous float64 vector (order and finiteness are checked in Rust)."""
+    """Return times as a contiguous float64 vector (order and finiteness are checked in Rust).
+
+    Datetimes become seconds since 1970-01-01 UTC (exact differences come from
+    :func:`kernel_times`).
+    """
+    ticks = _ticks(t)
+    if ticks is not None and ticks[1] != 1.0:
+        t = ticks[0] / ticks[1]
     arr = _real(name, t)
     if arr.ndim != 1:
         raise InputError(f"{name}: expected a 1-D array of times, got shape {arr.shape}")
@@ -93,13 +150,11 @@ def kernel_times(t: Any, tt: F64, g: Grouping, name: str = "t") -> tuple[F64, F6
         The kernel's times and, per track, what was subtracted (as float64; zeros for float
         times): add it back to times the kernels return.
     """
-    raw = np.asarray(t)
+    ticks = _ticks(t)
     tk = g.to_kernel(tt)
-    if raw.dtype.kind not in "iu" or raw.size == 0 or raw.ndim != 1:
+    if ticks is None or ticks[0].size == 0 or ticks[0].ndim != 1:
         return tk, np.zeros(g.n_tracks)
-    if raw.dtype.kind == "u" and raw.max() > np.iinfo(np.int64).max:
-        raise InputError(f"{name}: unsigned times above 2**63 - 1 are not supported")
-    ik = g.to_kernel(raw.astype(np.int64, copy=False))
+    ik, per_unit = g.to_kernel(ticks[0]), ticks[1]
     counts = np.diff(g.offsets)
     has = counts > 0
     firsts = g.offsets[:-1][has]
@@ -117,7 +172,8 @@ def kernel_times(t: Any, tt: F64, g: Grouping, name: str = "t") -> tuple[F64, F6
         )
     starts = np.minimum(g.offsets[:-1], max(len(ik) - 1, 0))
     first = ik[starts] * has
-    return (ik - np.repeat(first, counts)).astype(np.float64), first.astype(np.float64)
+    relative = (ik - np.repeat(first, counts)).astype(np.float64) / per_unit
+    return relative, first.astype(np.float64) / per_unit
 
 
 def plain(label: Any) -> Any:

@@ -154,6 +154,11 @@ class _Prepared:
             codes = np.zeros(n, dtype=np.intp)
             self.labels: pd.Index = pd.Index([0], name="track")
         else:
+            if isinstance(by, (list, tuple, np.ndarray, pd.Index, pd.Series)):
+                raise TypeError(
+                    f"by: expected the name of one column or index level, got {type(by).__name__}"
+                    f" {list(by)!r:.80}; to group by several columns, build one key column first"
+                )
             ids = _values(df, by, "by")
             try:
                 c, uniques = pd.factorize(ids, sort=True)
@@ -228,10 +233,10 @@ class _Prepared:
     # -- errors ----------------------------------------------------------------------------------
     def row_error(self, column: Hashable, pos: int, detail: str, track: Any = None) -> Any:
         """Make an InputError naming the column, the index label of caller row ``pos``, a track."""
-        label = self.index[pos]
+        label = plain(self.index[pos])
         where = f"column {column!r}, row {label!r}"
         if track is not None:
-            where += f" (track {track!r})"
+            where += f" (track {plain(track)!r})"
         return _input_error(f"{where}: {detail}", str(column), pos, label)
 
     def column_of(self, argument: str) -> Hashable:
@@ -249,8 +254,7 @@ class _Prepared:
         track, row = getattr(err, "track", None), getattr(err, "row", None)
         if track is None or track >= self.n_tracks:
             return err
-        label = self.labels[track]
-        label = label.item() if isinstance(label, np.generic) else label
+        label = plain(self.labels[track])
         column = self.column_of(getattr(err, "argument", ""))
         detail = getattr(err, "detail", str(err))
         if row is not None:

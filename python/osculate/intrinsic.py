@@ -301,9 +301,13 @@ def kinematics(
     Parameters
     ----------
     t : array_like, shape (n,)
-        Sample times, strictly increasing within each track.
+        Sample times, strictly increasing within each track: real numbers in your time unit,
+        integers (e.g. epoch nanoseconds; differenced exactly in int64 per track, spans up to
+        2**53) or datetimes (NumPy or pandas, timezone-aware ones via UTC; seconds since
+        1970-01-01, differenced exactly in nanoseconds).
     positions : array_like, shape (n, 2) or (n, 3)
-        Positions. Rows with a NaN or infinite coordinate are flagged INVALID and skipped; their
+        Positions (pandas nullable columns accepted; a missing value is an error naming its
+        row). Rows with a NaN or infinite coordinate are flagged INVALID and skipped; their
         neighbours are estimated from the finite rows around them and flagged GAP.
     method : {"fd", "spline", "smooth", "local"}
         Derivative estimator. ``"fd"``: finite differences on the non-uniform grid (exact data).

@@ -192,7 +192,10 @@ def resample(
     fitted = fit_core(opts, g, tk, g.to_kernel(x))
     at_arr = None
     if at is not None:
-        at_arr = np.ascontiguousarray(np.atleast_1d(np.asarray(at, dtype=np.float64)))
+        try:
+            at_arr = np.ascontiguousarray(np.atleast_1d(np.asarray(at, dtype=np.float64)))
+        except (TypeError, ValueError):
+            raise TypeError(f"at: expected arc lengths (real numbers), got {at!r:.80}") from None
         if at_arr.ndim != 1:
             raise _core.InputError(f"at: expected a 1-D array, got shape {at_arr.shape}")
     raw = call_kernel(
