@@ -117,12 +117,21 @@ def _usage() -> tuple[float, float, int]:
 
 
 def make_inputs(spec: Mapping[str, Any]) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """Times, positions and row offsets of the data a spec names."""
+    """Times, positions and row offsets of the data a spec names.
+
+    For ``"interleaved"`` (the rows of many tracks in time order, as an ordinary log holds
+    them) the third array is the track id of every row instead of offsets.
+    """
     if spec["kind"] == "one":
         t, x = data.one_track(int(spec["n"]))
         return t, x, np.array([0, len(t)], dtype=np.int64)
     if spec["kind"] == "many":
         return data.many_tracks(int(spec["m"]), int(spec.get("mean_len", 200)))
+    if spec["kind"] == "interleaved":
+        t, x, offsets = data.many_tracks(int(spec["m"]), int(spec.get("mean_len", 200)))
+        ids = np.repeat(np.arange(len(offsets) - 1), np.diff(offsets))
+        order = np.argsort(t, kind="stable")
+        return t[order], np.ascontiguousarray(x[order]), ids[order]
     raise ValueError(f"unknown data kind {spec['kind']!r}")
 
 
@@ -156,6 +165,8 @@ def implementation(
 
         # The reference has no stop intervals: compare the estimator's own values (min_stop=inf).
         ours = {**OPTIONS, "min_stop": np.inf}
+        if len(offsets) == len(t):  # interleaved: track ids
+            return lambda: osculate.kinematics(t, x, tracks=offsets, **ours)
         if len(offsets) == 2:
             return lambda: osculate.kinematics(t, x, **ours)
         return lambda: osculate.kinematics(t, x, offsets=offsets, **ours)

@@ -50,7 +50,7 @@ import numpy as np
 from measure import in_subprocess
 
 HERE = Path(__file__).resolve().parent
-OWN_CASES = ("fd-one", "fd-many", "floor", "threads", "scaling")
+OWN_CASES = ("fd-one", "fd-many", "fd-interleaved", "floor", "threads", "scaling")
 #: Cases that other issues put beside this file as ``NAME_case.py``: each takes ``[--quick]
 #: --out FILE``, checks its own pairs, writes its figures as JSON and marks each target with a
 #: "status". They run in their own interpreter, after the cases above.
@@ -82,6 +82,8 @@ TARGETS = {
     "fd_many_vs_loop": 50.0,
     "rayon_2_threads": 1.7,
     "peak_memory": 1.5,
+    "interleaved_peak_memory": 1.3,
+    "interleaved_vs_grouped": 1.3,
     "time_per_sample_spread": 0.30,
 }
 
@@ -246,6 +248,15 @@ def case_fd_many(cfg: dict[str, Any]) -> dict[str, Any]:
     return {"check": check, **measured(impls, data, cfg)}
 
 
+def case_fd_interleaved(cfg: dict[str, Any]) -> dict[str, Any]:
+    """fd-many's tracks with their rows in time order (an ordinary log), grouped by ``tracks=``,
+    timed in the same rounds as the grouped rows."""
+    grouped = cfg["many"]
+    mixed = {**grouped, "kind": "interleaved"}
+    both = measured(["osculate"], grouped, cfg)["osculate"], measured(["osculate"], mixed, cfg)
+    return {"grouped": both[0], "interleaved": both[1]["osculate"]}
+
+
 def case_floor(cfg: dict[str, Any]) -> dict[str, Any]:
     out = {str(n): measured(["floor"], one(n), cfg)["floor"] for n in cfg["one_sizes"]}
     out["many"] = measured(["floor"], cfg["many"], cfg)["floor"]
@@ -331,6 +342,7 @@ def _statuses(figures: Any, path: str) -> list[tuple[str, dict[str, Any]]]:
 RUNNERS = {
     "fd-one": case_fd_one,
     "fd-many": case_fd_many,
+    "fd-interleaved": case_fd_interleaved,
     "floor": case_floor,
     "threads": case_threads,
     "scaling": case_scaling,
@@ -512,6 +524,22 @@ def targets(results: dict[str, Any]) -> list[dict[str, Any]]:
                 False,
                 "x floor (fd-one's goal, for reference)",
             )
+    mixed = cases.get("fd-interleaved")
+    if mixed:
+        add(
+            "fd-interleaved: peak memory / (inputs + outputs)",
+            mixed["interleaved"]["peak_over_in_out"],
+            TARGETS["interleaved_peak_memory"],
+            False,
+            "rows of all tracks in time order, tracks=",
+        )
+        add(
+            "fd-interleaved: time / time of the same rows grouped",
+            mixed["interleaved"]["median_s"] / mixed["grouped"]["median_s"],
+            TARGETS["interleaved_vs_grouped"],
+            False,
+            "x grouped",
+        )
     th = cases.get("threads")
     if th:
         add(

@@ -100,16 +100,16 @@ def _findings(
     if method == "fd":
         # Noise at the level of rounding (exact or simulated data) is no reason to warn. The
         # 3-point r″ of a uniform grid has the weights (1, −2, 1)/h²: standard error √6 σ/h².
-        # Positions far from the origin (ECEF metres) carry rounding of about ε·|x|; noise
-        # within 16 times that is rounding too.
-        scale = np.zeros(m)
-        has = counts > 0
-        if has.any():
-            mag = np.fmax.reduce(np.abs(x), axis=1) if len(x) else np.zeros(0)
-            scale[has] = np.fmax.reduceat(mag, offsets[:-1][has])
-        rounding = 16.0 * np.finfo(np.float64).eps * scale
-        real = (noise > np.maximum(1e-9 * step, rounding)) & (step > 0) & (counts >= 10)
+        real = (noise > 1e-9 * step) & (step > 0) & (counts >= 10)
         noisy_fd = real & (np.sqrt(6.0) * noise / st["dt"] ** 2 > FD_NOISE_RATIO * st["accel"])
+        if noisy_fd.any():
+            # Positions far from the origin (ECEF metres) carry rounding of about ε·|x|; noise
+            # within 16 times that is rounding too (looked at only when the check would fire).
+            has = counts > 0
+            mag = np.fmax.reduce(np.abs(x), axis=1) if len(x) else np.zeros(0)
+            scale = np.zeros(m)
+            scale[has] = np.fmax.reduceat(mag, offsets[:-1][has])
+            noisy_fd &= noise > 16.0 * np.finfo(np.float64).eps * scale
     code = np.repeat(np.arange(m), counts)
     bad_flags = int(Flag.VAGUE | Flag.GAP)
     share = np.bincount(code, weights=(flags & bad_flags) != 0, minlength=m) / np.maximum(counts, 1)

@@ -553,6 +553,7 @@ def kinematics(
     grouped = tracks is not None or offsets is not None
     labels = g.labels if grouped else np.zeros(1, np.int64)
     stops = stop_table(g.to_kernel(tt), xk, first, last, code, labels, g.order)
+    del tk, xk  # the kernel-order copies of the inputs are not needed while outputs are ordered
     return _assemble(tt, x, g, raw, opts, info, grouped=grouped, frame=frame, stops=stops)
 
 
@@ -613,6 +614,9 @@ def _find_stops(
         min_stop = as_real("min_stop", min_stop)
         if not min_stop >= 0:
             raise _core.InputError(f"min_stop: must be >= 0 (inf: none), got {min_stop!r}")
+        if min_stop == np.inf:  # none asked for: no temporaries
+            none = np.zeros(0, np.intp)
+            return none, none, none
     return find_stops(t, x, raw["flags"], g.offsets, raw["noise"], min_stop)
 
 
@@ -628,11 +632,16 @@ def _assemble(
     frame: str = "frenet",
     stops: Stops | None = None,
 ) -> Kinematics:
-    """Kinematics on the caller's rows from the kernel's dictionary (kernel row order)."""
-    raw = dict(raw)
+    """Kinematics on the caller's rows from the kernel's dictionary (kernel row order).
+
+    ``raw`` is emptied: its arrays are handed over (or freed as their caller-order copies are
+    made), so the outputs are held once plus one array, not twice.
+    """
     raw.pop("noise", None)
     se_raw = raw.pop("se", None)
-    res = {name: g.to_caller(a) for name, a in raw.items()}
+    res = {}
+    for name in list(raw):
+        res[name] = g.to_caller(raw.pop(name))
     res.setdefault("twist", None)
     se = None if se_raw is None else _se_mapping(se_raw, g, x.shape[1])
     return Kinematics(
