@@ -29,6 +29,10 @@ def test_numpy_api_differences_integer_times_exactly():
     np.testing.assert_allclose(k.speed * 1e9, 10.0, rtol=1e-9)
     # The caller's times come back as given (as float64).
     np.testing.assert_array_equal(k.t, t.astype(np.float64))
+    # The check can fail: the same times rounded to float64 first give |a_t| of m/s² (measured
+    # 2.6 m/s²).
+    rounded = osc.kinematics(t.astype(np.float64), x, tracks=np.arange(N) % 2)
+    assert np.nanmax(np.abs(rounded.accel_tangential)) * PER_NS2 > 0.1
 
 
 def test_accessor_differences_integer_times_exactly():
@@ -105,3 +109,16 @@ def test_arguments_of_the_wrong_kind_are_named():
     df = pd.DataFrame({"t": t, "x": t, "y": 0.0, "a": 1, "b": 2})
     with pytest.raises(TypeError, match=r"by: expected the name of one column or index level"):
         df.osc.kinematics(time="t", position=["x", "y"], by=["a", "b"])
+
+
+def test_command_line_differences_integer_times_exactly(tmp_path):
+    pd = pytest.importorskip("pandas")
+    from osculate.cli import main
+
+    t, x = _line()
+    src, out = tmp_path / "log.csv", tmp_path / "out.csv"
+    pd.DataFrame({"t_ns": t, "x": x[:, 0], "y": x[:, 1]}).to_csv(src, index=False)
+    code = main(["analyze", str(src), "--time", "t_ns", "--position", "x,y", "-o", str(out), "-q"])
+    assert code == 0
+    back = pd.read_csv(out)
+    assert np.nanmax(np.abs(back["accel_tangential"])) * PER_NS2 <= 1e-6  # as above
