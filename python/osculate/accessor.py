@@ -24,6 +24,7 @@ from ._validate import EXACT_SPAN, Grouping, plain
 from .geodesy import enu_and_origins
 from .intrinsic import Kinematics
 from .intrinsic import kinematics as _kinematics
+from .summary import summarize
 
 __all__ = ["OscAccessor", "result_columns", "track_time_order"]
 
@@ -350,12 +351,23 @@ def summary_and_stops(
     crs: str,
     origin: npt.ArrayLike | None,
     options: dict[str, Any],
+    from_results: bool = False,
 ) -> tuple[pd.DataFrame, pd.DataFrame]:
-    """Return the tables of :meth:`OscAccessor.summary` and :meth:`OscAccessor.stops`, one run."""
+    """Return the tables of :meth:`OscAccessor.summary` and :meth:`OscAccessor.stops`, one run.
+
+    With ``from_results``, ``df`` is an output of ``osculate analyze`` (or of
+    ``df.osc.kinematics(..., keep=True)``): its result columns (:data:`RESULTS_SUMMARIZED`, the
+    jerk and the ``_se`` columns where present) are summarised as they are, without recomputing.
+    Extremes then use stretches of three samples (the smoothing bandwidth is not in the table),
+    and the stops are the STOPPED runs of the table, not trimmed by the noise.
+    """
     prep = _Prepared(df, time, position, by, crs, origin)
-    k = prep.run(options) if prep.n else _synthetic(prep, options)
+    if from_results and prep.n:
+        k = _from_results(prep, df)
+    else:
+        k = prep.run(options) if prep.n else _synthetic(prep, options)
     keep = slice(None) if prep.n else slice(0, 0)  # a synthetic run: its layout, none of its rows
-    data = {c: v[keep] for c, v in k.summary_arrays().items()}
+    data = {c: v[keep] for c, v in summarize(k).items()}
     data.pop("track", None)
     out = pd.DataFrame(data, index=prep.labels[: prep.n_tracks])
     first = prep.offsets[:-1] if prep.order is None else prep.order[prep.offsets[:-1]]
@@ -383,6 +395,60 @@ def summary_and_stops(
     stops["start"] = raw.iloc[rows[0]].array
     stops["end"] = raw.iloc[rows[1]].array
     return out, stops.rename(columns={"track": "track" if by is None else by})
+
+
+#: Columns of an ``analyze`` output that a summary is made from (see :func:`summary_and_stops`).
+RESULTS_SUMMARIZED = (
+    "flags",
+    "speed",
+    "accel_tangential",
+    "accel_normal",
+    "curvature",
+    "angular_speed",
+    "arclength",
+)
+
+
+def _from_results(prep: _Prepared, df: pd.DataFrame) -> Any:
+    """Return the per-sample results already in ``df`` (an ``analyze`` output) as summarised.
+
+    Kernel row order; the stops are found again from the STOPPED runs (untrimmed: the noise is
+    not in the table).
+    """
+    from types import SimpleNamespace
+
+    from .stops import find_stops, stop_table
+
+    def kern(column: str) -> np.ndarray:
+        values = df[column].to_numpy(dtype=np.float64, na_value=np.nan)
+        return np.ascontiguousarray(prep.to_kernel(values))
+
+    m = prep.n_tracks
+    cols = {c: kern(c) for c in RESULTS_SUMMARIZED if c != "flags"}
+    flags = np.ascontiguousarray(prep.to_kernel(df["flags"].to_numpy().astype(np.uint8)))
+    axes = [a for a in "xyz" if f"jerk_{a}" in df.columns]
+    jerk = (
+        np.column_stack([kern(f"jerk_{a}") for a in axes]) if axes else np.full((prep.n, 1), np.nan)
+    )
+    se = {
+        q: kern(f"{q}_se")
+        for q in ("speed", "accel_tangential", "accel_normal", "curvature")
+        if f"{q}_se" in df.columns
+    }
+    if axes and f"jerk_se_{axes[0]}" in df.columns:
+        se["jerk"] = kern(f"jerk_se_{axes[0]}")
+    first, last, code = find_stops(prep.t, prep.x, flags, prep.offsets, np.full(m, np.nan))
+    stops = stop_table(prep.t, prep.x, first, last, code, np.arange(m), None)
+    return SimpleNamespace(
+        _grouping=Grouping(prep.offsets, None, np.arange(m)),
+        t=prep.t,
+        flags=flags,
+        jerk=jerk,
+        se=se or None,
+        stops=stops,
+        fit_info={"noise": np.full(m, np.nan)},
+        **cols,
+    )
 
 
 def _synthetic(prep: _Prepared, options: dict[str, Any]) -> Kinematics:

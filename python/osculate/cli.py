@@ -553,7 +553,7 @@ def _analyze(args: argparse.Namespace) -> int:
 def _summarize(args: argparse.Namespace) -> int:
     """``osculate summary``: one line per track and the stop intervals."""
     pd = _pandas()
-    from .accessor import summary_and_stops
+    from .accessor import RESULTS_SUMMARIZED, summary_and_stops
 
     spec = _selection(args)
     source = _check_input(args.file)
@@ -563,10 +563,20 @@ def _summarize(args: argparse.Namespace) -> int:
         raise _UsageError(f"--stops {args.stops!r}: the same file as --output")
     df = _load(args, source, spec)
     time_col, position, by, crs, origin = (spec.pop(k, None) for k in _WHERE)
+    # An output of `osculate analyze`: its results are summarised as they are.
+    done = not args.recompute and all(c in df.columns for c in RESULTS_SUMMARIZED)
+    if done and not args.quiet:
+        print(
+            f"osculate summary: summarising the results already in {args.file} "
+            "(--recompute computes them again from the positions)",
+            file=sys.stderr,
+        )
     parts = _in_chunks(
         df,
         args.track,
-        lambda part: summary_and_stops(part, time_col, position, by, crs, origin, spec),
+        lambda part: summary_and_stops(
+            part, time_col, position, by, crs, origin, spec, from_results=done
+        ),
         args,
     )
     table = pd.concat([p[0] for _, p in parts])
@@ -652,6 +662,12 @@ def _add_data_commands(sub: Any) -> None:
     )
     summary.add_argument("-o", "--output", help="also write the table (.csv or .parquet)")
     summary.add_argument("--stops", help="also write the stop intervals (.csv or .parquet)")
+    summary.add_argument(
+        "--recompute",
+        action="store_true",
+        help="given an output of `osculate analyze`, compute the results again from the "
+        "positions instead of summarising the columns it holds",
+    )
 
 
 def _print_warnings(command: str, caught: list[warnings.WarningMessage]) -> None:

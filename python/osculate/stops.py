@@ -256,8 +256,9 @@ def _hold(
     """Trim stop ends to samples that hold the stop's position; merge stops at one place."""
     n = len(t)
     centre = _centres(x, first, last)
-    radius = HOLD_NOISE * noise[code[first]]
-    radius = np.where(np.isfinite(radius), radius, 0.0)
+    known = HOLD_NOISE * noise[code[first]]
+    # Unknown noise: no trimming (every sample holds) and no merging by place.
+    radius = np.where(np.isfinite(known), known, np.inf)
     idx = np.arange(n)
     # Every row from a stop's first sample on belongs to that stop (until the next one starts).
     own = np.searchsorted(first, idx, side="right") - 1
@@ -270,7 +271,7 @@ def _hold(
     new_first, new_last = next_held[first], prev_held[last]
     kept = new_first <= new_last
     first, last, centre = new_first[kept], new_last[kept], centre[kept]
-    radius = radius[kept]
+    radius = np.where(np.isfinite(known), known, 0.0)[kept]
     if len(first) == 0:
         return first, last
     # Consecutive stops of one track merge when the gap is tiny or the place is the same.
