@@ -557,7 +557,10 @@ class OscAccessor:
             ``curvature``, ``radius``, ``torsion``, ``accel_tangential``, ...), vectors by
             component (``velocity_x``, ``tangent_y``, ``binormal_z``, ...; x, y, z are east,
             north, up for geodetic input, which also gives ``east``, ``north``, ``up``) and
-            ``flags`` (bits of :class:`osculate.Flag`).
+            ``flags`` (bits of :class:`osculate.Flag`). Read that column as ``res["flags"]``:
+            ``res.flags`` is pandas' own ``DataFrame.flags`` attribute. Lateral acceleration,
+            jerk and radius are indicative: local codes and licensed engineers decide whether a
+            road, rail, ride or vehicle is acceptable.
 
         Raises
         ------

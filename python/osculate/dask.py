@@ -104,7 +104,9 @@ def kinematics(
     dask.dataframe.DataFrame
         Lazy; its partitions are exactly what the pandas accessor returns for those rows, so the
         computed rows equal the pandas results for the whole frame (each track is computed from
-        its own rows only). The ``meta`` is the accessor's result on the empty frame.
+        its own rows only). The ``meta`` is the accessor's result on the empty frame. Lateral
+        acceleration, jerk and radius are indicative: local codes and licensed engineers decide
+        whether a road, rail, ride or vehicle is acceptable.
 
     Examples
     --------

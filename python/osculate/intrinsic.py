@@ -413,6 +413,10 @@ def kinematics(
     With c = r′ × r″ and v = |r′|: T = r′/v, B = c/|c|, N = B × T, κ = |c|/v³, τ = (c·r‴)/|c|²,
     a_t = r′·r″/v, a_n = κv², ω = κv.
 
+    **Indicative values.** Lateral (normal) acceleration, jerk and radius estimated from logged
+    positions are indicative: whether a road, rail, ride or vehicle is acceptable is decided by
+    local codes and licensed engineers.
+
     ``"fd"``: weights by Fornberg's algorithm (B. Fornberg, Math. Comp. 51 (1988) 699–706),
     centred in the interior and one-sided of the same width at the ends (EDGE); arc length is the
     polyline length. Finite differences amplify noise by 1/h² in r″ and 1/h³ in r‴: on noisy data

@@ -113,7 +113,9 @@ class Path:
         """Kinematics at any times, as :func:`osculate.kinematics` returns at the samples.
 
         ``position`` holds the fitted positions and ``arclength`` the length from the track's
-        first sample (negative before it). No EDGE or GAP flags are set.
+        first sample (negative before it). No EDGE or GAP flags are set. Lateral acceleration,
+        jerk and radius are indicative: local codes and licensed engineers decide whether a
+        road, rail, ride or vehicle is acceptable.
         """
         tq, g, tk = self._queries(t, track)
         raw = call_kernel(
