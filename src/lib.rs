@@ -17,6 +17,7 @@ pub mod error;
 pub mod field;
 pub mod fit;
 pub mod frame;
+pub mod fresnel;
 pub mod geodesy;
 pub mod kinematics;
 pub mod line_integral;
