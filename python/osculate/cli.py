@@ -43,11 +43,15 @@ def run_demo(out: Path) -> Any:
 
 def _demo(args: argparse.Namespace) -> int:
     """``osculate demo``: the key figures on stdout, the report folder on disk."""
+    from .report import text_table
+
     rep = run_demo(args.out)
-    table = [ln for ln in rep.report.read_text().splitlines() if ln.startswith("| ")]
-    print("\n".join(ln for ln in table if not ln.startswith("| key figure")))
+    print(text_table(rep.checks))
     if not rep.figures:
         print("osculate demo: no figures (they need matplotlib): pip install 'osculate[plot]'")
+    if rep.removed:
+        names = ", ".join(p.name for p in rep.removed)
+        print(f"osculate demo: removed {len(rep.removed)} files of the previous run: {names}")
     took = f"{len(rep.files)} files in {rep.seconds:.1f} s"
     print(f"osculate demo: {took}, report written to {rep.report}")
     print(CAUTION)

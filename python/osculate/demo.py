@@ -486,7 +486,8 @@ class SpiralLoop:
     xy : ndarray, shape (n, 2)
         Logged positions (m), with noise.
     lap : ndarray of int, shape (n,)
-        Lap number (one track per lap).
+        Lap index of each row, counted from 0 (one track per lap); the report of
+        ``osculate demo`` calls index 0 lap 1.
     force : ndarray, shape (n, 2)
         Logged resistance force (N), with noise.
     xy_true, distance, speed, curvature, accel_tangential, accel_normal : ndarray
@@ -499,9 +500,14 @@ class SpiralLoop:
     spiral_rate : float
         dκ/ds on the entry clothoids, 1 / (``bend_radius`` · ``spiral_length``) (1/m²).
     lap_distance : ndarray, shape (laps,)
-        True distance between the first and last row of each lap (m).
+        True distance between the first and last row of each lap (m), by lap index. It is short
+        of ``lap_length`` by the part of the start/finish crossing that falls between two rows:
+        laps are cut mid-straight, at full speed, where rows are about 0.7 m apart.
     drag_work : ndarray, shape (laps,)
         True work of the resistance force from the first to the last row of each lap (J).
+    cumulative_drag_work : ndarray, shape (n,)
+        True work of the resistance force from the first row of the row's lap to the row (J); at
+        each lap's last row it equals that lap's ``drag_work``.
     mass, drag_area, rolling, air_density : float
         Vehicle mass (kg), drag coefficient × frontal area (m²), rolling-resistance coefficient,
         air density (kg/m³).
@@ -528,6 +534,7 @@ class SpiralLoop:
     spiral_rate: float
     lap_distance: F64
     drag_work: F64
+    cumulative_drag_work: F64
     mass: float
     drag_area: float
     rolling: float
@@ -667,6 +674,7 @@ def spiral_loop(
         spiral_rate=1.0 / (radius * spiral),
         lap_distance=np.zeros(laps),
         drag_work=np.zeros(laps),
+        cumulative_drag_work=np.zeros(len(t)),
         mass=450.0,
         drag_area=0.62,
         rolling=0.012,
@@ -689,7 +697,14 @@ def spiral_loop(
         np.interp(dist[first], s_fine, work_fine),
     )
     drag_work = -(at_last - at_first)
-    return dataclasses.replace(model, force=force, lap_distance=lap_distance, drag_work=drag_work)
+    so_far = -(np.interp(dist, s_fine, work_fine) - at_first[lap])
+    return dataclasses.replace(
+        model,
+        force=force,
+        lap_distance=lap_distance,
+        drag_work=drag_work,
+        cumulative_drag_work=so_far,
+    )
 
 
 # -- tracer particles in a vortex ---------------------------------------------------------------
@@ -844,6 +859,3 @@ def swirl_tracers(
     gx, gy = np.meshgrid(field.grid_x, field.grid_y, indexing="ij")
     grid = field.velocity(np.column_stack([gx.ravel(), gy.ravel()])).reshape(*gx.shape, 2)
     return dataclasses.replace(field, xy=xy, speed=v[particle], grid_velocity=grid)
-
-
-# -- the report of ``osculate demo`` ------------------------------------------------------------

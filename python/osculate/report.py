@@ -3,12 +3,16 @@
 :func:`run` computes kinematics with smoothing, frames, resampling, work and summaries on the
 invented scenarios of :mod:`osculate.demo`, checks each key figure against the scenario's ground
 truth, and writes per-sample tables, a per-track summary, the figures (with matplotlib) and
-``report.md`` to a folder.
+``report.md`` to a folder. A second run into the same folder removes the files of the first that
+it does not write again (and nothing else), by the list of files the first left in
+``manifest.json``.
 """
 
 from __future__ import annotations
 
 import dataclasses
+import json
+import re
 from typing import Any, Optional
 
 import numpy as np
@@ -16,8 +20,9 @@ import numpy.typing as npt
 
 from ._palette import TRUTH
 from .demo import spiral_loop, survey_flight, swirl_tracers
+from .summary import COLUMNS as SUMMARY_COLUMNS
 
-__all__ = ["CAUTION", "Check", "Report", "run"]
+__all__ = ["CAUTION", "MANIFEST", "Check", "Report", "run", "summary_units", "text_table"]
 
 F64 = npt.NDArray[np.float64]
 
@@ -31,6 +36,25 @@ DEMO_LIMIT = (
     0.3,
     "an invented design envelope of the demo vehicle (not from any code or standard)",
 )
+#: The list of files a run wrote, read by the next run into the same folder.
+MANIFEST = "manifest.json"
+#: Units of the demo's input: every scenario is in metres and seconds (the drone after
+#: ``geodetic_to_enu``), so "L" and "T" of ``osculate.SUMMARY_COLUMNS`` are m and s.
+DEMO_LENGTH, DEMO_TIME = "m", "s"
+#: Units of the entries of ``Kinematics.fit_info`` that the summary appends after the columns of
+#: ``osculate.SUMMARY_COLUMNS`` (from the ``fit_info`` documentation of ``osculate.Kinematics``).
+FIT_INFO_UNITS = {
+    "smoothing": "1",  # dimensionless λ*
+    "edf": "1",  # effective degrees of freedom
+    "criterion": "L²",  # GCV score or unbiased risk: a mean squared position residual
+    "window": "samples or T",  # "local": samples (window) or a time span (window_span)
+    "length_error": "L",
+    "jerk_smoothing": "1",  # dimensionless λ* of the fit r‴ comes from
+    "bandwidth": "samples",  # of the smoothing spline's equivalent kernel
+}
+LABEL_COLUMNS = ("scenario", "track")  # no unit
+_UNIT_HEAD = re.compile(r"1|rad|[LT][²³]?(?:/T[²³]?)?")
+_LT = re.compile(r"(?<![A-Za-z])[LT](?![A-Za-z])")
 
 
 @dataclasses.dataclass(frozen=True)
@@ -59,14 +83,44 @@ class Check:
 
     @property
     def error(self) -> float:
-        """Relative error (or absolute difference) of the estimate."""
+        """Signed relative error (estimated − true) / true, or estimated − true if not relative.
+
+        A negative relative error means the estimate falls short of the truth in proportion
+        (it is ``estimated / true − 1``, also when the truth is negative).
+        """
         diff = self.estimated - self.true
-        return diff / abs(self.true) if self.relative else diff
+        return diff / self.true if self.relative else diff
 
     @property
     def passed(self) -> bool:
         """Whether the estimate is within the tolerance."""
         return bool(np.isfinite(self.error) and abs(self.error) <= self.tolerance)
+
+    def cells(self) -> tuple[str, str, str, str, str]:
+        """Return the estimate, truth, error, tolerance and verdict as report text.
+
+        Returns
+        -------
+        tuple of str
+            ``(estimated, true, error, tolerance, within)``, with units; a relative error and
+            tolerance in percent.
+
+        Examples
+        --------
+        >>> Check("s", "x", "m", estimated=29.7, true=30.0, tolerance=0.02).cells()
+        ('29.7 m', '30 m', '-1.00 %', '2 %', 'yes')
+        """
+        if self.relative:
+            err, tol = f"{100 * self.error:+.2f} %", f"{100 * self.tolerance:g} %"
+        else:
+            err, tol = f"{self.error:+.3g} {self.unit}", f"{self.tolerance:g} {self.unit}"
+        return (
+            f"{_fmt(self.estimated)} {self.unit}",
+            f"{_fmt(self.true)} {self.unit}",
+            err,
+            tol,
+            "yes" if self.passed else "NO",
+        )
 
 
 @dataclasses.dataclass(frozen=True)
@@ -85,6 +139,8 @@ class Report:
         Wall time of the run.
     figures : bool
         Whether PNG figures were drawn (matplotlib present).
+    removed : list of pathlib.Path
+        Files of a previous run into the folder that this run did not write again, deleted.
     """
 
     folder: Any
@@ -93,6 +149,7 @@ class Report:
     checks: list[Check]
     seconds: float
     figures: bool
+    removed: list[Any] = dataclasses.field(default_factory=list)
 
     @property
     def passed(self) -> bool:
@@ -162,10 +219,30 @@ def _write_csv(path: Any, columns: dict[str, np.ndarray]) -> Any:
     return path
 
 
-def _kinematics_columns(k: Any, names: tuple[str, ...]) -> dict[str, np.ndarray]:
+@dataclasses.dataclass(frozen=True)
+class _Figure:
+    """A figure file of the report and its one-line caption."""
+
+    path: Any
+    caption: str
+
+
+@dataclasses.dataclass(frozen=True)
+class _Section:
+    """What one scenario adds to the report."""
+
+    checks: list[Check]
+    text: str
+    kinematics: Any  # the Kinematics whose per-track summary goes to summary.csv
+    figures: list[_Figure]
+
+
+def _kinematics_columns(
+    k: Any, names: tuple[str, ...], track: str = "track"
+) -> dict[str, np.ndarray]:
     cols: dict[str, np.ndarray] = {}
     if k.tracks is not None:
-        cols["track"] = k.tracks
+        cols[track] = k.tracks
     cols["t"] = k.t
     for j, axis in enumerate(names):
         cols[axis] = k.position[:, j]
@@ -201,7 +278,12 @@ def _flips(normal: F64, same_track: npt.NDArray[np.bool_]) -> int:
     return int(np.sum((dot < 0) & same_track))
 
 
-def _drone(out: Any, figs: bool, files: list[Any]) -> tuple[list[Check], str]:
+def _undefined(normal: F64, rows: npt.NDArray[np.bool_]) -> int:
+    """Rows of ``rows`` where the normal is undefined (NaN)."""
+    return int(np.sum(~np.isfinite(normal).all(axis=1) & rows))
+
+
+def _drone(out: Any, figs: bool, files: list[Any]) -> _Section:
     from .flags import Flag
     from .geodesy import geodetic_to_enu
     from .intrinsic import kinematics
@@ -273,6 +355,7 @@ def _drone(out: Any, figs: bool, files: list[Any]) -> tuple[list[Check], str]:
     files.append(_write_table(out / "drone_samples", cols))
     stopped = k.flagged(Flag.STOPPED)
     leg_pairs = legs[1:] & legs[:-1]
+    frenet_gone = _undefined(frenet.normal, legs)
     text = f"""## 1. Survey drone: a GPS log in latitude, longitude and height
 
 Scenario (invented, seed 11): the drone climbs {f.altitude:.0f} m vertically, then flies
@@ -298,12 +381,15 @@ Stops found: {_stops_text(k)}.
 
 Flags: {int(stopped.sum())} samples STOPPED (not moving within the noise: at the start, at the
 top of the climb, in the hover and at the end), {int(k.flagged(Flag.GAP).sum())} GAP (the outage),
-{int(k.flagged(Flag.EDGE).sum())} EDGE. Frames: on the straight legs the Frenet normal follows the
-noise and flips {_flips(frenet.normal, leg_pairs)} times between consecutive samples; the
-rotation-minimizing frame flips {_flips(k.normal, leg_pairs & one)} times there.
+{int(k.flagged(Flag.EDGE).sum())} EDGE. Frames: on the straight legs the curvature is within the
+noise of zero (STRAIGHT), so the Frenet normal is undefined at {frenet_gone} of {int(legs.sum())}
+leg samples and flips {_flips(frenet.normal, leg_pairs)} times between consecutive samples where it
+is defined; the rotation-minimizing frame is undefined at {_undefined(k.normal, legs)} of them and
+flips {_flips(k.normal, leg_pairs & one)} times.
 Smoothing rounds off the corners of curvature where a leg meets a turn, so the radius is read in
 the middle half of each turn.
 """
+    figures: list[_Figure] = []
     if figs:
         from . import plot
 
@@ -315,7 +401,13 @@ the middle half of each turn.
             axis_names=names,
             title="Survey drone: logged path, coloured by estimated speed",
         )
-        files.append(_save(p, out / "drone_path.png"))
+        figures.append(
+            _Figure(
+                _save(p, out / "drone_path.png"),
+                "Survey drone: the logged path in east-north-up metres, coloured by estimated "
+                "speed, with the rotation-minimizing frame every 100 m.",
+            )
+        )
         p = plot.profile(
             k,
             x="time",
@@ -325,18 +417,27 @@ the middle half of each turn.
         _truth(p.axes[0], f.t, f.speed, "true v")
         _truth(p.axes[1], f.t, f.accel_tangential, "true a_t")
         _truth(p.axes[2], f.t, f.speed**2 * f.curvature, "true a_n = v²κ")
-        files.append(_save(p, out / "drone_profile.png"))
-    return checks, text
+        figures.append(
+            _Figure(
+                _save(p, out / "drone_profile.png"),
+                "Survey drone: estimated speed, a_t and a_n against time with 95 % bands, the "
+                "truth dashed; shaded: flagged samples.",
+            )
+        )
+        files += [fig.path for fig in figures]
+    return _Section(checks, text, k, figures)
 
 
-def _spiral(out: Any, figs: bool, files: list[Any]) -> tuple[list[Check], str]:
+def _spiral(out: Any, figs: bool, files: list[Any]) -> _Section:
+    from .demo import STANDARD_GRAVITY
     from .intrinsic import kinematics
     from .lineint import power as line_power
     from .lineint import work as line_work
     from .reparam import resample
 
     e = spiral_loop()
-    k = kinematics(e.t, e.xy, method="smooth", tracks=e.lap)
+    lap = e.lap + 1  # laps are numbered from 1 in the report, its tables and figures
+    k = kinematics(e.t, e.xy, method="smooth", tracks=lap)
     laps = len(e.lap_distance)
     lap_len = e.lap_length
     u = np.mod(e.distance, lap_len)
@@ -349,11 +450,11 @@ def _spiral(out: Any, figs: bool, files: list[Any]) -> tuple[list[Check], str]:
     slope = np.polyfit(half[entry] - s0, k.signed_curvature[entry], 1)[0]
     summary = k.summary_arrays()
     lap_err = (summary["length"] - e.lap_distance) / e.lap_distance
-    worst = int(np.argmax(np.abs(lap_err)))
-    w = line_work(e.xy, e.force, t=e.t, tracks=e.lap, cumulative=True)
+    worst = int(np.argmax(np.abs(lap_err)))  # an index: lap worst + 1
+    w = line_work(e.xy, e.force, t=e.t, tracks=lap, cumulative=True)
     w_err = (w.total - e.drag_work) / np.abs(e.drag_work)
     w_worst = int(np.argmax(np.abs(w_err)))
-    power = line_power(e.t, e.xy, e.force, method="smooth", tracks=e.lap)
+    power = line_power(e.t, e.xy, e.force, method="smooth", tracks=lap)
     name = "electric vehicle"
     checks = [
         Check(
@@ -382,7 +483,7 @@ def _spiral(out: Any, figs: bool, files: list[Any]) -> tuple[list[Check], str]:
         ),
         Check(
             name,
-            f"length of lap {worst} (the worst lap)",
+            f"length of lap {worst + 1} (the worst lap)",
             "m",
             float(summary["length"][worst]),
             float(e.lap_distance[worst]),
@@ -390,14 +491,14 @@ def _spiral(out: Any, figs: bool, files: list[Any]) -> tuple[list[Check], str]:
         ),
         Check(
             name,
-            f"work of the resistance force, lap {w_worst} (the worst lap)",
+            f"work of the resistance force, lap {w_worst + 1} (the worst lap)",
             "J",
             float(w.total[w_worst]),
             float(e.drag_work[w_worst]),
             0.01,
         ),
     ]
-    cols = _kinematics_columns(k, ("x", "y"))
+    cols = _kinematics_columns(k, ("x", "y"), track="lap")
     cols.update(
         force_x=e.force[:, 0],
         force_y=e.force[:, 1],
@@ -405,6 +506,7 @@ def _spiral(out: Any, figs: bool, files: list[Any]) -> tuple[list[Check], str]:
         work=np.asarray(w.cumulative, dtype=float),
         true_speed=e.speed,
         true_curvature=e.curvature,
+        true_work=e.cumulative_drag_work,
     )
     files.append(_write_table(out / "ev_samples", cols))
     r = resample(
@@ -412,75 +514,142 @@ def _spiral(out: Any, figs: bool, files: list[Any]) -> tuple[list[Check], str]:
         e.xy,
         step=1.0,
         method="smooth",
-        tracks=e.lap,
+        tracks=lap,
         extra={"force_x": e.force[:, 0], "force_y": e.force[:, 1]},
     )
-    rcols: dict[str, np.ndarray] = {"track": np.asarray(r.tracks), "s": r.s, "t": r.t}
+    rcols: dict[str, np.ndarray] = {"lap": np.asarray(r.tracks), "s": r.s, "t": r.t}
     rcols.update(x=r.position[:, 0], y=r.position[:, 1], **(r.extra or {}))
     files.append(_write_table(out / "ev_resampled", rcols))
     # ∫ P dt per lap (trapezoid), a consistency check of power against work.
     same = e.lap[1:] == e.lap[:-1]
     seg = np.where(same, 0.5 * (power[1:] + power[:-1]) * np.diff(e.t), 0.0)
     energy = np.bincount(e.lap[1:], weights=seg, minlength=laps)
+    # The laps are cut at the start/finish line, mid-straight at the top speed: the crossing
+    # falls between two logged rows, so each lap's rows span a little less than the loop.
+    first = np.searchsorted(e.lap, np.arange(laps), side="left")
+    crossing = e.speed[first] * float(np.median(np.diff(e.t)))
+    straight = e.segment == "straight"
+    frenet_gone = _undefined(k.normal, straight)
     text = f"""## 2. Electric vehicle: a loop with clothoid transitions
 
 Scenario (invented, seed 5): a {e.mass:.0f} kg vehicle laps a {lap_len:.1f} m loop {laps} times:
 {e.straight_length:.0f} m straights, clothoids (Euler spirals, curvature linear in arc length) of
 {e.spiral_length:.0f} m, and circular arcs of radius {e.bend_radius:.0f} m, at 9 to 14 m/s. The
-geometry is built by integrating the heading numerically. Positions are logged at about 20 Hz with
-clock jitter and {e.noise * 100:.0f} cm noise per axis, and the resistance force (drag with
-CdA = {e.drag_area} m² plus rolling resistance Crr = {e.rolling}) with {e.force_noise:.0f} N noise.
-{len(e.t)} samples, one track per lap.
+heading is the exact integral of the curvature and the positions are integrated from it
+numerically (exact to about 1e-12 m). Positions are logged at about 20 Hz with clock jitter and
+{e.noise * 100:.0f} cm noise per axis, and the resistance force (drag with CdA = {e.drag_area} m²
+plus rolling resistance Crr = {e.rolling}) with {e.force_noise:.0f} N noise. {len(e.t)} samples,
+one track per lap; laps are numbered 1 to {laps} here, in the tables (column `lap`; the `track` of
+`summary.csv`) and in the figures.
 
-Method: `osc.kinematics(t, xy, method="smooth", tracks=lap)` (λ* per lap
+Lap lengths: the loop is {lap_len:.3f} m long by design, 2 × (straight + clothoid + πR). A lap's
+true length below is the distance driven between its first and last logged rows,
+{", ".join(f"{x:.2f}" for x in e.lap_distance)} m for laps 1 to {laps}. It is shorter because laps
+start and end at the start/finish line in the middle of a straight, where the vehicle does
+{e.speed[first].max():.0f} m/s and the log's rows are about {crossing.max():.1f} m apart: the part
+of each crossing that falls between the last row of one lap and the first of the next belongs to
+neither.
+
+Method: `osc.kinematics(t, xy, method="smooth", tracks=lap)` (λ* for laps 1 to {laps}:
 {", ".join(f"{x:.3g}" for x in _smoothing(k))}); work of the logged force by
 `osc.work(xy, force, t=t, tracks=lap, cumulative=True)` (trapezoid rule; estimated quadrature error
 {", ".join(f"{x:.2g}" for x in w.error)} J per lap); power F·v by `osc.power(..., method="smooth")`,
 whose time integral per lap ({", ".join(f"{x / 1e3:.2f}" for x in energy)} kJ) agrees with the work
-({", ".join(f"{x / 1e3:.2f}" for x in w.total)} kJ); points every metre along each lap by
+({", ".join(f"{x / 1e3:.2f}" for x in w.total)} kJ; true
+{", ".join(f"{x / 1e3:.2f}" for x in e.drag_work)} kJ); points every metre along each lap by
 `osc.resample(t, xy, step=1.0, method="smooth", tracks=lap, extra=force)` ({len(r)} points).
 
 {_table(checks)}
 
-The path figure draws the Frenet frame every 40 m: on the straights its normal follows the noise
-and points to either side (compare the rotation-minimizing frame of the drone figure). The g-g
-figure draws one reference circle at {DEMO_LIMIT[0]} g: {DEMO_LIMIT[1]}. It is there to show how a
-limit is drawn and labelled, nothing more.
+Frames: the Frenet normal is undefined at {frenet_gone} of the {int(straight.sum())} samples on
+the straights, where the curvature is within the noise of zero (STRAIGHT); where the noise lets it
+be defined there, it may point to either side.
 """
+    figures: list[_Figure] = []
     if figs:
         from . import plot
 
+        lap1 = e.lap == 0
         p = plot.path(
             k,
             color="curvature",
             frames_every=40.0,
             title="Electric vehicle: loop coloured by estimated curvature",
         )
-        files.append(_save(p, out / "ev_path.png"))
+        _lap_legends(p.figure)
+        figures.append(
+            _Figure(
+                _save(p, out / "ev_path.png"),
+                "Electric vehicle: the loop coloured by estimated curvature, with the Frenet "
+                "frame every 40 m (none where the normal is undefined).",
+            )
+        )
         p = plot.profile(
             k,
             quantities=["speed", "curvature", "accel_tangential", "accel_normal"],
             title="Electric vehicle: profiles along each lap",
         )
-        lap0 = e.lap == 0
-        s_lap = e.distance[lap0] - e.distance[lap0][0]
-        _truth(p.axes[0], s_lap, e.speed[lap0], "true v (lap 0)")
-        _truth(p.axes[1], s_lap, np.abs(e.curvature[lap0]), "true κ (lap 0)")
-        _truth(p.axes[2], s_lap, e.accel_tangential[lap0], "true a_t (lap 0)")
-        _truth(p.axes[3], s_lap, e.accel_normal[lap0], "true a_n (lap 0)")
-        files.append(_save(p, out / "ev_profile.png"))
+        s_lap = e.distance[lap1] - e.distance[lap1][0]
+        _truth(p.axes[0], s_lap, e.speed[lap1], "true v (lap 1)")
+        _truth(p.axes[1], s_lap, np.abs(e.curvature[lap1]), "true κ (lap 1)")
+        _truth(p.axes[2], s_lap, e.accel_tangential[lap1], "true a_t (lap 1)")
+        _truth(p.axes[3], s_lap, e.accel_normal[lap1], "true a_n (lap 1)")
+        _lap_legends(p.figure)
+        figures.append(
+            _Figure(
+                _save(p, out / "ev_profile.png"),
+                f"Electric vehicle: speed, curvature, a_t and a_n along laps 1 to {laps} with "
+                "95 % bands, the truth of lap 1 dashed; shaded: flagged samples.",
+            )
+        )
         p = plot.gg(k, limits=[DEMO_LIMIT], title="Electric vehicle: acceleration share")
-        files.append(_save(p, out / "ev_gg.png"))
+        # The truth of lap 1: lateral acceleration v²κ (signed, left turns positive) and a_t, in g.
+        lateral = e.speed[lap1] ** 2 * e.curvature[lap1] / STANDARD_GRAVITY
+        _truth(
+            p.axes,
+            lateral,
+            e.accel_tangential[lap1] / STANDARD_GRAVITY,
+            "truth (lap 1)",
+            loc="lower left",
+        )
+        _lap_legends(p.figure)
+        figures.append(
+            _Figure(
+                _save(p, out / "ev_gg.png"),
+                "Electric vehicle: g-g diagram, longitudinal a_t against lateral acceleration in "
+                f"g, the truth of lap 1 dashed, with one reference circle at {DEMO_LIMIT[0]} g "
+                "drawn only to show how a limit is labelled.",
+            )
+        )
         p = plot.work(
             k,
             values=w.cumulative,
             title="Electric vehicle: work of the logged resistance force, per lap",
         )
-        files.append(_save(p, out / "ev_work.png"))
-    return checks, text
+        # The true cumulative work of every lap against the true distance from the lap's first
+        # row, one dashed line broken between laps.
+        cut = first[1:]
+        s_true = e.distance - e.distance[first][e.lap]
+        _truth(
+            p.axes,
+            np.insert(s_true, cut, np.nan),
+            np.insert(e.cumulative_drag_work, cut, np.nan),
+            f"true W, totals {', '.join(f'{x / 1e3:.1f}' for x in e.drag_work)} kJ",
+            loc="upper right",
+        )
+        _lap_legends(p.figure)
+        figures.append(
+            _Figure(
+                _save(p, out / "ev_work.png"),
+                f"Electric vehicle: cumulative work of the logged resistance force along laps 1 to "
+                f"{laps}, with each lap's total, and the true work dashed.",
+            )
+        )
+        files += [fig.path for fig in figures]
+    return _Section(checks, text, k, figures)
 
 
-def _tracers(out: Any, figs: bool, files: list[Any]) -> tuple[list[Check], str]:
+def _tracers(out: Any, figs: bool, files: list[Any]) -> _Section:
     from .intrinsic import kinematics
     from .lineint import GridField
     from .lineint import work as line_work
@@ -557,18 +726,51 @@ nodes), against Γ(1 − exp(−r²/r_c²)).
 The worst track's radius is off by {100 * np.max(r_err):.1f} %: short tracks far from the centre
 turn through a few degrees only, and curvature from a short arc is uncertain.
 """
+    figures: list[_Figure] = []
     if figs:
         from . import plot
 
         p = plot.path(k, color="speed", title="Tracer particles: tracks coloured by speed")
-        files.append(_save(p, out / "tracers_path.png"))
-    return checks, text
+        figures.append(
+            _Figure(
+                _save(p, out / "tracers_path.png"),
+                f"Tracer particles: the {m} tracks round the vortex centre, coloured by estimated "
+                "speed.",
+            )
+        )
+        files += [fig.path for fig in figures]
+    return _Section(checks, text, k, figures)
 
 
-def _truth(ax: Any, x: F64, y: F64, label: str) -> None:
-    """Overlay a ground-truth curve (dashed) on a panel, with its own small legend."""
-    ax.plot(x, y, color=TRUTH, linestyle=(0, (4, 3)), linewidth=1.0, label=label, zorder=3)
-    ax.legend(loc="best", fontsize=7.5, framealpha=0.85)
+def _truth(ax: Any, x: F64, y: F64, label: str, loc: str = "best") -> None:
+    """Overlay a ground-truth curve (dashed) on a panel, named in a small legend of its own.
+
+    A legend the plot already drew on the panel (e.g. the totals of :func:`osculate.plot.work`)
+    stays the panel's legend, where it was; the truth's legend is added beside it at ``loc``.
+    """
+    from matplotlib.legend import Legend
+
+    (line,) = ax.plot(x, y, color=TRUTH, linestyle=(0, (4, 3)), linewidth=1.0, zorder=3)
+    style = {"loc": loc, "fontsize": 7.5, "framealpha": 0.85}
+    if ax.get_legend() is None:
+        ax.legend(handles=[line], labels=[label], **style)
+    else:
+        ax.add_artist(Legend(ax, [line], [label], **style))
+
+
+def _lap_legends(fig: Any) -> None:
+    """Name the tracks of a figure's legends laps: "track 2" reads "lap 2".
+
+    The electric vehicle has one track per lap, its track labels being the lap numbers.
+    """
+    from matplotlib.legend import Legend
+
+    panels = [c for a in fig.axes for c in a.get_children() if isinstance(c, Legend)]
+    for legend in [*fig.legends, *panels]:  # a figure's few legends
+        for text in legend.get_texts():  # a few entries each
+            label = text.get_text()
+            if label.startswith("track "):
+                text.set_text("lap " + label[len("track ") :])
 
 
 def _stops_text(k: Any) -> str:
@@ -587,21 +789,178 @@ def _save(p: Any, target: Any) -> Any:
     return target
 
 
+TABLE_HEADER = ("key figure", "estimated", "true", "error", "tolerance", "within")
+
+
 def _table(checks: list[Check]) -> str:
-    rows = [
-        "| key figure | estimated | true | error | tolerance | within |",
-        "|---|---|---|---|---|---|",
-    ]
-    for c in checks:
-        if c.relative:
-            err, tol = f"{100 * c.error:+.2f} %", f"{100 * c.tolerance:g} %"
-        else:
-            err, tol = f"{c.error:+.3g} {c.unit}", f"{c.tolerance:g} {c.unit}"
-        rows.append(
-            f"| {c.name} | {_fmt(c.estimated)} {c.unit} | {_fmt(c.true)} {c.unit} | {err} | {tol} "
-            f"| {'yes' if c.passed else 'NO'} |"
-        )
+    rows = ["| " + " | ".join(TABLE_HEADER) + " |", "|---|---|---|---|---|---|"]
+    rows += [f"| {c.name} | " + " | ".join(c.cells()) + " |" for c in checks]  # a few figures
     return "\n".join(rows)
+
+
+def text_table(checks: list[Check]) -> str:
+    """Return the key figures as a plain-text table with a header row, columns aligned.
+
+    Parameters
+    ----------
+    checks : list of Check
+        The key figures.
+
+    Returns
+    -------
+    str
+        A header row, a rule, then one row per key figure: the scenario and the figure's name
+        left-aligned, the numbers and the verdict right-aligned.
+
+    Examples
+    --------
+    >>> print(text_table([Check("drone", "radius", "m", 29.7, 30.0, 0.02)]))
+    scenario  key figure  estimated  true    error  tolerance  within
+    --------  ----------  ---------  ----  -------  ---------  ------
+    drone     radius         29.7 m  30 m  -1.00 %        2 %     yes
+    """
+    header = ("scenario", *TABLE_HEADER)
+    rows = [(c.scenario, c.name, *c.cells()) for c in checks]  # a few key figures
+    widths = [max(len(r[j]) for r in [header, *rows]) for j in range(len(header))]
+
+    def line(cells: tuple[str, ...]) -> str:
+        left = [cells[j].ljust(widths[j]) for j in range(2)]
+        right = [cells[j].rjust(widths[j]) for j in range(2, len(cells))]
+        return "  ".join(left + right)
+
+    return "\n".join([line(header), line(tuple("-" * w for w in widths)), *map(line, rows)])
+
+
+def summary_units(
+    columns: list[str], length: str = DEMO_LENGTH, time: str = DEMO_TIME
+) -> dict[str, str]:
+    """Return the unit of each summary column, with the input's length and time units filled in.
+
+    Parameters
+    ----------
+    columns : list of str
+        Column names of a per-track summary (``Kinematics.summary_arrays`` and a ``scenario``
+        label).
+    length, time : str
+        The input's length and time units, for "L" and "T" of ``osculate.SUMMARY_COLUMNS``.
+
+    Returns
+    -------
+    dict of str to str
+        Column → unit: read from the start of the column's description in
+        ``osculate.SUMMARY_COLUMNS`` (``"count"`` for numbers of rows or intervals), from
+        :data:`FIT_INFO_UNITS` for the fit information, empty for the labels ``scenario`` and
+        ``track`` and for a column of unknown unit.
+
+    Examples
+    --------
+    >>> summary_units(["track", "length", "max_accel_normal", "samples", "smoothing"])
+    {'track': '', 'length': 'm', 'max_accel_normal': 'm/s²', 'samples': 'count', 'smoothing': '1'}
+    """
+    units: dict[str, str] = {}
+    for name in columns:  # a few dozen columns
+        unit = ""
+        if name in SUMMARY_COLUMNS:
+            head = SUMMARY_COLUMNS[name].split(",", 1)[0].strip()
+            if _UNIT_HEAD.fullmatch(head):
+                unit = head
+            elif head.startswith(("rows", "samples", "number")):
+                unit = "count"
+        elif name not in LABEL_COLUMNS:
+            unit = FIT_INFO_UNITS.get(name, "")
+        units[name] = _LT.sub(lambda m: length if m.group() == "L" else time, unit)
+    return units
+
+
+#: The summary columns shown in report.md (summary.csv has them all).
+SUMMARY_SHOWN = (
+    "samples",
+    "length",
+    "duration",
+    "mean_speed",
+    "max_speed",
+    "max_accel_normal",
+    "min_radius",
+    "turning_angle",
+    "stops",
+    "stopped_time",
+)
+
+
+def _summary_table(summary: dict[str, np.ndarray], units: dict[str, str], many: str) -> str:
+    """Markdown table of a few summary columns, a units row under the header.
+
+    Tracks of the scenario ``many`` are shown as one row of medians over its tracks.
+    """
+    few = summary["scenario"] != many
+    cells = [summary["scenario"][few].astype(str), summary["track"][few].astype(str)]
+    medians = [many, f"median of {int(np.sum(~few))} tracks"]
+    for name in SUMMARY_SHOWN:  # a few columns
+        values = np.asarray(summary[name], dtype=float)
+        cells.append(np.char.mod("%.5g", values[few]))
+        medians.append(f"{np.nanmedian(values[~few]):.5g}" if np.any(~few) else "")
+    body = cells[0]
+    for column in cells[1:]:  # a few columns; each row's cells joined at once
+        body = np.char.add(np.char.add(body, " | "), column)
+    header = ("scenario", "track", *SUMMARY_SHOWN)
+    rows = [
+        "| " + " | ".join(header) + " |",
+        "|" + "---|" * len(header),
+        "| *unit* | | " + " | ".join(units[n] for n in SUMMARY_SHOWN) + " |",
+        *(f"| {line} |" for line in body.tolist()),  # a few rows of text
+        "| " + " | ".join(medians) + " |",
+    ]
+    return "\n".join(rows)
+
+
+def _plain(name: str) -> bool:
+    """Whether ``name`` is a bare file name (no folder part): all a manifest may delete."""
+    import pathlib
+
+    return (
+        name not in ("", ".", "..")
+        and "/" not in name
+        and "\\" not in name
+        and pathlib.PurePath(name).name == name
+    )
+
+
+def _previous_files(folder: Any) -> set[str]:
+    """Names of the files the previous run into ``folder`` wrote (empty without a manifest)."""
+    try:
+        data = json.loads((folder / MANIFEST).read_text(encoding="utf-8"))
+        names = data["files"] if isinstance(data, dict) else []
+    except (OSError, ValueError, KeyError):
+        return set()
+    if not isinstance(names, list):
+        return set()
+    return {n for n in names if isinstance(n, str) and _plain(n)}
+
+
+_DESCRIPTIONS = {
+    "drone_samples": "the survey drone's per-sample estimates (east, north, up in metres) with the "
+    "true speed and curvature",
+    "ev_samples": "the electric vehicle's per-sample estimates with its lap (1 to 3), the logged "
+    "force, power, cumulative work, and the true speed, curvature and cumulative work",
+    "ev_resampled": "points every metre along each lap, with the force",
+    "tracers_samples": "the tracer particles' per-sample estimates (track: particle id) with the "
+    "true speed",
+    "summary": "one row per track of every scenario",
+    "summary_units": "the unit of every column of `summary.csv`",
+    "checks": "the key figures: estimate, truth, signed error, tolerance",
+    "report": "this report",
+    "manifest": "the files this run wrote, so that the next run into this folder removes those "
+    "it does not write again",
+}
+
+
+def _listing(names: list[str], captions: dict[str, str]) -> str:
+    """Markdown list of the files, each a link with what it holds (a figure: its number)."""
+    lines = []
+    for name in names:  # a few files
+        what = captions.get(name) or _DESCRIPTIONS.get(name.split(".")[0], "")
+        lines.append(f"- [`{name}`]({name}): {what}" if what else f"- [`{name}`]({name})")
+    return "\n".join(lines)
 
 
 def run(out: Any, *, figures: Optional[bool] = None) -> Report:
@@ -617,14 +976,20 @@ def run(out: Any, *, figures: Optional[bool] = None) -> Report:
     Returns
     -------
     Report
-        The files written, the key figures and the run time.
+        The files written, the files of a previous run removed, the key figures and the run
+        time.
 
     Notes
     -----
-    Writes ``report.md``; per-sample results ``drone_samples``, ``ev_samples``,
-    ``tracers_samples`` and the resampled laps ``ev_resampled`` (Parquet with pyarrow, else
-    CSV); ``summary.csv`` (one row per track of every scenario); ``checks.csv`` (the key figures);
-    and, with matplotlib, the PNG figures.
+    Writes ``report.md`` (the figures embedded); per-sample results ``drone_samples``,
+    ``ev_samples``, ``tracers_samples`` and the resampled laps ``ev_resampled`` (Parquet with
+    pyarrow, else CSV); ``summary.csv`` (one row per track of every scenario) and
+    ``summary_units.json`` (the unit of each of its columns); ``checks.csv`` (the key figures);
+    with matplotlib, the PNG figures; and ``manifest.json``, the list of these files.
+
+    A run into a folder that holds a previous run's ``manifest.json`` deletes the files listed
+    there that it did not write again (e.g. the figures, when this run draws none); it touches
+    no other file of the folder.
 
     Examples
     --------
@@ -639,11 +1004,12 @@ def run(out: Any, *, figures: Optional[bool] = None) -> Report:
     import time
 
     from . import __version__
-    from .intrinsic import kinematics
 
     started = time.perf_counter()
     folder = pathlib.Path(out)
     folder.mkdir(parents=True, exist_ok=True)
+    previous = _previous_files(folder)
+    asked = figures
     if figures is None:
         try:
             import matplotlib  # noqa: F401
@@ -653,29 +1019,25 @@ def run(out: Any, *, figures: Optional[bool] = None) -> Report:
             figures = True
     files: list[Any] = []
     checks: list[Check] = []
-    sections = []
+    sections: list[_Section] = []
     for part in (_drone, _spiral, _tracers):  # three scenarios
-        c, text = part(folder, figures, files)
-        checks += c
-        sections.append(text)
-    # One row per track of every scenario.
-    from .geodesy import geodetic_to_enu
-
-    f, e, d = survey_flight(), spiral_loop(), swirl_tracers()
-    enu = geodetic_to_enu(f.lat, f.lon, f.height)
-    parts = [
-        ("survey drone", kinematics(f.t, enu, method="smooth", up=(0, 0, 1), min_speed=0.2)),
-        ("electric vehicle", kinematics(e.t, e.xy, method="smooth", tracks=e.lap)),
-        ("tracer particles", kinematics(d.t, d.xy, method="smooth", tracks=d.particle)),
-    ]
+        section = part(folder, figures, files)
+        checks += section.checks
+        sections.append(section)
+    # One row per track of every scenario: the summary of the kinematics each section reports.
+    scenarios = ("survey drone", "electric vehicle", "tracer particles")
     rows: dict[str, list[np.ndarray]] = {}
-    for scenario, k in parts:  # three scenarios
-        arrays = k.summary_arrays()
+    for scenario, section in zip(scenarios, sections):  # three scenarios
+        arrays = section.kinematics.summary_arrays()
         rows.setdefault("scenario", []).append(np.full(len(arrays["track"]), scenario))
         for key, value in arrays.items():
             rows.setdefault(key, []).append(np.asarray(value))
     summary = {key: np.concatenate(v) for key, v in rows.items()}
+    units = summary_units(list(summary))
     files.append(_write_csv(folder / "summary.csv", summary))
+    units_file = folder / "summary_units.json"
+    units_file.write_text(json.dumps(units, ensure_ascii=False, indent=1) + "\n", "utf-8")
+    files.append(units_file)
     files.append(
         _write_csv(
             folder / "checks.csv",
@@ -685,25 +1047,51 @@ def run(out: Any, *, figures: Optional[bool] = None) -> Report:
                 "unit": np.array([c.unit for c in checks]),
                 "estimated": np.array([c.estimated for c in checks]),
                 "true": np.array([c.true for c in checks]),
+                "error": np.array([c.error for c in checks]),
                 "tolerance": np.array([c.tolerance for c in checks]),
                 "relative": np.array([c.relative for c in checks]),
                 "within": np.array([c.passed for c in checks]),
             },
         )
     )
-    seconds = time.perf_counter() - started
     report = folder / "report.md"
-    listing = "\n".join(f"- `{p.name}`" for p in [*files, report])
-    plots = (
-        "The PNG figures show the paths, the profiles with the ground truth dashed, a g-g diagram "
-        "and the work along each lap."
-        if figures
-        else "No figures: they need matplotlib, `pip install 'osculate[plot]'`."
-    )
+    manifest = folder / MANIFEST
+    names = [p.name for p in [*files, report, manifest]]
+    stale = sorted(previous - set(names))
+    seconds = time.perf_counter() - started
+    if figures:
+        plots = (
+            "The figures follow each scenario's key figures, the ground truth dashed wherever "
+            "the scenario knows it."
+        )
+    elif asked is None:
+        plots = "No figures: they need matplotlib, `pip install 'osculate[plot]'`."
+    else:
+        plots = "No figures: this run was asked not to draw them (`figures=False`)."
     verdict = (
         "Every key figure is within its stated tolerance."
         if all(c.passed for c in checks)
         else "SOME KEY FIGURES ARE OUTSIDE THEIR TOLERANCE (marked NO)."
+    )
+    body = []
+    captions: dict[str, str] = {}
+    for section in sections:  # three scenarios, a few figures each
+        body.append(section.text)
+        for fig in section.figures:
+            captions[fig.path.name] = f"Figure {len(captions) + 1}"
+            number = captions[fig.path.name]
+            body.append(f"![{fig.caption}]({fig.path.name})\n\n*{number}. {fig.caption}*\n")
+    cleanup = (
+        "This run removed the files of an earlier run into this folder that it did not write "
+        f"again: {', '.join(f'`{n}`' for n in stale)}."
+        if stale
+        else ""
+    )
+    reference = (
+        "- Reference values drawn on a figure are the caller's, each named with its source; this "
+        f"demo's\n  only one ({DEMO_LIMIT[0]} g) is invented and comes from no code or standard.\n"
+        if figures
+        else ""
     )
     report.write_text(
         f"""# osculate demo report
@@ -711,26 +1099,58 @@ def run(out: Any, *, figures: Optional[bool] = None) -> Report:
 Written by `osculate demo` (osculate {__version__}) in {seconds:.1f} s. The three scenarios are
 invented: generated by `osculate.demo` with fixed seeds, so the ground truth is known exactly and
 every estimate below is compared with it. {verdict}
+{plots}
 
-{chr(10).join(sections)}
+The key-figure tables give each estimate, the truth, the error and the tolerance. The error is
+signed and relative, (estimated − true) / true, so −1 % means the estimate falls 1 % short of the
+truth in size; figures that are themselves error percentages (the tracer particles' first two)
+give the difference estimated − true instead.
+
+{chr(10).join(body)}
+## Per-track summary
+
+`summary.csv` has one row per track of every scenario (the survey drone's one track, the electric
+vehicle's laps 1 to 3, the tracer particles by id) with every column of `osculate.SUMMARY_COLUMNS`
+and then the smoothing spline's fit information; it summarizes the kinematics each section above
+reports on.
+
+Units: `osculate.SUMMARY_COLUMNS` gives every column's unit in the input's length and time units,
+L and T. The three scenarios are given in metres and seconds (the drone after
+`osc.geodetic_to_enu`), so here L = {DEMO_LENGTH} and T = {DEMO_TIME}. `summary_units.json` maps
+each column of `summary.csv` to its unit so read: `count` for numbers of rows or intervals, `1`
+for dimensionless numbers, `samples` for a width in samples, empty for the labels `scenario` and
+`track`. The table shows a few of the columns, with their units in the row under the header; the
+tracer particles' row holds the median of each column over the tracks.
+
+{_summary_table(summary, units, "tracer particles")}
+
 ## Files
 
-{listing}
+{_listing(names, captions)}
 
 Per-sample tables hold the estimates on the logged rows (`flags` are bits of `osculate.Flag`:
-1 STOPPED, 2 STRAIGHT, 4 EDGE, 8 GAP, 16 INVALID) and, for comparison, the true speed and
-curvature. `summary.csv` has one row per track of each scenario, `checks.csv` the key figures.
-{plots}
+1 STOPPED, 2 STRAIGHT, 4 EDGE, 8 GAP, 16 INVALID) and, for comparison, the truth. In
+`checks.csv` the `error` and `tolerance` of a relative check are fractions (0.01 is 1 %).
+{cleanup}
 
 ## Cautions
 
 - {CAUTION}
-- Reference values drawn on a figure are the caller's, each named with its source; this demo's
-  only one ({DEMO_LIMIT[0]} g) is invented and comes from no code or standard.
-- Smoothing trades noise for bias: corners of curvature (a straight meeting a circle) are rounded
-  off over the smoothing bandwidth, and estimates within about one bandwidth of a track's ends
-  (EDGE) are less accurate. Check estimates against the raw path before trusting them.
-"""
+{reference}- Smoothing trades noise for bias: corners of curvature (a straight meeting a circle) are
+  rounded off over the smoothing bandwidth, and estimates within about one bandwidth of a track's
+  ends (EDGE) are less accurate. Check estimates against the raw path before trusting them.
+""",
+        encoding="utf-8",
     )
     files.append(report)
-    return Report(folder, report, files, checks, seconds, bool(figures))
+    removed = []
+    for name in stale:  # the previous run's few files
+        path = folder / name
+        if path.is_symlink() or path.is_file():
+            path.unlink(missing_ok=True)
+            removed.append(path)
+    manifest.write_text(
+        json.dumps({"written_by": "osculate demo", "files": names}, indent=1) + "\n", "utf-8"
+    )
+    files.append(manifest)
+    return Report(folder, report, files, checks, seconds, bool(figures), removed)
