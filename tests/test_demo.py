@@ -6,7 +6,9 @@ ground truth, with the tolerances stated beside each check (the same as in the r
 """
 
 import csv
+import json
 import re
+import shutil
 import subprocess
 import sys
 import textwrap
@@ -72,6 +74,24 @@ def test_spiral_loop_closes_and_keeps_its_radius():
     assert np.allclose(np.linalg.norm(e.force, axis=1), e.resistance(e.speed))
 
 
+def test_spiral_loop_true_work_along_each_lap():
+    e = demo.spiral_loop()
+    laps = len(e.drag_work)
+    first = np.searchsorted(e.lap, np.arange(laps))
+    last = np.searchsorted(e.lap, np.arange(laps), side="right") - 1
+    # Zero at each lap's first row, the lap's drag_work at its last (the generator's definition).
+    assert np.all(e.cumulative_drag_work[first] == 0.0)
+    assert np.allclose(e.cumulative_drag_work[last], e.drag_work, rtol=1e-12)
+    # −∫ R(v) ds by the trapezoid rule over the rows' true distance and speed: an independent
+    # quadrature; its error on ~0.7 m steps is about h²/12 · R'' · 600 m ≈ 0.3 J of 62 kJ.
+    r = e.resistance(e.speed)
+    same = e.lap[1:] == e.lap[:-1]
+    step = np.where(same, 0.5 * (r[1:] + r[:-1]) * np.diff(e.distance), 0.0)
+    lap_start = np.concatenate([[0.0], np.cumsum(step)])[first][e.lap]
+    trapezoid = -(np.concatenate([[0.0], np.cumsum(step)]) - lap_start)
+    assert np.allclose(e.cumulative_drag_work, trapezoid, rtol=0, atol=1.0)  # J
+
+
 def test_survey_flight_geodesy_matches_pymap3d():
     import pymap3d
 
@@ -134,7 +154,9 @@ def test_swirl_tracers_circles_and_circulation():
 PROMISED = [
     "report.md",
     "summary.csv",
+    "summary_units.json",
     "checks.csv",
+    "manifest.json",
     "drone_samples.parquet",
     "ev_samples.parquet",
     "ev_resampled.parquet",
@@ -147,6 +169,16 @@ PROMISED = [
     "ev_work.png",
     "tracers_path.png",
 ]
+
+
+def report_errors(text):
+    """Error column of report.md's key-figure tables: name → the number shown."""
+    shown = {}
+    for line in text.splitlines():
+        cells = [c.strip() for c in line.strip().strip("|").split("|")]
+        if len(cells) == 6 and cells[0] not in ("key figure", "---"):
+            shown[cells[0]] = float(cells[3].split()[0])
+    return shown
 
 
 def report_rows(text):
@@ -184,7 +216,7 @@ def test_demo_exits_0_and_writes_every_file(demo_run):
     import pyarrow.parquet as pq
 
     table = pq.read_table(out / "ev_samples.parquet")
-    assert {"track", "t", "speed", "curvature", "flags", "work", "power"} <= set(table.column_names)
+    assert {"lap", "t", "speed", "curvature", "flags", "work", "power"} <= set(table.column_names)
     assert table.num_rows == len(demo.spiral_loop().t)  # every logged row, none dropped
 
 
@@ -229,10 +261,11 @@ def test_report_estimates_match_the_ground_truth(demo_run):
     # Electric vehicle, truth from the loop's geometry and the logged force's model.
     assert abs(est("bend radius") / 35.0 - 1) < 0.02
     assert abs(est("clothoid rate") / (1 / (35.0 * 40.0)) - 1) < 0.05
+    # Laps are numbered from 1 in the report; the generator's arrays are indexed from 0.
     lap = int(re.search(r"length of lap (\d)", " ".join(rows)).group(1))
-    assert abs(est("length of lap") / e.lap_distance[lap] - 1) < 0.005
+    assert abs(est("length of lap") / e.lap_distance[lap - 1] - 1) < 0.005
     lap = int(re.search(r"resistance force, lap (\d)", " ".join(rows)).group(1))
-    assert abs(est("work of the resistance force") / e.drag_work[lap] - 1) < 0.01
+    assert abs(est("work of the resistance force") / e.drag_work[lap - 1] - 1) < 0.01
     # Tracers: per-track median errors in percent; circulation Γ(1 − exp(−r²/r_c²)).
     assert 0 <= est("radius of curvature") < 2.0
     assert 0 <= est("speed: median") < 1.0
@@ -254,6 +287,149 @@ def test_checks_csv_agrees_with_the_report(demo_run):
         assert np.isclose(float(c["estimated"]), est, rtol=1e-4)
         assert np.isclose(float(c["true"]), true, rtol=1e-4, atol=1e-12)
         assert c["within"] == "True"
+
+
+def test_checks_csv_has_the_signed_error(demo_run):
+    out, _ = demo_run
+    with (out / "checks.csv").open() as fh:
+        checks = list(csv.DictReader(fh))
+    shown = report_errors((out / "report.md").read_text())
+    relative = [c for c in checks if c["relative"] == "True"]
+    assert len(relative) == 14  # all but the tracers' two error percentages
+    for c in checks:
+        est, true, err = float(c["estimated"]), float(c["true"]), float(c["error"])
+        # The definition: (estimated − true) / true for a relative check, else estimated − true;
+        # the CSV's floats round-trip, so only the last bits of the division may differ.
+        want = (est - true) / true if c["relative"] == "True" else est - true
+        assert abs(err - want) <= 1e-12, c["figure"]
+        # The same number as report.md's error column: percent with 2 decimals (±0.005 %), or
+        # 3 significant digits of the difference (±0.5 % of it).
+        if c["relative"] == "True":
+            assert abs(shown[c["figure"]] / 100 - err) <= 0.5e-4, c["figure"]
+        else:
+            assert np.isclose(shown[c["figure"]], err, rtol=5e-3), c["figure"]
+    # The sign: an estimate short of a negative truth (less work done) is a negative error.
+    c = report.Check("s", "x", "J", estimated=-99.0, true=-100.0, tolerance=0.02)
+    assert np.isclose(c.error, -0.01)
+
+
+def links(text):
+    """Targets of the Markdown images and of the other links of a text."""
+    images = re.findall(r"!\[[^\]]*\]\(([^)\s]+)\)", text)
+    others = re.findall(r"(?<!!)\[[^\]]*\]\(([^)\s]+)\)", text)
+    return images, others
+
+
+def test_report_embeds_every_figure_and_its_links_resolve(demo_run):
+    out, _ = demo_run
+    text = (out / "report.md").read_text()
+    images, others = links(text)
+    for target in images + others:
+        assert (out / target).is_file(), target
+    pngs = sorted(p.name for p in out.glob("*.png"))
+    assert len(pngs) == 7
+    assert sorted(images) == pngs  # every figure embedded, once
+    assert set(pngs) <= set(others)  # and listed among the files
+    # Each image is followed by its one-line caption, numbered in order.
+    captions = re.findall(r"!\[[^\]]*\]\([^)]+\)\n\n\*Figure (\d+)\. [^\n]+\*\n", text)
+    assert captions == [str(i) for i in range(1, 8)]
+    # Every file of the folder is linked from the Files section.
+    assert sorted(others) == sorted(p.name for p in out.iterdir())
+
+
+def test_laps_are_numbered_from_1(demo_run):
+    out, _ = demo_run
+    import pyarrow.parquet as pq
+
+    text = (out / "report.md").read_text()
+    assert not re.search(r"\blaps? 0\b", text)
+    e = demo.spiral_loop()
+    laps = len(e.lap_distance)
+    for name in ("ev_samples.parquet", "ev_resampled.parquet"):
+        lap = pq.read_table(out / name).column("lap").to_numpy()
+        assert lap.min() == 1 and lap.max() == laps, name
+    with (out / "summary.csv").open() as fh:
+        tracks = [r["track"] for r in csv.DictReader(fh) if r["scenario"] == "electric vehicle"]
+    assert tracks == [str(i) for i in range(1, laps + 1)]
+    # The lap lengths of the truth differ from the loop's design length: the report says why.
+    flat = " ".join(text.split())
+    assert f"{e.lap_length:.3f} m long by design" in flat
+    assert ", ".join(f"{x:.2f}" for x in e.lap_distance) + f" m for laps 1 to {laps}" in flat
+    assert "start/finish line in the middle of a straight" in flat
+
+
+def test_summary_units_cover_every_column(demo_run):
+    import osculate as osc
+
+    out, _ = demo_run
+    units = json.loads((out / "summary_units.json").read_text())
+    with (out / "summary.csv").open() as fh:
+        header = next(csv.reader(fh))
+    assert list(units) == header
+    assert {k for k, v in units.items() if not v} == {"scenario", "track"}  # labels only
+    assert set(osc.SUMMARY_COLUMNS) <= set(units)
+    # From osc.SUMMARY_COLUMNS ("length": "L, path length", "mean_speed": "L/T, ...",
+    # "max_accel_normal": "L/T², ...", "turning_angle": "rad, ...", "samples": "rows of the
+    # track") with the demo's L = m and T = s; fit information from Kinematics.fit_info's
+    # documentation (λ* dimensionless, the equivalent kernel's bandwidth in samples).
+    assert units["length"] == "m" and units["max_speed_at"] == "s"
+    assert units["mean_speed"] == "m/s" and units["max_accel_normal"] == "m/s²"
+    assert units["max_jerk_magnitude"] == "m/s³" and units["turning_angle"] == "rad"
+    assert units["samples"] == units["stops"] == "count"
+    assert units["smoothing"] == "1" and units["bandwidth"] == "samples"
+    # report.md's summary table: a units row under the header, the same units.
+    lines = (out / "report.md").read_text().splitlines()
+    at = lines.index(next(ln for ln in lines if ln.startswith("| scenario | track |")))
+    names = [c.strip() for c in lines[at].strip("|").split("|")]
+    row = [c.strip() for c in lines[at + 2].strip("|").split("|")]
+    assert row[0] == "*unit*"
+    assert row[2:] == [units[n] for n in names[2:]]
+
+
+def test_demo_stdout_table_has_a_header_row(demo_run):
+    out, proc = demo_run
+    lines = proc.stdout.splitlines()
+    header = ["scenario", "key figure", "estimated", "true", "error", "tolerance", "within"]
+    assert re.split(r"\s{2,}", lines[0].strip()) == header
+    assert set(lines[1]) == {"-", " "}
+    with (out / "checks.csv").open() as fh:
+        checks = list(csv.DictReader(fh))
+    rows = lines[2 : 2 + len(checks)]
+    # Aligned: every row as wide as the header, each column starting where the rule's does.
+    starts = [m.start() for m in re.finditer(r"-+", lines[1])]
+    assert len(starts) == len(header)
+    for line, c in zip(rows, checks):
+        assert len(line) == len(lines[0])
+        assert line.startswith(c["scenario"]) and line[starts[1] :].startswith(c["figure"])
+        assert line.endswith("yes")
+
+
+def test_a_second_run_removes_only_the_stale_files(demo_run, tmp_path):
+    # The module's demo run drew figures; a second run into a copy of its folder draws none.
+    first, _ = demo_run
+    out = tmp_path / "again"
+    shutil.copytree(first, out)
+    (out / "notes.txt").write_text("mine")  # a foreign file
+    (out / "my_plot.png").write_bytes(b"mine")  # a foreign figure, never in the manifest
+    outside = tmp_path / "outside.txt"
+    outside.write_text("mine")
+    manifest = json.loads((out / "manifest.json").read_text())
+    written = set(manifest["files"])
+    # A manifest naming files out of the folder must not reach them.
+    manifest["files"] += ["../outside.txt", str(outside), "sub/x.png"]
+    (out / "manifest.json").write_text(json.dumps(manifest))
+    rep = report.run(out, figures=False)
+    now = {p.name for p in out.iterdir()}
+    figures = {n for n in written if n.endswith(".png")}
+    assert len(figures) == 7
+    assert not figures & now  # the first run's figures are gone
+    assert {p.name for p in rep.removed} == figures
+    assert {"notes.txt", "my_plot.png"} <= now and outside.read_text() == "mine"
+    assert now == (written - figures) | {"notes.txt", "my_plot.png"}
+    assert set(json.loads((out / "manifest.json").read_text())["files"]) == written - figures
+    text = (out / "report.md").read_text()
+    assert "No figures: this run was asked not to draw them" in text
+    assert "removed the files of an earlier run" in text
 
 
 def test_summary_has_one_row_per_track(demo_run):
@@ -294,7 +470,11 @@ def test_demo_on_a_numpy_only_install(tmp_path):
         assert (out / f"{stem}.csv").stat().st_size > 0
     text = (out / "report.md").read_text()
     assert "No figures: they need matplotlib, `pip install 'osculate[plot]'`" in text
+    assert text.count("No figures") == 1  # said once
+    assert "![" not in text and ".png" not in text and "Figure " not in text  # none described
     assert "local codes and licensed engineers decide" in " ".join(text.split())
+    _, others = links(text)
+    assert sorted(others) == sorted(names)  # every file linked, each link resolves
     with (out / "ev_samples.csv").open() as fh:
         assert sum(1 for _ in fh) == len(demo.spiral_loop().t) + 1
 

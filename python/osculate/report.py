@@ -199,7 +199,7 @@ def _write_table(path: Any, columns: dict[str, np.ndarray]) -> Any:
         import pyarrow.parquet as pq
     except ImportError:
         target = path.with_suffix(".csv")
-        with target.open("w", newline="") as fh:
+        with target.open("w", newline="", encoding="utf-8") as fh:
             w = csv.writer(fh)
             w.writerow(list(columns))
             w.writerows(zip(*(np.asarray(c).tolist() for c in columns.values())))
@@ -212,7 +212,7 @@ def _write_table(path: Any, columns: dict[str, np.ndarray]) -> Any:
 def _write_csv(path: Any, columns: dict[str, np.ndarray]) -> Any:
     import csv
 
-    with path.open("w", newline="") as fh:
+    with path.open("w", newline="", encoding="utf-8") as fh:
         w = csv.writer(fh)
         w.writerow(list(columns))
         w.writerows(zip(*(np.asarray(c).tolist() for c in columns.values())))
