@@ -539,8 +539,8 @@ heading is the exact integral of the curvature and the positions are integrated 
 numerically (exact to about 1e-12 m). Positions are logged at about 20 Hz with clock jitter and
 {e.noise * 100:.0f} cm noise per axis, and the resistance force (drag with CdA = {e.drag_area} m²
 plus rolling resistance Crr = {e.rolling}) with {e.force_noise:.0f} N noise. {len(e.t)} samples,
-one track per lap; laps are numbered 1 to {laps} here, in the tables (column `lap`; the `track` of
-`summary.csv`) and in the figures.
+one track per lap; laps are numbered 1 to {laps} here and in the tables (column `lap`; the `track`
+of `summary.csv`){" and figures" if figs else ""}.
 
 Lap lengths: the loop is {lap_len:.3f} m long by design, 2 × (straight + clothoid + πR). A lap's
 true length below is the distance driven between its first and last logged rows,
@@ -1082,7 +1082,7 @@ def run(out: Any, *, figures: Optional[bool] = None) -> Report:
             number = captions[fig.path.name]
             body.append(f"![{fig.caption}]({fig.path.name})\n\n*{number}. {fig.caption}*\n")
     cleanup = (
-        "This run removed the files of an earlier run into this folder that it did not write "
+        "\n\nThis run removed the files of an earlier run into this folder that it did not write "
         f"again: {', '.join(f'`{n}`' for n in stale)}."
         if stale
         else ""
@@ -1130,8 +1130,7 @@ tracer particles' row holds the median of each column over the tracks.
 
 Per-sample tables hold the estimates on the logged rows (`flags` are bits of `osculate.Flag`:
 1 STOPPED, 2 STRAIGHT, 4 EDGE, 8 GAP, 16 INVALID) and, for comparison, the truth. In
-`checks.csv` the `error` and `tolerance` of a relative check are fractions (0.01 is 1 %).
-{cleanup}
+`checks.csv` the `error` and `tolerance` of a relative check are fractions (0.01 is 1 %).{cleanup}
 
 ## Cautions
 
