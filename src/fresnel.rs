@@ -418,7 +418,9 @@ mod tests {
     fn clothoid_integral_matches_quadrature() {
         // Every branch (a = 0, |a| small with |b| ≤ 1.1, 1.1 < |b| < 20 and |b| ≥ 20, a ≥ SMALL_A,
         // a < 0) against composite Gauss–Legendre (exact to rounding for these smooth integrands).
-        for &a in &[0.0, 1e-12, -3e-7, 0.05, -0.099, 0.1, 0.7, -2.0, 15.0, 80.0, 900.0] {
+        for &a in &[
+            0.0, 1e-12, -3e-7, 0.05, -0.099, 0.1, 0.7, -2.0, 15.0, 80.0, 900.0,
+        ] {
             for &b in &[0.0, 0.3, -1.05, 1.2, 5.5, -12.0, 19.5, 25.0, -60.0, 300.0] {
                 let got = integral(a, b);
                 let want = quadrature(a, b, 256);

@@ -13,6 +13,7 @@ pub mod batch;
 pub mod bspline;
 pub mod diagnose;
 pub mod diff;
+pub mod elements;
 pub mod error;
 pub mod field;
 pub mod fit;

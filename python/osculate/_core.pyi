@@ -11,6 +11,7 @@ __all__ = [
     "__version__",
     "enu_to_geodetic",
     "fd_kinematics",
+    "find_elements",
     "fit_paths",
     "geodetic_to_enu",
     "grid_eval",
@@ -52,6 +53,23 @@ def track_stats(
     offsets: npt.NDArray[np.int64],
     acceleration: npt.NDArray[np.float64],
 ) -> dict[str, npt.NDArray[np.float64]]: ...
+def find_elements(
+    t: npt.NDArray[np.float64],
+    arclength: npt.NDArray[np.float64],
+    curvature: npt.NDArray[np.float64],
+    se: npt.NDArray[np.float64],
+    flags: npt.NDArray[np.uint8],
+    positions: npt.NDArray[np.float64],
+    offsets: npt.NDArray[np.int64],
+    *,
+    penalty: float,
+    min_length: npt.NDArray[np.float64],
+    correlation: npt.NDArray[np.float64],
+    significance: float,
+    resolution: float,
+    refine: bool,
+    max_iterations: int,
+) -> dict[str, npt.NDArray[Any]]: ...
 def summarize(
     t: npt.NDArray[np.float64],
     flags: npt.NDArray[np.uint8],

@@ -1,6 +1,7 @@
 //! PyO3 bindings: borrow NumPy arrays, release the interpreter, call a kernel, wrap the result.
 //! Nothing numerical happens here.
 
+mod elements;
 mod error;
 mod fit;
 mod geodesy;
@@ -21,6 +22,7 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(kinematics::polyline_arclength, m)?)?;
     m.add_function(wrap_pyfunction!(kinematics::track_stats, m)?)?;
     m.add_function(wrap_pyfunction!(summary::summarize, m)?)?;
+    m.add_function(wrap_pyfunction!(elements::find_elements, m)?)?;
     m.add_function(wrap_pyfunction!(fit::fit_paths, m)?)?;
     m.add_class::<fit::FittedPaths>()?;
     m.add_function(wrap_pyfunction!(fit::rotation_minimizing, m)?)?;
