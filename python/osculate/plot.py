@@ -6,10 +6,19 @@ Needs matplotlib: ``pip install 'osculate[plot]'``. Every function takes a :clas
 ``show()`` or touches pyplot's global state, so the functions are safe in scripts, servers and
 notebooks (where a :class:`Plot` displays itself).
 
-Units are labels only: positions and times are taken as they are. The defaults are metres and
-seconds; pass ``units={"length": "km", "time": "h"}`` (or a unit per quantity, e.g.
-``{"speed": "km/h"}``) when the data are in other units. :func:`gg` needs SI accelerations since
-it divides by standard gravity.
+Units. Positions and times are taken as metres and seconds unless ``units`` says otherwise
+(``units={"length": "km", "time": "h"}``, or a unit per quantity such as ``{"speed": "km/h"}``);
+those are labels only, the data are not converted. With positions in metres, lengths (positions,
+arc length, radius) are *shown* in the unit that keeps the ticks readable: millimetres when the
+path's extent is below 0.5 m, kilometres above 50 km, else metres (``length_unit="auto"``; pass
+``"mm"``, ``"m"``, ``"km"``, ... to choose). Only the tick labels change: the drawn data stay in
+the caller's units, so curves added to the axes afterwards line up. Rates (speed, acceleration,
+curvature) stay in the data's units. :func:`gg` needs SI accelerations since it divides by
+standard gravity.
+
+Cautions. Every figure that shows lateral (normal) acceleration, total acceleration, jerk or
+radius of curvature carries :data:`CAUTION` in small muted type: such values estimated from
+logged data are indicative, not a safety assessment.
 """
 
 from __future__ import annotations
@@ -26,10 +35,10 @@ try:
     from matplotlib.collections import LineCollection, PolyCollection
     from matplotlib.colors import Colormap, Normalize
     from matplotlib.figure import Figure
-    from matplotlib.layout_engine import ConstrainedLayoutEngine
     from matplotlib.lines import Line2D
     from matplotlib.patches import Circle, Patch
-    from matplotlib.ticker import MaxNLocator
+    from matplotlib.ticker import Formatter, MaxNLocator
+    from matplotlib.transforms import Bbox
 except ImportError as exc:  # pragma: no cover - depends on the environment
     raise ImportError(
         "osculate.plot needs matplotlib; install it with: pip install 'osculate[plot]'"
@@ -40,7 +49,7 @@ from . import _palette as palette
 from .flags import Flag
 from .intrinsic import Kinematics
 
-__all__ = ["STANDARD_GRAVITY", "Plot", "gg", "path", "profile", "work"]
+__all__ = ["CAUTION", "LIMITS_CAUTION", "STANDARD_GRAVITY", "Plot", "gg", "path", "profile", "work"]
 
 F64 = npt.NDArray[np.float64]
 Units = Optional[Mapping[str, str]]
@@ -49,10 +58,17 @@ Limits = Union[Mapping[str, float], Sequence[Any], None]
 STANDARD_GRAVITY = 9.80665
 """Standard gravity in m/s² (SI brochure; 3rd CGPM, 1901): the g of :func:`gg`."""
 
-LIMITS_CAUTION = (
-    "Reference circles are indicative only: local codes and licensed engineers decide what is "
-    "acceptable for a road, track, ride or vehicle."
+CAUTION = (
+    "Indicative values from logged data; local codes and licensed engineers decide acceptability."
 )
+"""The caution line of every figure that shows lateral acceleration, jerk or radius."""
+
+LIMITS_CAUTION = "Reference circles are indicative only; their values and sources:"
+"""Follows :data:`CAUTION` on a g-g diagram with reference circles, before each source."""
+
+#: Quantities whose figures carry :data:`CAUTION`: lateral (normal) acceleration, the total
+#: acceleration (it contains the lateral part), jerk and radius of curvature.
+CAUTIONED = frozenset({"accel_normal", "acceleration", "jerk", "radius"})
 
 # -- visual design ------------------------------------------------------------------------------
 _INK = palette.INK
@@ -61,19 +77,28 @@ _GRID = palette.GRID
 _LINE = palette.LINE
 _UNDEFINED = palette.UNDEFINED
 _GLYPHS = palette.GLYPHS
-_FLAG_STYLE = {  # colour, description
-    Flag.STOPPED: (palette.FLAGS["STOPPED"], "STOPPED: not moving (speed within noise)"),
-    Flag.STRAIGHT: (palette.FLAGS["STRAIGHT"], "STRAIGHT: curvature within noise of 0"),
-    Flag.VAGUE: (palette.FLAGS["VAGUE"], "VAGUE: curvature too uncertain to use"),
-    Flag.GAP: (palette.FLAGS["GAP"], "GAP: spans a long time step"),
-    Flag.INVALID: (palette.FLAGS["INVALID"], "INVALID: non-finite input row"),
-    Flag.EDGE: (palette.FLAGS["EDGE"], "EDGE: near a track end, less accurate"),
+_FLAG_TEXT = {
+    Flag.STOPPED: "STOPPED: not moving (speed within noise)",
+    Flag.STRAIGHT: "STRAIGHT: curvature within noise of 0",
+    Flag.VAGUE: "VAGUE: curvature too uncertain to use",
+    Flag.GAP: "GAP: spans a long time step",
+    Flag.INVALID: "INVALID: non-finite input row",
+    Flag.EDGE: "EDGE: near a track end, less accurate",
 }
+_FLAG_STYLE = {  # colour, hatch, description
+    f: (palette.FLAGS[f.name], palette.HATCHES[f.name], text) for f, text in _FLAG_TEXT.items()
+}
+#: Samples drawn hollow (less reliable: EDGE, GAP, STOPPED) or not at all (INVALID) by :func:`gg`.
+GG_DOUBTFUL = Flag.EDGE | Flag.GAP | Flag.STOPPED | Flag.INVALID
 #: Half-width of the shaded bands in standard errors (two-sided 95 % of a normal distribution).
 BAND_Z = 1.96
 _REFERENCE_STYLES = list(
     zip(palette.REFERENCES, [(0, (5, 3)), (0, (2, 2)), (0, (8, 3, 2, 3)), (0, (1, 1))])
 )
+#: Display units of length per metre, for ``length_unit``.
+LENGTH_UNITS = {"µm": 1e6, "um": 1e6, "mm": 1e3, "cm": 1e2, "m": 1.0, "km": 1e-3}
+_SMALL, _LARGE = 0.5, 50e3  # auto length unit: mm below 0.5 m of extent, km above 50 km
+_CAUTION_SIZE = 7.5  # points
 
 # name: (label, unit template); {L} length, {T} time, {F} force, {E} energy.
 _QUANTITIES: dict[str, tuple[str, str]] = {
@@ -322,26 +347,152 @@ def _style(ax: Any, *, grid: bool = True) -> None:
         ax.set_axisbelow(True)
 
 
+def _wrap(text: str, fig: Figure, size: float, share: float = 0.92, em: float = 0.55) -> str:
+    """Wrap text to about ``share`` of the figure's width (``em``: mean glyph width in ems)."""
+    chars = max(24, int(fig.get_figwidth() * 72.0 * share / (em * size)))
+    return "\n".join(textwrap.wrap(text, chars)) or text
+
+
 def _title(ax: Any, title: Optional[str], subtitle: Optional[str]) -> None:
-    if title:
-        ax.set_title(title, loc="left", fontsize=11, color=_INK, fontweight="bold", pad=14)
+    """Title above subtitle, stacked so that they never overlap.
+
+    The subtitle is the axes' left title (small, muted); the title is an annotation anchored on
+    top of it, so their sizes and line counts do not matter. Both count in the axes' tight box,
+    so constrained layout makes room for them, on 2-D and 3-D axes alike. Both are wrapped to
+    the figure's width.
+    """
+    fig = ax.figure
     if subtitle:
-        place = ax.text2D if hasattr(ax, "text2D") else ax.text  # 3-D axes take 2-D text apart
-        place(
-            0.0,
-            1.01,
-            subtitle,
-            transform=ax.transAxes,
-            fontsize=8.5,
-            color=_MUTED,
-            va="bottom",
-            ha="left",
+        anchor = ax.set_title(
+            _wrap(subtitle, fig, 8.5), loc="left", fontsize=8.5, color=_MUTED, pad=6.0
+        )
+        if title:
+            ax.annotate(
+                _wrap(title, fig, 11.0, em=0.62),
+                xy=(0.0, 1.0),
+                xycoords=anchor,
+                xytext=(0.0, 4.0),
+                textcoords="offset points",
+                ha="left",
+                va="bottom",
+                fontsize=11,
+                color=_INK,
+                fontweight="bold",
+                annotation_clip=False,
+            )
+    elif title:
+        ax.set_title(
+            _wrap(title, fig, 11.0, em=0.62),
+            loc="left",
+            fontsize=11,
+            color=_INK,
+            fontweight="bold",
+            pad=8.0,
         )
 
 
+def _caution(fig: Figure, ax: Any, text: str) -> Any:
+    """Write a caution in small muted type under the axes, where it overlaps nothing.
+
+    The caution hangs under the x axis (tick labels and label; for 3-D axes, under all three
+    axes), left-aligned with the axes, and counts in the axes' tight box: constrained layout
+    puts the figure's legend below it and other axes clear of it. Returns the Annotation.
+    """
+
+    def under_the_axes(renderer: Any) -> Any:
+        axes = [ax.xaxis, ax.yaxis, ax.zaxis] if hasattr(ax, "zaxis") else [ax.xaxis]
+        boxes = [a.get_tightbbox(renderer) for a in axes]
+        boxes = [b for b in boxes if b is not None and b.height > 0]
+        return Bbox.union(boxes) if boxes else ax.get_window_extent(renderer)
+
+    return ax.annotate(
+        _wrap(text, fig, _CAUTION_SIZE, share=0.85),
+        xy=(0.0, 0.0),
+        xycoords=("axes fraction", under_the_axes),
+        xytext=(0.0, -4.0),
+        textcoords="offset points",
+        ha="left",
+        va="top",
+        fontsize=_CAUTION_SIZE,
+        color=_MUTED,
+        annotation_clip=False,
+    )
+
+
 def _new_figure(size: tuple[float, float]) -> Figure:
-    fig = Figure(figsize=size, layout="constrained", facecolor="white")
-    return fig
+    return Figure(figsize=size, layout="constrained", facecolor=palette.PAPER)
+
+
+class _Scaled(Formatter):
+    """Tick labels of the values times ``factor`` (metres shown as mm or km, joules as kJ).
+
+    Uses as few decimals as the ticks need to differ and read exactly; the axis keeps its data
+    (and its locator) in the data's units.
+    """
+
+    def __init__(self, factor: float) -> None:
+        self.factor = float(factor)
+        self.decimals = 0
+
+    def set_locs(self, locs: Any) -> None:
+        v = np.unique(np.asarray(locs, dtype=float) * self.factor)
+        v = v[np.isfinite(v)]
+        step = float(np.min(np.diff(v))) if len(v) > 1 else float(np.max(np.abs(v), initial=1.0))
+        tol = 1e-6 * step if step > 0 else 1e-12
+        self.decimals = next(
+            (n for n in range(13) if np.allclose(np.round(v, n), v, rtol=0.0, atol=tol)), 12
+        )
+
+    def __call__(self, x: float, pos: Optional[int] = None) -> str:
+        text = f"{x * self.factor:.{self.decimals}f}"
+        if float(text) == 0.0:
+            text = text.lstrip("-")
+        return text.replace("-", "\N{MINUS SIGN}")
+
+    def format_data_short(self, value: float) -> str:
+        return f"{value * self.factor:.6g}"
+
+
+class _Lengths(NamedTuple):
+    """How lengths are shown: the unit, the factor from the data's unit, what is scaled."""
+
+    unit: str
+    factor: float
+    quantities: frozenset[str]  # results whose values are lengths and take the shown unit
+
+    def apply(self, axis: Any) -> None:
+        """Label the ticks of an axis holding lengths in the shown unit."""
+        if self.factor != 1.0:
+            axis.set_major_formatter(_Scaled(self.factor))
+
+
+def _lengths(u: dict[str, str], length_unit: str, d: _Samples) -> _Lengths:
+    """Choose the unit lengths are shown in; adds it to ``u`` for arc length and radius."""
+    data_unit = u["length"]
+    if not isinstance(length_unit, str):
+        raise TypeError(f"length_unit: expected a str, got {length_unit!r}")
+    if length_unit == "auto":
+        if data_unit != "m":  # the caller's own units: shown as they are
+            unit, factor = data_unit, 1.0
+        else:
+            pts = d.position[np.isfinite(d.position).all(axis=1)]
+            extent = float(np.max(np.ptp(pts, axis=0))) if len(pts) else 0.0
+            unit = "mm" if 0.0 < extent < _SMALL else ("km" if extent > _LARGE else "m")
+            factor = LENGTH_UNITS[unit]
+    elif length_unit == data_unit:
+        unit, factor = data_unit, 1.0
+    elif length_unit in LENGTH_UNITS and data_unit in LENGTH_UNITS:
+        unit, factor = length_unit, LENGTH_UNITS[length_unit] / LENGTH_UNITS[data_unit]
+    else:
+        known = ", ".join(repr(k) for k in LENGTH_UNITS)
+        raise _core.InputError(
+            f"length_unit: expected 'auto' or one of {known} (data in {data_unit!r}), "
+            f"got {length_unit!r}"
+        )
+    scaled = frozenset(q for q in ("arclength", "radius") if q not in u)
+    for q in scaled:
+        u[q] = unit
+    return _Lengths(unit, factor, scaled)
 
 
 def _pair_mean(a: F64, b: F64) -> F64:
@@ -408,7 +559,7 @@ def _shade(ax: Any, x: F64, flags: npt.NDArray[np.uint8], d: _Samples, which: in
     next_x[d.last] = np.nan
     left_edge = _pair_mean(prev_x, x)
     right_edge = _pair_mean(x, next_x)
-    for flag, (colour, text) in _FLAG_STYLE.items():  # five flags: a handful of layers
+    for flag, (colour, hatch, text) in _FLAG_STYLE.items():  # six flags: a handful of layers
         if not int(flag) & which:
             continue
         mask = (flags & int(flag)) != 0
@@ -433,28 +584,60 @@ def _shade(ax: Any, x: F64, flags: npt.NDArray[np.uint8], d: _Samples, which: in
                 transform=ax.get_xaxis_transform(),
                 facecolors=colour,
                 edgecolors=colour,
-                linewidths=0.6,
-                alpha=0.35,
+                hatch=hatch or None,
+                hatch_linewidth=0.5,
+                linewidths=0.0,
+                alpha=palette.FLAG_ALPHA,
                 zorder=0,
             ),
             autolim=False,
         )
-        handles.append(Patch(facecolor=colour, edgecolor=colour, alpha=0.5, label=text))
+        handles.append(
+            Patch(
+                facecolor=colour,
+                edgecolor=colour,
+                hatch=hatch or None,
+                hatch_linewidth=0.5,
+                linewidth=0.0,
+                alpha=palette.FLAG_ALPHA,
+                label=text,
+            )
+        )
     return handles
 
 
-def _lines(ax: Any, x: F64, y: F64, d: _Samples, *, linewidth: float = 1.2) -> list[Any]:
-    """One line per track (no segment across tracks); returns legend handles for a few tracks."""
+def _lines(
+    ax: Any,
+    x: F64,
+    y: F64,
+    d: _Samples,
+    *,
+    linewidth: float = 1.2,
+    colour: Optional[str] = None,
+    linestyle: Any = "solid",
+) -> list[Any]:
+    """One line per track (no segment across tracks); returns legend handles for a few tracks.
+
+    Tracks take their own colours (up to eight), or all ``colour`` when it is given.
+    """
     m = len(d.labels)
     keep = ~d.last[:-1]
     segs = np.stack([np.column_stack([x[:-1], y[:-1]]), np.column_stack([x[1:], y[1:]])], axis=1)
     seg_track = d.codes[:-1]
     finite = keep & np.isfinite(segs).all(axis=(1, 2))
     segs, seg_track = segs[finite], seg_track[finite]
-    if m <= 8:
+    if colour is not None:
+        lc = LineCollection(
+            list(segs), colors=colour, linewidths=linewidth, linestyles=linestyle, zorder=3
+        )
+    elif m <= 8:
         colours = np.array(_track_colours(m), dtype=object)
         lc = LineCollection(
-            list(segs), colors=list(colours[seg_track]), linewidths=linewidth, zorder=2
+            list(segs),
+            colors=list(colours[seg_track]),
+            linewidths=linewidth,
+            linestyles=linestyle,
+            zorder=2,
         )
     else:
         lc = LineCollection(list(segs), colors=_LINE, linewidths=0.6, alpha=0.35, zorder=2)
@@ -476,11 +659,19 @@ def _band(ax: Any, x: F64, y: F64, se: F64, d: _Samples) -> Any:
     # One fill for all tracks: a NaN row after each track's last sample separates them.
     cut = np.flatnonzero(d.last[:-1]) + 1
     xs, lo, hi = (np.insert(v, cut, np.nan) for v in (x, y - BAND_Z * se, y + BAND_Z * se))
-    ax.fill_between(xs, lo, hi, facecolor=palette.BAND, edgecolor="none", alpha=0.45, zorder=1.5)
+    ax.fill_between(
+        xs,
+        lo,
+        hi,
+        facecolor=palette.BAND,
+        edgecolor=palette.NONE,
+        alpha=palette.BAND_ALPHA,
+        zorder=1.5,
+    )
     # The figure legend's entry (the fill itself stays out of per-axes legends).
     return Patch(
         facecolor=palette.BAND,
-        alpha=0.45,
+        alpha=palette.BAND_ALPHA,
         label="95 % band: ±1.96 se (noise, not bias)",
     )
 
@@ -502,6 +693,7 @@ def path(
     position: Optional[Sequence[Any]] = None,
     by: Any = None,
     axis_names: Optional[Sequence[str]] = None,
+    length_unit: str = "auto",
 ) -> Plot:
     """Draw the path in 2-D or 3-D, coloured by a quantity, with optional frame glyphs.
 
@@ -516,11 +708,13 @@ def path(
         ``"radius"``, ...; vectors such as ``"jerk"`` give their length), one value per row, or
         None for a plain line. Isolated extremes (beyond the 1st and 99th percentiles, if they
         would stretch the scale by more than 5 %) are clipped, and arrows on the colour bar
-        show it. Undefined values are grey.
+        show it. Undefined values are grey. Colouring by lateral acceleration, acceleration,
+        jerk or radius adds :data:`CAUTION` to the figure.
     frames_every : float, optional
-        Draw the moving frame (T, N and, in 3-D, B) at the first sample past every multiple of
-        this arc length (position units) along each track. ``k`` must hold ``tangent``,
-        ``normal`` (and ``binormal``); samples where the frame is undefined are skipped.
+        Draw the moving frame at the first sample past every multiple of this arc length
+        (position units) along each track: the tangent T and the normal and (in 3-D) binormal
+        that ``k`` holds, named after its frame (Frenet N and B, or the rotation-minimizing
+        U and V). Samples where the frame is undefined are skipped.
     units : mapping, optional
         Unit labels: ``length`` (default "m"), ``time`` ("s"), or one per quantity name.
     cmap : str or Colormap, default "viridis"
@@ -536,6 +730,10 @@ def path(
     axis_names : sequence of str, optional
         Names of the position axes, e.g. ``("east", "north", "up")``; by default the position
         columns of a DataFrame, else x, y, z.
+    length_unit : str, default "auto"
+        The unit positions (and a radius or arc-length colour bar) are shown in: with data in
+        metres, "auto" picks mm below 0.5 m of extent, km above 50 km, else m; or name one of
+        "µm", "mm", "cm", "m", "km". Only the tick labels change.
 
     Returns
     -------
@@ -560,15 +758,25 @@ def path(
     >>> type(fig).__name__, ax.get_xlabel()
     ('Figure', 'x [m]')
 
+    A path 4 cm across is shown in millimetres; colouring by radius adds the caution:
+
+    >>> fig, ax = osc.plot.path(osc.kinematics(t, 0.004 * k.position), color="radius")
+    >>> ax.get_xlabel(), fig.axes[-1].get_ylabel()
+    ('x [mm]', 'radius of curvature ρ [mm]')
+    >>> texts = [" ".join(t.get_text().split()) for t in fig.findobj(matplotlib.text.Text)]
+    >>> osc.plot.CAUTION in texts
+    True
+
     A straight path has no normal: only tangent glyphs are drawn.
 
     >>> k = osc.kinematics([0.0, 1.0, 2.0, 3.0], [[0, 0], [1, 0], [2, 0], [3, 0]])
     >>> fig, ax = osc.plot.path(k, frames_every=1.0)
-    >>> [t.get_text() for t in ax.get_legend().get_texts()]
+    >>> [t.get_text() for t in fig.legends[0].get_texts()]
     ['track start', 'Frenet frame every 1 m', 'T (tangent)']
     """
     d = _Samples(k, time=time, position=position, by=by)
     u = _units(units)
+    lengths = _lengths(u, length_unit, d)
     own = ax is None
     if ax is None:
         fig = _new_figure(_path_size(d.position, d.dim))
@@ -615,6 +823,8 @@ def path(
         cb.set_label(cbar_label, color=_INK, fontsize=9.5)
         cb.outline.set_edgecolor(_MUTED)
         cb.ax.tick_params(labelsize=8.5, colors=_MUTED, labelcolor=_INK)
+        if isinstance(color, str) and color in lengths.quantities:
+            lengths.apply(cb.ax.yaxis)
         if np.isnan(seg_values).any():
             handles.append(Line2D([], [], color=_UNDEFINED, linewidth=2, label="undefined"))
     else:
@@ -625,7 +835,7 @@ def path(
         if len(axis_names) != d.dim:
             raise _core.InputError(f"axis_names: expected {d.dim} names, got {len(axis_names)}")
         d.axis_names = [str(a) for a in axis_names]
-    names = [f"{a} [{u['length']}]" for a in d.axis_names]
+    names = [f"{a} [{lengths.unit}]" for a in d.axis_names]
     if d.dim == 3:
         _frame_3d(ax, finite, names)
     else:
@@ -635,34 +845,35 @@ def path(
         ax.set_xlabel(names[0])
         ax.set_ylabel(names[1])
         _style(ax)
+    for axis in (ax.xaxis, ax.yaxis, getattr(ax, "zaxis", None)):
+        if axis is not None:
+            lengths.apply(axis)
     if len(d.labels) <= 10 and len(finite):
         starts = p[d.first]
         starts = starts[np.isfinite(starts).all(axis=1)]
-        ax.scatter(*starts.T, s=28, facecolors="white", edgecolors=_INK, linewidths=1.0, zorder=4)
+        ax.scatter(
+            *starts.T, s=28, facecolors=palette.PAPER, edgecolors=_INK, linewidths=1.0, zorder=4
+        )
         handles.append(
             Line2D(
                 [],
                 [],
                 marker="o",
                 linestyle="none",
-                markerfacecolor="white",
+                markerfacecolor=palette.PAPER,
                 markeredgecolor=_INK,
                 label="track start",
             )
         )
     if frames_every is not None:
-        handles += _glyphs(ax, d, float(frames_every), finite, u["length"])
-    if handles and d.dim == 3 and own:
-        fig.legend(handles=handles, loc="outside lower center", ncols=3, fontsize=8, frameon=False)
-    elif handles and own:
-        ax.legend(
+        handles += _glyphs(ax, d, float(frames_every), finite, lengths)
+    if handles and own:  # below everything, where constrained layout leaves room for it
+        fig.legend(
             handles=handles,
-            loc="upper left",
-            bbox_to_anchor=(0.0, -0.15),
-            ncols=min(4, len(handles)),
+            loc="outside lower center",
+            ncols=min(3 if d.dim == 3 else 4, len(handles)),
             fontsize=8,
             frameon=False,
-            borderaxespad=0.0,
         )
     elif handles:
         ax.legend(handles=handles, loc="best", fontsize=8, frameon=True, framealpha=0.85)
@@ -670,6 +881,8 @@ def path(
     if title is None:
         title = f"Path coloured by {quantity}" if values is not None else "Path"
     _title(ax, title, sub)
+    if isinstance(color, str) and color in CAUTIONED:
+        _caution(fig, ax, CAUTION)
     return Plot(fig, ax)
 
 
@@ -710,7 +923,22 @@ def _frame_3d(ax: Any, pts: F64, names: list[str]) -> None:
         axis._axinfo["grid"].update(color=_GRID, linewidth=0.6)
 
 
-def _glyphs(ax: Any, d: _Samples, every: float, pts: F64, length_unit: str) -> list[Any]:
+def _glyph_names(frame: str) -> tuple[tuple[str, str, str, str], ...]:
+    """(palette key, attribute, symbol, description) of the frame's arrows, by frame."""
+    if frame == "frenet":
+        return (
+            ("T", "tangent", "T", "tangent"),
+            ("N", "normal", "N", "normal"),
+            ("B", "binormal", "B", "binormal"),
+        )
+    return (
+        ("T", "tangent", "T", "tangent"),
+        ("N", "normal", "U", "rotation-minimizing normal"),
+        ("B", "binormal", "V", "T × U"),
+    )
+
+
+def _glyphs(ax: Any, d: _Samples, every: float, pts: F64, lengths: _Lengths) -> list[Any]:
     """Arrows of the moving frame at the first sample past every multiple of ``every``."""
     if not every > 0:
         raise _core.InputError(f"frames_every: expected a positive arc length, got {every!r}")
@@ -722,8 +950,7 @@ def _glyphs(ax: Any, d: _Samples, every: float, pts: F64, length_unit: str) -> l
     size = min(0.6 * every, 0.07 * extent)
     origin = d.position[at]
     handles: list[Any] = []
-    axes = (("T", "tangent"), ("N", "normal"), ("B", "binormal"))
-    for key, name in axes[: 3 if d.dim == 3 else 2]:
+    for key, name, symbol, text in _glyph_names(d.frame)[: 3 if d.dim == 3 else 2]:
         if not d.has(name):
             continue
         vec = d.vector(name)[at][:, : d.dim]
@@ -746,11 +973,11 @@ def _glyphs(ax: Any, d: _Samples, every: float, pts: F64, length_unit: str) -> l
                 headlength=4.0,
                 zorder=5,
             )
-        handles.append(Line2D([], [], color=_GLYPHS[key], linewidth=2, label=f"{key} ({name})"))
+        handles.append(Line2D([], [], color=_GLYPHS[key], linewidth=2, label=f"{symbol} ({text})"))
     if handles:
         frame = "Frenet" if d.frame == "frenet" else d.frame
-        text = f"{frame} frame every {every:g} {length_unit}"
-        handles.insert(0, Patch(facecolor="none", edgecolor="none", label=text))
+        text = f"{frame} frame every {every * lengths.factor:g} {lengths.unit}"
+        handles.insert(0, Patch(facecolor=palette.NONE, edgecolor=palette.NONE, label=text))
     return handles
 
 
@@ -769,6 +996,7 @@ def profile(
     time: Any = None,
     by: Any = None,
     bands: bool = True,
+    length_unit: str = "auto",
 ) -> Plot:
     """Stacked panels of quantities against arc length or time, flagged samples shaded.
 
@@ -781,7 +1009,8 @@ def profile(
         The shared horizontal axis. With arc length every track starts at 0, so laps overlay.
     quantities : sequence of str, optional
         One panel each (scalars, or vectors as their length). Default: speed, curvature,
-        tangential and normal acceleration.
+        tangential and normal acceleration. A panel of lateral acceleration, acceleration, jerk
+        or radius adds :data:`CAUTION` to the figure.
     flags : bool or int, default True
         Shade the x-ranges of flagged samples, one colour per flag, named in the legend; an int
         (e.g. ``osc.Flag.STOPPED | osc.Flag.GAP``) shades only those flags, False none.
@@ -796,6 +1025,8 @@ def profile(
     bands : bool, default True
         Shade ±1.96 standard errors around each quantity that has them (``k.se`` or
         ``<quantity>_se`` columns): about 95 % of the noise, not the bias of the estimator.
+    length_unit : str, default "auto"
+        The unit of arc length and radius, as in :func:`path` (chosen from the path's extent).
 
     Returns
     -------
@@ -821,9 +1052,21 @@ def profile(
     ['speed v [m/s]', 'curvature κ [1/m]']
     >>> sorted(t.get_text().split(":")[0] for t in fig.legends[0].get_texts())
     ['EDGE', 'STRAIGHT']
+
+    A panel of a_n, jerk or radius brings the caution line; speed and curvature do not:
+
+    >>> def words(fig):
+    ...     texts = fig.findobj(matplotlib.text.Text)
+    ...     return " ".join(" ".join(t.get_text().split()) for t in texts)
+    >>> osc.plot.CAUTION in words(fig)
+    False
+    >>> fig, axes = osc.plot.profile(k, quantities=["speed", "accel_normal"])
+    >>> osc.plot.CAUTION in words(fig)
+    True
     """
     d = _Samples(k, time=time, by=by)
     u = _units(units)
+    lengths = _lengths(u, length_unit, d)
     if x not in ("arclength", "time"):
         raise _core.InputError(f"x: expected 'arclength' or 'time', got {x!r}")
     names = (
@@ -863,12 +1106,19 @@ def profile(
         if which:
             for h in _shade(a, xs, fl, d, which):
                 flag_handles.setdefault(h.get_label(), h)
-        a.set_ylabel(_label(name, u), fontsize=9)
+        ylabel = _label(name, u)
+        if ax is None:  # our panels are short: a long label takes two lines, not its neighbours'
+            ylabel = "\n".join(textwrap.wrap(ylabel, 20))
+        a.set_ylabel(ylabel, fontsize=9)
         a.yaxis.set_major_locator(MaxNLocator(4))
+        if name in lengths.quantities:
+            lengths.apply(a.yaxis)
         _style(a)
         if np.isfinite(y).any() and np.nanmin(y) < 0 < np.nanmax(y):
             a.axhline(0.0, color=_MUTED, linewidth=0.6, zorder=1)
     axes[-1].set_xlabel(_label(x, u))
+    if x in lengths.quantities:
+        lengths.apply(axes[-1].xaxis)  # shared by every panel
     finite_x = xs[np.isfinite(xs)]
     if finite_x.size:
         axes[-1].set_xlim(float(finite_x.min()), float(finite_x.max()))
@@ -882,13 +1132,13 @@ def profile(
                 fontsize=8,
                 frameon=False,
             )
-        sub = f"estimator: {d.estimator}" if d.estimator else ""
+        sub = f"estimator: {d.estimator}" if d.estimator else None
         head = title or f"Profiles along the path (against {_QUANTITIES[x][0]})"
-        fig.suptitle(head, x=0.01, ha="left", fontsize=11, color=_INK, fontweight="bold")
-        if sub:
-            _title(axes[0], None, sub)
+        _title(axes[0], head, sub)
     elif handles:
         axes[0].legend(handles=handles, fontsize=8, loc="best")
+    if CAUTIONED.intersection(names):
+        _caution(fig, axes[-1], CAUTION)
     return Plot(fig, axes)
 
 
@@ -944,9 +1194,8 @@ def gg(
         Results of :func:`osculate.kinematics` or ``df.osc.kinematics``, in metres and seconds.
     limits : sequence of (float, str) or mapping of str to float, optional
         Reference circles: ``[(0.3, "source of this value"), ...]`` or ``{"source": 0.3}``,
-        values in g. Each must name its source; there are no built-in limits. Whenever circles
-        are drawn, a note on the figure says that they are indicative and that local codes and
-        licensed engineers decide, and lists the source of each value.
+        values in g. Each must name its source; there are no built-in limits. The caution line
+        of the figure then says that they are indicative and lists the source of each value.
     color : str or None, default "speed"
         Colour the points by this quantity (None: one colour).
     units : mapping, optional
@@ -971,8 +1220,9 @@ def gg(
     curvature is defined — always for planar paths, for 3-D paths computed with ``up=`` — and
     otherwise the unsigned a_n = κv² (the axis label says which). Longitudinal acceleration is
     a_t = dv/dt. g = 9.80665 m/s², standard gravity (SI brochure; 3rd CGPM, 1901). Samples
-    flagged EDGE, GAP, STOPPED or INVALID are drawn as hollow grey rings: their estimates are
-    less reliable.
+    flagged EDGE, GAP or STOPPED are drawn as hollow grey rings: their estimates are less
+    reliable; INVALID rows have no values and are not drawn. The legend names them all
+    (:data:`GG_DOUBTFUL`). Every g-g diagram carries :data:`CAUTION`.
 
     Examples
     --------
@@ -985,8 +1235,9 @@ def gg(
     >>> fig, ax = osc.plot.gg(k, limits=[(0.4, "example value from the caller's brief")])
     >>> type(fig).__name__, round(float(np.median(k.accel_normal)) / 9.80665, 3)
     ('Figure', 0.459)
-    >>> any("licensed engineers decide" in t.get_text() for t in fig.findobj(matplotlib.text.Text))
-    True
+    >>> words = " ".join(" ".join(t.get_text().split()) for t in fig.findobj(matplotlib.text.Text))
+    >>> osc.plot.CAUTION in words, "0.4 g from example value from the caller's brief" in words
+    (True, True)
 
     A reference value without a source is refused:
 
@@ -1010,11 +1261,11 @@ def gg(
     lateral = signed * v**2 if use_signed else a_n
     lat_g, lon_g = lateral / STANDARD_GRAVITY, a_t / STANDARD_GRAVITY
     ok = np.isfinite(lat_g) & np.isfinite(lon_g)
-    doubtful = (d.flags() & int(Flag.EDGE | Flag.GAP | Flag.STOPPED | Flag.INVALID)) != 0
+    doubtful = (d.flags() & int(GG_DOUBTFUL)) != 0
     good, weak = ok & ~doubtful, ok & doubtful
     own = ax is None
     if ax is None:
-        fig = _new_figure((7.0, 7.7 if refs else 6.9))
+        fig = _new_figure((7.0, 7.6))
         ax = fig.add_subplot()
     else:
         fig = ax.figure
@@ -1045,20 +1296,23 @@ def gg(
             lat_g[weak],
             lon_g[weak],
             s=14,
-            facecolors="none",
+            facecolors=palette.NONE,
             edgecolors=_MUTED,
             linewidths=0.6,
             zorder=2,
         )
+    if doubtful.any():  # INVALID rows alone are not drawn, but the legend still says why
+        hollow = [f.name for f in Flag if f & GG_DOUBTFUL and f != Flag.INVALID]
         handles.append(
             Line2D(
                 [],
                 [],
                 marker="o",
                 linestyle="none",
-                markerfacecolor="none",
+                markerfacecolor=palette.NONE,
                 markeredgecolor=_MUTED,
-                label="flagged (EDGE, GAP, STOPPED): less reliable",
+                label=f"flagged {', '.join(str(n) for n in hollow)}: less reliable; "
+                "INVALID: no values, not drawn",
             )
         )
     reach = max(
@@ -1093,60 +1347,21 @@ def gg(
     ax.set_xlabel(side)
     ax.set_ylabel("longitudinal acceleration a_t, speeding up + [g]")
     _style(ax)
-    if handles:
-        ax.legend(
-            handles=handles,
-            loc="upper left",
-            bbox_to_anchor=(0.0, -0.1),
-            fontsize=8,
-            frameon=False,
-            borderaxespad=0.0,
-        )
+    if handles and own:
+        fig.legend(handles=handles, loc="outside lower left", fontsize=8, frameon=False)
+    elif handles:
+        ax.legend(handles=handles, loc="best", fontsize=7.5, framealpha=0.85)
     _title(
         ax,
         title or "Acceleration share: lateral against longitudinal",
         "1 g = 9.80665 m/s² (standard gravity)"
         + (f";  estimator: {d.estimator}" if d.estimator else ""),
     )
+    note = CAUTION
     if refs:
         sources = "; ".join(f"{r:g} g from {s}" for r, s in refs)
-        note = f"{LIMITS_CAUTION} Reference values: {sources}."
-        if own:
-            fig.text(
-                0.02,
-                0.01,
-                "\n".join(textwrap.wrap(note, 105)),
-                va="bottom",
-                ha="left",
-                fontsize=8.3,
-                color=palette.CAUTION_TEXT,
-                bbox={
-                    "boxstyle": "round,pad=0.5",
-                    "facecolor": palette.CAUTION_FILL,
-                    "edgecolor": palette.CAUTION_EDGE,
-                },
-            )
-            engine = fig.get_layout_engine()
-            if isinstance(engine, ConstrainedLayoutEngine):  # room for the note below
-                engine.set(rect=(0.0, 0.09, 1.0, 0.91))
-        else:
-            ax.text(
-                0.02,
-                0.02,
-                "\n".join(textwrap.wrap(note, 60)),
-                transform=ax.transAxes,
-                va="bottom",
-                ha="left",
-                fontsize=7.5,
-                color=palette.CAUTION_TEXT,
-                zorder=6,
-                bbox={
-                    "boxstyle": "round,pad=0.4",
-                    "facecolor": palette.CAUTION_FILL,
-                    "alpha": 0.92,
-                    "edgecolor": palette.CAUTION_EDGE,
-                },
-            )
+        note = f"{CAUTION} {LIMITS_CAUTION} {sources}."
+    _caution(fig, ax, note)
     return Plot(fig, ax)
 
 
@@ -1175,6 +1390,8 @@ def work(
     title: Optional[str] = None,
     time: Any = None,
     by: Any = None,
+    truth: Optional[npt.ArrayLike] = None,
+    length_unit: str = "auto",
     **options: Any,
 ) -> Plot:
     """Cumulative work along the path, one line per track, with each track's total.
@@ -1191,13 +1408,22 @@ def work(
     x : {"arclength", "time"}
         The horizontal axis.
     units : mapping, optional
-        Unit labels: ``length``, ``time``, ``energy`` (default "J"), or ``work``.
+        Unit labels: ``length``, ``time``, ``energy`` (default "J"), or ``work``. With the
+        default joules the axis and the totals take one prefix (J, kJ, MJ, GJ) chosen from the
+        largest magnitude drawn; a unit given here is used as it is.
     ax : matplotlib Axes, optional
         Draw here instead of in a new figure.
     title : str, optional
         Title.
     time, by : optional
         DataFrame input only: the time and track columns.
+    truth : array_like, optional
+        A known true work to compare with, drawn dashed: shape (n,), the true cumulative work
+        at every row (in the caller's row order, like ``values``), or shape (tracks,), each
+        track's true total (tracks in sorted order of their ids), drawn as a level across the
+        track. The legend then gives each track's true total beside its estimate.
+    length_unit : str, default "auto"
+        The unit of arc length on the horizontal axis, as in :func:`path`.
     **options
         Passed to ``osculate.work`` with ``force``.
 
@@ -1209,7 +1435,9 @@ def work(
     Notes
     -----
     The work of a force F along a path is W = ∫ F·dr; negative work takes energy out of the
-    moving body (drag, braking). The legend gives each track's total (last finite value).
+    moving body (drag, braking). The legend gives each track's total (last finite value), with
+    three significant digits for the largest. The drawn data stay in the caller's energy unit
+    and only the tick labels carry the prefix, so curves added to the axes afterwards line up.
 
     Examples
     --------
@@ -1223,16 +1451,23 @@ def work(
     >>> k = osc.kinematics(t, np.column_stack([2 * t, 0 * t]))
     >>> fig, ax = osc.plot.work(k, values=2.0 * k.arclength)
     >>> type(fig).__name__, ax.get_ylabel(), ax.get_legend().get_texts()[0].get_text()
-    ('Figure', 'cumulative work W [J]', 'total 20 J')
+    ('Figure', 'cumulative work W [J]', 'total 20.0 J')
 
     The same from the force itself, through :func:`osculate.work`:
 
     >>> fig, ax = osc.plot.work(k, np.tile([2.0, 0.0], (11, 1)))
     >>> ax.get_legend().get_texts()[0].get_text()
-    'total 20 J'
+    'total 20.0 J'
+
+    Two kilonewtons do 20 kJ; axis and legend say kJ, and a true total is drawn dashed:
+
+    >>> fig, ax = osc.plot.work(k, values=2e3 * k.arclength, truth=[2.05e4])
+    >>> ax.get_ylabel(), [t.get_text() for t in ax.get_legend().get_texts()]
+    ('cumulative work W [kJ]', ['total 20.0 kJ (true 20.5 kJ)', 'true totals (dashed)'])
     """
     d = _Samples(k, time=time, by=by)
     u = _units(units)
+    lengths = _lengths(u, length_unit, d)
     if "work" in u:
         u["energy"] = u["work"]
     if values is None:
@@ -1247,46 +1482,107 @@ def work(
     if x not in ("arclength", "time"):
         raise _core.InputError(f"x: expected 'arclength' or 'time', got {x!r}")
     xs = d.get(x)
+    m = len(d.labels)
+    true_w: Optional[F64] = None  # per sorted row
+    true_total: Optional[F64] = None  # per track
+    if truth is not None:
+        tr = np.asarray(truth, dtype=float).reshape(-1)
+        if tr.shape == (d.n,):
+            true_w = tr[d.order]
+            true_total = _track_last(true_w, d)
+        elif tr.shape == (m,):
+            true_total = tr
+        else:
+            raise _core.InputError(
+                f"truth: expected {d.n} values (one per row) or {m} (one per track), "
+                f"got shape {tr.shape}"
+            )
     if ax is None:
-        fig = _new_figure((7.6, 4.6))
+        fig = _new_figure((7.6, 4.8))
         ax = fig.add_subplot()
     else:
         fig = ax.figure
     _lines(ax, xs, w, d, linewidth=1.6)
-    # Totals: the last finite value of each track (vectorized over tracks).
-    idx = np.where(np.isfinite(w), np.arange(d.n), -1)
-    last = np.maximum.reduceat(idx, np.flatnonzero(d.first))
-    totals = np.where(last >= 0, w[np.maximum(last, 0)], np.nan)
-    names = d.track_names()
-    colours = _track_colours(len(d.labels))
+    dashed = (0, (4, 3))
+    if true_w is not None:
+        _lines(ax, xs, true_w, d, linewidth=1.0, colour=palette.TRUTH, linestyle=dashed)
+    elif true_total is not None:  # a level across each track's x-range
+        x_ok = np.where(np.isfinite(xs), xs, np.nan)
+        starts = np.flatnonzero(d.first)
+        lo = np.fmin.reduceat(x_ok, starts)
+        hi = np.fmax.reduceat(x_ok, starts)
+        ok = np.isfinite(lo) & np.isfinite(hi) & np.isfinite(true_total)
+        ax.hlines(
+            true_total[ok],
+            lo[ok],
+            hi[ok],
+            colors=palette.TRUTH,
+            linestyles=dashed,
+            linewidth=1.0,
+            zorder=3,
+        )
+    totals = _track_last(w, d)
     unit = u["energy"]
-    if len(d.labels) <= 8:
-        handles = [
-            Line2D(
-                [],
-                [],
-                color=colours[i],
-                linewidth=1.8,
-                label=(f"track {names[i]}: " if d.grouped else "")
-                + f"total {_si(totals[i], unit)}",
+    drawn = np.concatenate([w, [] if true_w is None else true_w])
+    drawn = np.concatenate([drawn, [] if true_total is None else true_total])
+    scale = float(np.max(np.abs(drawn[np.isfinite(drawn)]), initial=0.0))
+    prefix, factor = _energy_prefix(scale) if unit == "J" else ("", 1.0)
+    shown = f"{prefix}{unit}"
+    names = d.track_names()
+    colours = _track_colours(m)
+    digits = max(0, 2 - int(np.floor(np.log10(scale * factor)))) if scale > 0 else 0
+    if m <= 8:
+        handles: list[Any] = []
+        for i in range(m):  # a few tracks
+            text = (f"track {names[i]}: " if d.grouped else "") + "total "
+            text += _amount(totals[i] * factor, shown, digits)
+            if true_total is not None:
+                text += f" (true {_amount(true_total[i] * factor, shown, digits)})"
+            handles.append(Line2D([], [], color=colours[i], linewidth=1.8, label=text))
+        if true_total is not None:
+            handles.append(
+                Line2D(
+                    [],
+                    [],
+                    color=palette.TRUTH,
+                    linestyle=dashed,
+                    linewidth=1.0,
+                    label="true work (dashed)" if true_w is not None else "true totals (dashed)",
+                )
             )
-            for i in range(len(d.labels))
-        ]
-        ax.legend(handles=handles, fontsize=8, loc="best")
+        # The curves run from 0 at the left towards their totals: the legend goes to the right,
+        # on the side away from them (matplotlib's "best" does not see line collections).
+        falling = bool(np.nanmedian(totals) < 0) if np.isfinite(totals).any() else False
+        ax.legend(handles=handles, fontsize=8, loc="upper right" if falling else "lower right")
     ax.axhline(0.0, color=_MUTED, linewidth=0.7, zorder=1)
     ax.set_xlabel(_label(x, u))
-    ax.set_ylabel(_label("work", u))
+    if x in lengths.quantities:
+        lengths.apply(ax.xaxis)
+    ax.set_ylabel(_label("work", {**u, "energy": shown}))
+    if factor != 1.0:
+        ax.yaxis.set_major_formatter(_Scaled(factor))
     _style(ax)
     _title(ax, title or "Work done along the path", "W = ∫ F·dr; negative: energy taken out")
     return Plot(fig, ax)
 
 
-def _si(value: float, unit: str) -> str:
-    """Format a value with a k/M prefix when large, e.g. ``-61.9 kJ``."""
+def _track_last(w: F64, d: _Samples) -> F64:
+    """Return the last finite value of each track (sorted rows, vectorized), NaN if none."""
+    idx = np.where(np.isfinite(w), np.arange(d.n), -1)
+    last = np.maximum.reduceat(idx, np.flatnonzero(d.first))
+    return np.where(last >= 0, w[np.maximum(last, 0)], np.nan)
+
+
+def _energy_prefix(scale: float) -> tuple[str, float]:
+    """Return the SI prefix of joules for values up to ``scale``, and the factor to it."""
+    for limit, prefix in ((1e9, "G"), (1e6, "M"), (1e3, "k")):
+        if scale >= limit:
+            return prefix, 1.0 / limit
+    return "", 1.0
+
+
+def _amount(value: float, unit: str, digits: int) -> str:
+    """Format a value already in ``unit`` with ``digits`` decimals, e.g. ``-61.9 kJ``."""
     if not np.isfinite(value):
         return f"undefined {unit}"
-    a = abs(value)
-    for factor, prefix in ((1e6, "M"), (1e3, "k")):
-        if a >= factor:
-            return f"{value / factor:.1f} {prefix}{unit}"
-    return f"{value:.3g} {unit}"
+    return f"{value:.{digits}f} {unit}"
