@@ -29,6 +29,7 @@ pub mod rmf;
 pub mod smooth;
 pub mod spline;
 pub mod summary;
+pub mod turns;
 pub mod uncertainty;
 
 #[cfg(feature = "python")]

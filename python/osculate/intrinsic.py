@@ -5,7 +5,7 @@ from __future__ import annotations
 import dataclasses
 import types
 from collections.abc import Mapping
-from typing import Any, NamedTuple, Optional, Union
+from typing import TYPE_CHECKING, Any, NamedTuple, Optional, Union
 
 import numpy as np
 import numpy.typing as npt
@@ -25,6 +25,9 @@ from ._validate import (
 from .diagnose import check_tracks
 from .flags import Flag
 from .stops import Stops, find_stops, stop_table
+
+if TYPE_CHECKING:
+    from .turns import SpeedChanges, Turns
 
 __all__ = [
     "Derivatives",
@@ -200,6 +203,147 @@ class Kinematics:
         data = self.summary_arrays()
         labels = data.pop("track")
         return pd.DataFrame(data, index=pd.Index(labels, name="track"))
+
+    def turns(
+        self,
+        *,
+        up: npt.ArrayLike | None = None,
+        significance: float = 3.0,
+        hold: float = 1.0,
+        min_heading: float = 10.0,
+        merge: int = 5,
+        core: float = 0.75,
+    ) -> Turns:
+        """One row per turn of every track: where, which way, how far, how tight, how fast.
+
+        A turn is a run of moving samples whose signed curvature is at least ``significance``
+        standard errors from zero with one sign, continued while it stays ``hold`` standard
+        errors from zero with that sign (stopped samples do not end it), merged with the next
+        run of the same sign across at most ``merge`` moving samples, and extended over its
+        flanks while the curvature keeps its sign. Turns of less than ``min_heading`` degrees
+        are left out.
+
+        Parameters
+        ----------
+        up : array_like, shape (3,), optional
+            For 3-D paths, the direction about which turns are left or right and normal to the
+            plane of the fitted circles; default (0, 0, 1).
+        significance, hold : float
+            Standard errors of curvature to start and to continue a turn (without standard
+            errors, the absolute floor of 1e-6 per length unit applies).
+        min_heading : float
+            Smallest heading change reported, degrees.
+        merge : int
+            Longest gap (moving samples) across which runs of one sign merge.
+        core : float
+            Fraction of the peak curvature above which samples make the turn's core.
+
+        Returns
+        -------
+        Turns
+            Columns ``track``, ``start``, ``end``, ``direction``, ``heading_change``,
+            ``min_radius`` (least-squares circle through the measured positions of the core,
+            with ``min_radius_se``), ``peak_radius`` (1 / the smoothed peak curvature, biased
+            low on short turns), ``max_accel_normal`` and when, speeds in, out and mean,
+            ``samples``, ``flagged``; ``to_pandas()``.
+
+        Notes
+        -----
+        On short turns 1/max κ of a smoothed curve misses the radius (the peak is flattened by
+        the smoothing, and the largest of many noisy values is the noisiest); the circle uses
+        every core sample at once (I. Kåsa, IEEE Trans. Instrum. Meas. 25 (1976) 8–14, refined
+        by Gauss–Newton on the geometric distances). Turn radii and lateral accelerations
+        estimated from logged data are indicative: local codes and licensed engineers decide
+        whether a road, rail, ride or vehicle is acceptable.
+
+        Examples
+        --------
+        A left quarter turn of radius 20 m between two straights, driven at 8 m/s:
+
+        >>> import numpy as np
+        >>> import osculate as osc
+        >>> s = np.arange(0.0, 100.0 + 10 * np.pi, 0.8)
+        >>> a = np.clip((s - 50.0) / 20.0, 0.0, np.pi / 2)
+        >>> x = np.where(s < 50, s, 50 + 20 * np.sin(a)) + np.where(s > 50 + 10 * np.pi, 0, 0)
+        >>> y = 20 * (1 - np.cos(a)) + np.clip(s - 50 - 10 * np.pi, 0, None)
+        >>> x = np.where(s > 50 + 10 * np.pi, 70.0, x)
+        >>> k = osc.kinematics(s / 8.0, np.column_stack([x, y]), method="spline")
+        >>> turn = k.turns()
+        >>> len(turn), str(turn.direction[0]), round(float(turn.heading_change[0]))
+        (1, 'left', 90)
+        >>> bool(abs(turn.min_radius[0] - 20.0) < 0.05)
+        True
+        """
+        from .turns import find_turns
+
+        return find_turns(
+            self,
+            up=up,
+            significance=significance,
+            hold=hold,
+            min_heading=min_heading,
+            merge=merge,
+            core=core,
+        )
+
+    def speed_changes(
+        self,
+        *,
+        threshold: float = 0.5,
+        release: float | None = None,
+        significance: float = 3.0,
+        hold: float = 1.0,
+        min_samples: int = 3,
+    ) -> SpeedChanges:
+        """One row per marked speed-up or slow-down of every track.
+
+        A speed change is a run of moving samples whose tangential acceleration keeps its sign
+        with |a_t| at least ``threshold`` (and ``significance`` standard errors), continued
+        while |a_t| stays at least ``release`` (default ``threshold / 2``; and ``hold``
+        standard errors). Stops end it.
+
+        Parameters
+        ----------
+        threshold, release : float
+            |a_t| to start and to continue, in the input's length per time squared (default
+            0.5: m/s² for metres and seconds, a gentle but deliberate change for a road
+            vehicle; common practice, adjust for your vehicle).
+        significance, hold : float
+            Standard errors of a_t to start and to continue (where they are computed).
+        min_samples : int
+            Fewest samples of a speed change.
+
+        Returns
+        -------
+        SpeedChanges
+            Columns ``track``, ``kind`` (``"speed-up"``/``"slow-down"``), ``start``, ``end``,
+            ``duration``, ``speed_before``, ``speed_after``, ``peak_accel`` and ``peak_at``,
+            ``mean_accel``, ``samples``; ``to_pandas()``.
+
+        Examples
+        --------
+        From rest to 10 m/s at 2 m/s², cruise, then braking at 3 m/s² to 4 m/s:
+
+        >>> import numpy as np
+        >>> import osculate as osc
+        >>> t = np.linspace(0.0, 20.0, 401)
+        >>> v = np.minimum(np.minimum(2 * t, 10.0), np.maximum(10 - 3 * (t - 12), 4.0))
+        >>> x = np.concatenate([[0.0], np.cumsum(0.5 * (v[1:] + v[:-1]) * np.diff(t))])
+        >>> k = osc.kinematics(t, np.column_stack([x, np.zeros_like(x)]), min_speed=1e-9)
+        >>> ch = k.speed_changes()
+        >>> [str(c) for c in ch.kind], [round(float(p), 1) for p in ch.peak_accel]
+        (['speed-up', 'slow-down'], [2.0, 3.0])
+        """
+        from .turns import find_speed_changes
+
+        return find_speed_changes(
+            self,
+            threshold=threshold,
+            release=release,
+            significance=significance,
+            hold=hold,
+            min_samples=min_samples,
+        )
 
     def summary_arrays(self) -> dict[str, np.ndarray]:
         """Per-track figures as NumPy arrays (no pandas needed).

@@ -8,6 +8,7 @@ mod geodesy;
 mod kinematics;
 mod line_integral;
 mod summary;
+mod turns;
 
 use pyo3::prelude::*;
 
@@ -23,6 +24,8 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(kinematics::track_stats, m)?)?;
     m.add_function(wrap_pyfunction!(summary::summarize, m)?)?;
     m.add_function(wrap_pyfunction!(elements::find_elements, m)?)?;
+    m.add_function(wrap_pyfunction!(turns::find_turns, m)?)?;
+    m.add_function(wrap_pyfunction!(turns::find_speed_changes, m)?)?;
     m.add_function(wrap_pyfunction!(fit::fit_paths, m)?)?;
     m.add_class::<fit::FittedPaths>()?;
     m.add_function(wrap_pyfunction!(fit::rotation_minimizing, m)?)?;
