@@ -674,7 +674,8 @@ impl Problem<'_> {
             for _ in 0..12 {
                 let mut m = a.clone();
                 for i in 0..m.nrows() {
-                    m[(i, i)] += mu * m[(i, i)] + 1e-12 * big;
+                    // Damping relative to each diagonal (parameters differ in scale by 1e10).
+                    m[(i, i)] += mu * m[(i, i)] + 1e-30 * big;
                 }
                 let Some(ch) = m.cholesky() else {
                     mu *= 10.0;
@@ -1350,5 +1351,68 @@ mod tests {
             elements(&samples, &[0, 10], &opt).unwrap_err().argument(),
             "min_length"
         );
+    }
+}
+
+#[cfg(test)]
+mod gradient_check {
+    use super::*;
+
+    #[test]
+    fn gradient_matches_cost_differences() {
+        let r = 100.0;
+        let parts = [
+            (50.0, 0.0, 0.0),
+            (40.0, 0.0, 1.0 / r),
+            (60.0, 1.0 / r, 1.0 / r),
+        ];
+        let mut px = vec![];
+        let mut py = vec![];
+        let mut pose = Pose {
+            x: 0.0,
+            y: 0.0,
+            heading: 0.3,
+        };
+        let mut ss = vec![];
+        let mut u0 = 0.0;
+        for &(l, k0, k1) in &parts {
+            let mut v = 0.0;
+            while v < l - 1e-9 {
+                let p = advance(pose, k0, (k1 - k0) / l, v);
+                px.push(p.x + 0.01 * ((px.len() * 37 % 11) as f64 - 5.0) / 5.0);
+                py.push(p.y);
+                ss.push(u0 + v);
+                v += 1.0;
+            }
+            pose = advance(pose, k0, (k1 - k0) / l, l);
+            u0 += l;
+        }
+        let layout = Layout::new(&[STRAIGHT, SPIRAL, ARC]);
+        let pr = Problem {
+            px: &px,
+            py: &py,
+            layout,
+        };
+        let q = vec![0.01, -0.02, 0.31, 51.0, 38.0, 0.0098, 60.0];
+        assert_eq!(pr.layout.count, q.len());
+        let st = pr.state(q.clone(), &ss);
+        let (_, g) = pr.normal_equations(&st);
+        for k in 0..q.len() {
+            let h = 1e-6 * q[k].abs().max(1e-3);
+            let mut a = q.clone();
+            a[k] += h;
+            let mut b = q.clone();
+            b[k] -= h;
+            let ca = pr.state(a, &st.u).cost;
+            let cb = pr.state(b, &st.u).cost;
+            let fd = (ca - cb) / (4.0 * h);
+            // Jᵀr = ½ d(cost)/dq (foot points are stationary: envelope theorem); central
+            // differences of the cost, relative 1e-5.
+            assert!(
+                (g[k] - fd).abs() <= 1e-5 * fd.abs().max(1e-3),
+                "{k}: {} vs {fd}",
+                g[k]
+            );
+        }
     }
 }

@@ -15,6 +15,7 @@ __all__ = [
     "find_speed_changes",
     "find_turns",
     "fit_paths",
+    "fresnel",
     "geodetic_to_enu",
     "grid_eval",
     "line_integral_grid",
@@ -108,6 +109,9 @@ def find_elements(
     refine: bool,
     max_iterations: int,
 ) -> dict[str, npt.NDArray[Any]]: ...
+def fresnel(
+    x: npt.NDArray[np.float64],
+) -> tuple[npt.NDArray[np.float64], npt.NDArray[np.float64]]: ...
 def summarize(
     t: npt.NDArray[np.float64],
     flags: npt.NDArray[np.uint8],

@@ -2,7 +2,7 @@
 
 use super::error::{contiguous, detached};
 use crate::elements::{elements as kernel, Element, Options, Samples};
-use numpy::{IntoPyArray, PyReadonlyArray1, PyReadonlyArray2};
+use numpy::{IntoPyArray, PyArray1, PyReadonlyArray1, PyReadonlyArray2};
 use pyo3::prelude::*;
 use pyo3::types::PyDict;
 
@@ -90,4 +90,23 @@ pub fn find_elements<'py>(
         out.set_item(name, col(f).into_pyarray(py))?;
     }
     Ok(out)
+}
+
+/// Fresnel integrals `(C(x), S(x))` elementwise (normalisation of `scipy.special.fresnel`,
+/// which returns them in the order `(S, C)`).
+#[pyfunction]
+pub fn fresnel<'py>(
+    py: Python<'py>,
+    x: PyReadonlyArray1<'py, f64>,
+) -> PyResult<(Bound<'py, PyArray1<f64>>, Bound<'py, PyArray1<f64>>)> {
+    let x = contiguous("x", x.as_slice())?;
+    let (c, s) = detached(py, || {
+        let mut c = crate::error::try_filled(x.len(), 0.0)?;
+        let mut s = crate::error::try_filled(x.len(), 0.0)?;
+        for ((ci, si), &xi) in c.iter_mut().zip(s.iter_mut()).zip(x) {
+            (*ci, *si) = crate::fresnel::fresnel(xi);
+        }
+        Ok((c, s))
+    })?;
+    Ok((c.into_pyarray(py), s.into_pyarray(py)))
 }

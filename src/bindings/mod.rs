@@ -24,6 +24,7 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(kinematics::track_stats, m)?)?;
     m.add_function(wrap_pyfunction!(summary::summarize, m)?)?;
     m.add_function(wrap_pyfunction!(elements::find_elements, m)?)?;
+    m.add_function(wrap_pyfunction!(elements::fresnel, m)?)?;
     m.add_function(wrap_pyfunction!(turns::find_turns, m)?)?;
     m.add_function(wrap_pyfunction!(turns::find_speed_changes, m)?)?;
     m.add_function(wrap_pyfunction!(fit::fit_paths, m)?)?;
