@@ -243,3 +243,36 @@ def test_bad_options_are_named(call, message):
     k = osc.kinematics(t, np.column_stack([t, np.sin(t), 0 * t]))
     with pytest.raises(osc.InputError, match=message):
         call(k)
+
+
+def test_accessor_and_command_line_tables(tmp_path):
+    # Two vans, rows interleaved in time order, datetime times: the accessor's turns equal the
+    # NumPy API's per track (same kernels: to 1e-12), times come back as datetimes, and
+    # `osculate summary --turns/--speed-changes` writes the same tables.
+    pd = pytest.importorskip("pandas")
+    from osculate.cli import main
+
+    legs, v, sigma, _ = CASES["van R12 with stops"]
+    frames = []
+    for vid, seed in (("a", 3), ("b", 4)):
+        t, x = route(np.random.default_rng(seed), legs, v=v, amax=2.0, sigma=sigma)
+        frames.append(pd.DataFrame({"t": t, "x": x[:, 0], "y": x[:, 1], "van": vid}))
+    df = pd.concat(frames).sort_values("t", kind="stable").reset_index(drop=True)
+    df["time"] = pd.Timestamp("2026-12-04T08:00:00Z") + pd.to_timedelta(df["t"], unit="s")
+    table = df.osc.turns(time="time", position=["x", "y"], by="van", method="smooth")
+    assert list(table["van"]) == ["a", "a", "b", "b"]
+    assert isinstance(table["start"].iloc[0], pd.Timestamp)
+    for vid, frame in zip(("a", "b"), frames):
+        k = osc.kinematics(frame["t"].to_numpy(), frame[["x", "y"]].to_numpy(), method="smooth")
+        mine = table[table["van"] == vid]
+        np.testing.assert_allclose(mine["min_radius"], k.turns().min_radius, rtol=1e-12)
+    src, out = tmp_path / "log.csv", tmp_path / "turns.csv"
+    df[["t", "x", "y", "van"]].to_csv(src, index=False)
+    args = ["--time", "t", "--position", "x,y", "--track", "van", "--method", "smooth", "-q"]
+    speed = tmp_path / "speed.csv"
+    assert (
+        main(["summary", str(src), *args, "--turns", str(out), "--speed-changes", str(speed)]) == 0
+    )
+    back = pd.read_csv(out)
+    np.testing.assert_allclose(back["min_radius"], table["min_radius"], rtol=1e-9)
+    assert set(pd.read_csv(speed)["kind"]) == {"speed-up", "slow-down"}

@@ -451,6 +451,51 @@ def _from_results(prep: _Prepared, df: pd.DataFrame) -> Any:
     )
 
 
+def _event_frame(prep: _Prepared, table: Any, by: Optional[Hashable]) -> pd.DataFrame:
+    """Return a table of turns or speed changes of a run of ``prep`` as the caller has it.
+
+    Track labels, rows and times as in the caller's frame.
+    """
+    keep = slice(None) if prep.n else slice(0, 0)  # a synthetic run: its layout, none of its rows
+    cols = {c: v[keep] for c, v in table.columns().items()}
+    out = pd.DataFrame(cols)
+    out["track"] = prep.labels[np.asarray(cols["track"], dtype=np.intp)]
+    # The run's rows are the prepared (grouped) rows: map them back to the frame's.
+    rows = (out["first_row"].to_numpy(), out["last_row"].to_numpy())
+    if prep.order is not None:
+        rows = (prep.order[rows[0]], prep.order[rows[1]])
+    out["first_row"], out["last_row"] = rows
+    raw = prep.time_values
+    start = raw.iloc[rows[0]].array
+    for c in [c for c in out.columns if str(c).endswith("_at")]:
+        if prep.datetimes:
+            out[c] = pd.Series(start) + pd.to_timedelta(out[c] - out["start"], unit="s")
+        elif prep.integer_times:
+            out[c] = np.asarray(start, dtype=np.float64) + (out[c] - out["start"]).to_numpy()
+    out["start"], out["end"] = start, raw.iloc[rows[1]].array
+    return out.rename(columns={"track": "track" if by is None else by})
+
+
+def events(
+    df: pd.DataFrame,
+    time: Hashable,
+    position: Sequence[Hashable],
+    by: Optional[Hashable],
+    crs: str,
+    origin: npt.ArrayLike | None,
+    options: dict[str, Any],
+    rules: dict[str, dict[str, Any]],
+) -> dict[str, pd.DataFrame]:
+    """Return the tables of turns and speed changes named in ``rules``, from one run.
+
+    ``rules`` maps ``"turns"`` and/or ``"speed_changes"`` to the keyword arguments of
+    :meth:`osculate.Kinematics.turns` / :meth:`osculate.Kinematics.speed_changes`.
+    """
+    prep = _Prepared(df, time, position, by, crs, origin)
+    k = prep.run(options) if prep.n else _synthetic(prep, options)
+    return {name: _event_frame(prep, getattr(k, name)(**r), by) for name, r in rules.items()}
+
+
 def _synthetic(prep: _Prepared, options: dict[str, Any]) -> Kinematics:
     """Run on a small made-up path with the same options: the layout for zero-row frames."""
     t = np.arange(24, dtype=np.float64)
@@ -667,6 +712,107 @@ class OscAccessor:
         and the departure: their finite-difference speed is 0.5, so they are moving samples.
         """
         return summary_and_stops(self._df, time, position, by, crs, origin, options)[1]
+
+    def turns(
+        self,
+        *,
+        time: Hashable,
+        position: Sequence[Hashable],
+        by: Optional[Hashable] = None,
+        crs: str = "cartesian",
+        origin: npt.ArrayLike | None = None,
+        up: npt.ArrayLike | None = None,
+        significance: float = 3.0,
+        hold: float = 1.0,
+        min_heading: float = 10.0,
+        merge: int = 5,
+        core: float = 0.75,
+        **options: Any,
+    ) -> pd.DataFrame:
+        """One row per turn of every track.
+
+        Parameters
+        ----------
+        time, position, by, crs, origin, **options
+            As in :meth:`kinematics` (``method="smooth"`` is the usual choice for logs).
+        up, significance, hold, min_heading, merge, core
+            As in :meth:`osculate.Kinematics.turns` (for geodetic input, up defaults to the
+            local vertical).
+
+        Returns
+        -------
+        pandas.DataFrame
+            The columns of :class:`osculate.turns.Turns`; ``start``, ``end`` and the ``…_at``
+            times in the time column's own type, ``first_row``/``last_row`` positions in the
+            frame. Turn radii and lateral accelerations are indicative: local codes and licensed
+            engineers decide whether a road, rail, ride or vehicle is acceptable.
+
+        Examples
+        --------
+        >>> import numpy as np
+        >>> import pandas as pd
+        >>> import osculate as osc
+        >>> s = np.arange(0.0, 120.0, 0.5)
+        >>> a = np.clip((s - 40.0) / 25.0, 0.0, np.pi / 2)
+        >>> x = np.where(s < 40, s, 40 + 25 * np.sin(a))
+        >>> y = 25 * (1 - np.cos(a)) + np.clip(s - 40 - 12.5 * np.pi, 0, None)
+        >>> df = pd.DataFrame({"t": s / 5, "x": x, "y": y})
+        >>> turns = df.osc.turns(time="t", position=["x", "y"], method="spline")
+        >>> turns[["direction", "heading_change", "min_radius"]].round(1).to_numpy().tolist()
+        [['left', 90.0, 25.0]]
+        """
+        rules = {"significance": significance, "hold": hold, "min_heading": min_heading}
+        rules.update(merge=merge, core=core, up=(0.0, 0.0, 1.0) if crs == "geodetic" else up)
+        args = (self._df, time, position, by, crs, origin, options)
+        return events(*args, {"turns": rules})["turns"]
+
+    def speed_changes(
+        self,
+        *,
+        time: Hashable,
+        position: Sequence[Hashable],
+        by: Optional[Hashable] = None,
+        crs: str = "cartesian",
+        origin: npt.ArrayLike | None = None,
+        threshold: float = 0.5,
+        release: float | None = None,
+        significance: float = 3.0,
+        hold: float = 1.0,
+        min_samples: int = 3,
+        **options: Any,
+    ) -> pd.DataFrame:
+        """One row per marked speed-up or slow-down of every track.
+
+        Parameters
+        ----------
+        time, position, by, crs, origin, **options
+            As in :meth:`kinematics`.
+        threshold, release, significance, hold, min_samples
+            As in :meth:`osculate.Kinematics.speed_changes`.
+
+        Returns
+        -------
+        pandas.DataFrame
+            The columns of :class:`osculate.turns.SpeedChanges`; times in the time column's
+            own type.
+
+        Examples
+        --------
+        >>> import numpy as np
+        >>> import pandas as pd
+        >>> import osculate as osc
+        >>> t = np.linspace(0.0, 20.0, 401)
+        >>> v = np.minimum(2 * t, 10.0)
+        >>> x = np.concatenate([[0.0], np.cumsum(0.5 * (v[1:] + v[:-1]) * np.diff(t))])
+        >>> df = pd.DataFrame({"t": t, "x": x, "y": 0.0})
+        >>> ch = df.osc.speed_changes(time="t", position=["x", "y"], min_speed=1e-9)
+        >>> ch[["kind", "speed_after"]].round(1).to_numpy().tolist()
+        [['speed-up', 10.0]]
+        """
+        rules = {"threshold": threshold, "release": release, "significance": significance}
+        rules.update(hold=hold, min_samples=min_samples)
+        args = (self._df, time, position, by, crs, origin, options)
+        return events(*args, {"speed_changes": rules})["speed_changes"]
 
     def summary(
         self,

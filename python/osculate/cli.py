@@ -557,14 +557,22 @@ def _analyze(args: argparse.Namespace) -> int:
 def _summarize(args: argparse.Namespace) -> int:
     """``osculate summary``: one line per track and the stop intervals."""
     pd = _pandas()
-    from .accessor import RESULTS_SUMMARIZED, summary_and_stops
+    from .accessor import RESULTS_SUMMARIZED, events, summary_and_stops
 
     spec = _selection(args)
     source = _check_input(args.file)
-    outputs = {"--output": args.output, "--stops": args.stops}
+    outputs = {
+        "--output": args.output,
+        "--stops": args.stops,
+        "--turns": args.turns,
+        "--speed-changes": args.speed_changes,
+    }
     paths = {k: _check_output(v, k) for k, v in outputs.items() if v is not None}
-    if len(paths) == 2 and _destination(paths["--output"]) == _destination(paths["--stops"]):
-        raise _UsageError(f"--stops {args.stops!r}: the same file as --output")
+    seen: dict[Any, str] = {}
+    for option, path in paths.items():
+        other = seen.setdefault(_destination(path), option)
+        if other != option:
+            raise _UsageError(f"{option} {outputs[option]!r}: the same file as {other}")
     df = _load(args, source, spec)
     time_col, position, by, crs, origin = (spec.pop(k, None) for k in _WHERE)
     # An output of `osculate analyze`: its results are summarised as they are.
@@ -585,16 +593,42 @@ def _summarize(args: argparse.Namespace) -> int:
     )
     table = pd.concat([p[0] for _, p in parts])
     stops = pd.concat([p[1] for _, p in parts], ignore_index=True)
+    # Turns and speed changes: their own run of the same kinematics (from the positions).
+    rules = {
+        name: {}
+        for name, option in (("turns", "--turns"), ("speed_changes", "--speed-changes"))
+        if option in paths
+    }
+    found: dict[str, Any] = {}
+    if rules:
+        ev = _in_chunks(
+            df,
+            args.track,
+            lambda part: events(part, time_col, position, by, crs, origin, spec, rules),
+            args,
+        )
+        for name in rules:  # rows within a chunk are not the file's: left out
+            both = pd.concat([p[name] for _, p in ev], ignore_index=True)
+            found[name] = both.drop(columns=["first_row", "last_row"])
     if "--output" in paths:
         _write(table, paths["--output"], "--output")
     if "--stops" in paths:
         _write(stops, paths["--stops"], "--stops")
+    if "--turns" in paths:
+        _write(found["turns"], paths["--turns"], "--turns")
+    if "--speed-changes" in paths:
+        _write(found["speed_changes"], paths["--speed-changes"], "--speed-changes")
     if not args.quiet:
         with pd.option_context("display.max_rows", None, "display.width", 250):
             print(table.to_string())
             print(f"\n{len(stops)} stop(s):")
             if len(stops):
                 print(stops.to_string(index=False))
+            for name, what in (("turns", "turn(s)"), ("speed_changes", "speed change(s)")):
+                if name in found:
+                    print(f"\n{len(found[name])} {what}:")
+                    if len(found[name]):
+                        print(found[name].to_string(index=False))
         print(CAUTION)
     return EXIT_OK
 
@@ -666,6 +700,16 @@ def _add_data_commands(sub: Any) -> None:
     )
     summary.add_argument("-o", "--output", help="also write the table (.csv or .parquet)")
     summary.add_argument("--stops", help="also write the stop intervals (.csv or .parquet)")
+    summary.add_argument(
+        "--turns",
+        help="also write one row per turn (.csv or .parquet): direction, heading change, "
+        "smallest radius (a circle through the turn's core), peak lateral acceleration, speeds",
+    )
+    summary.add_argument(
+        "--speed-changes",
+        help="also write one row per speed-up or slow-down above 0.5 length units/time unit² "
+        "(.csv or .parquet)",
+    )
     summary.add_argument(
         "--recompute",
         action="store_true",
