@@ -472,3 +472,222 @@ def test_accessor_frames_plot_like_kinematics(tmp_path):
     only = res.drop(columns=["x", "y"])
     with pytest.raises(osc.InputError, match="name the position columns"):
         plot.path(only)
+
+
+# -- the first hour of a new user: titles, frames, units, cautions ------------------------------
+
+
+def window_boxes(fig):
+    """Drawn extents of every visible, non-empty text of a figure, by text."""
+    import matplotlib.text
+
+    pixels(fig)
+    renderer = fig.canvas.get_renderer()
+    out = {}
+    for t in fig.findobj(matplotlib.text.Text):
+        if t.get_visible() and t.get_text().strip() and t.get_figure(root=True) is fig:
+            out[t] = t.get_window_extent(renderer)
+    return out
+
+
+def caution_text(fig):
+    import matplotlib.text
+
+    found = [
+        t
+        for t in fig.findobj(matplotlib.text.Text)
+        if plot.CAUTION in " ".join(t.get_text().split())
+    ]
+    return found
+
+
+def rmf_helix():
+    t = np.linspace(0.0, 12.0, 600)
+    xyz = np.column_stack([2 * np.cos(t), 2 * np.sin(t), 0.5 * t])
+    return osc.kinematics(t, xyz, up=(0, 0, 1), order=4, frame="rotation-minimizing")
+
+
+@pytest.mark.parametrize(
+    "make",
+    [
+        lambda: plot.path(circle_2d(), title="A rather long title of a circle " * 2),
+        lambda: plot.path(rmf_helix(), color="speed", frames_every=5.0, title="Drone-like"),
+        lambda: plot.gg(circle_2d(), limits=[(0.5, "source A")]),
+        lambda: plot.work(circle_2d(), values=circle_2d().arclength),
+        lambda: plot.profile(helix_3d()),
+    ],
+    ids=["path-2d", "path-3d", "gg", "work", "profile"],
+)
+def test_title_sits_above_the_subtitle_without_touching_it(make):
+    p = make()
+    boxes = window_boxes(p.figure)
+    ax = p.axes if not isinstance(p.axes, np.ndarray) else p.axes[0]
+    sub = next(t for t in boxes if t.get_text().startswith("estimator:") or "=" in t.get_text())
+    title = next(t for t in boxes if t.get_fontweight() == "bold")
+    b_title, b_sub = boxes[title], boxes[sub]
+    assert not b_title.overlaps(b_sub)
+    assert b_title.y0 >= b_sub.y1 - 0.5  # stacked: title above
+    assert abs(b_title.x0 - b_sub.x0) < 2.0  # and left-aligned together
+    # Both inside the figure, above the axes.
+    width, height = p.figure.bbox.width, p.figure.bbox.height
+    assert 0 <= b_sub.x0 and b_title.x1 <= width + 1 and b_title.y1 <= height + 1
+    assert b_sub.y0 >= ax.get_window_extent().y1 - 1
+
+
+def test_glyph_legend_names_the_frame_drawn():
+    frenet = [t.get_text() for t in plot.path(helix_3d(), frames_every=5.0).figure.legends[0].texts]
+    assert {"T (tangent)", "N (normal)", "B (binormal)"} <= set(frenet)
+    k = rmf_helix()
+    assert k.frame == "rotation-minimizing"
+    labels = [t.get_text() for t in plot.path(k, frames_every=5.0).figure.legends[0].texts]
+    assert "N (normal)" not in labels and "B (binormal)" not in labels
+    assert {"T (tangent)", "U (rotation-minimizing normal)", "V (T × U)"} <= set(labels)
+    assert "rotation-minimizing frame every 5 m" in labels
+    # In the plane too, and for a frame of df.osc.kinematics results (a twist column).
+    t = np.linspace(0.0, 20.0, 401)
+    xy = 50.0 * np.column_stack([np.cos(0.3 * t), np.sin(0.3 * t)])
+    k2 = osc.kinematics(t, xy, frame="rotation-minimizing")
+    labels = [t.get_text() for t in plot.path(k2, frames_every=50.0).figure.legends[0].texts]
+    assert "U (rotation-minimizing normal)" in labels and "N (normal)" not in labels
+    import pandas as pd
+
+    df = pd.DataFrame({"t": t, "x": xy[:, 0], "y": xy[:, 1]})
+    res = df.osc.kinematics(time="t", position=["x", "y"], keep=True, frame="rotation-minimizing")
+    labels = [t.get_text() for t in plot.path(res, frames_every=50.0).figure.legends[0].texts]
+    assert "U (rotation-minimizing normal)" in labels and "N (normal)" not in labels
+
+
+def scaled_circle(radius, n=201):
+    u = np.linspace(0.0, 6.0, n)  # most of a turn, at no more than 10 m/s
+    t = u * max(1.0, radius / 10.0)
+    return osc.kinematics(t, radius * np.column_stack([np.cos(u), np.sin(u)]))
+
+
+@pytest.mark.parametrize(
+    "radius, unit, factor",
+    [(0.025, "mm", 1e3), (0.2, "mm", 1e3), (0.3, "m", 1.0), (2e4, "m", 1.0), (3e4, "km", 1e-3)],
+)
+def test_length_unit_follows_the_extent(radius, unit, factor):
+    # Extent = the circle's diameter (nearly all of it is drawn): 5 cm, 40 cm, 60 cm, 40 km, 60 km.
+    k = scaled_circle(radius)
+    p = plot.path(k, color="radius")
+    assert (p.axes.get_xlabel(), p.axes.get_ylabel()) == (f"x [{unit}]", f"y [{unit}]")
+    assert p.figure.axes[-1].get_ylabel() == f"radius of curvature ρ [{unit}]"
+    for axis in (p.axes.xaxis, p.axes.yaxis, p.figure.axes[-1].yaxis):
+        for loc, value in tick_values(axis):  # the numbers are in the labelled unit
+            assert np.isclose(value, loc * factor, rtol=1e-9, atol=1e-9 * factor * radius)
+    # The data stay in metres.
+    segs = np.concatenate(p.axes.collections[0].get_segments())
+    assert np.isclose(np.abs(segs).max(), radius, rtol=1e-9)
+    prof = plot.profile(k, quantities=["speed", "radius"])
+    assert prof.axes[-1].get_xlabel() == f"arc length s [{unit}]"
+    assert " ".join(prof.axes[1].get_ylabel().split()) == f"radius of curvature ρ [{unit}]"
+    assert prof.axes[0].get_ylabel() == "speed v [m/s]"  # rates stay in SI
+    assert plot.work(k, values=k.arclength).axes.get_xlabel() == f"arc length s [{unit}]"
+
+
+def test_length_unit_override_and_caller_units():
+    k = scaled_circle(0.025)
+    p = plot.path(k, frames_every=0.01, length_unit="m")
+    assert p.axes.get_xlabel() == "x [m]"
+    assert "Frenet frame every 0.01 m" in [t.get_text() for t in p.figure.legends[0].texts]
+    p = plot.path(k, frames_every=0.01)
+    assert "Frenet frame every 10 mm" in [t.get_text() for t in p.figure.legends[0].texts]
+    p = plot.path(k, length_unit="cm")
+    assert p.axes.get_xlabel() == "x [cm]"
+    assert all(np.isclose(v, loc * 100) for loc, v in tick_values(p.axes.xaxis))
+    # Positions in the caller's own unit are labelled so, never rescaled by "auto".
+    p = plot.path(k, units={"length": "px"})
+    assert p.axes.get_xlabel() == "x [px]"
+    assert all(np.isclose(v, loc) for loc, v in tick_values(p.axes.xaxis))
+    p = plot.path(scaled_circle(30.0), units={"length": "km"}, length_unit="m")
+    assert p.axes.get_xlabel() == "x [m]"
+    assert all(np.isclose(v, loc * 1e3) for loc, v in tick_values(p.axes.xaxis))
+    with pytest.raises(osc.InputError, match="length_unit"):
+        plot.path(k, units={"length": "px"}, length_unit="mm")
+    with pytest.raises(osc.InputError, match="length_unit"):
+        plot.path(k, length_unit="furlong")
+
+
+CAUTIONED_FIGURES = {
+    "path a_n": lambda k: plot.path(k, color="accel_normal"),
+    "path jerk": lambda k: plot.path(k, color="jerk"),
+    "path radius": lambda k: plot.path(k, color="radius"),
+    "path |a|": lambda k: plot.path(k, color="acceleration"),
+    "profile default": lambda k: plot.profile(k),
+    "profile a_n": lambda k: plot.profile(k, quantities=["speed", "accel_normal"]),
+    "profile jerk": lambda k: plot.profile(k, quantities=["jerk"]),
+    "profile radius": lambda k: plot.profile(k, quantities=["curvature", "radius"]),
+    "gg": lambda k: plot.gg(k),
+    "gg limits": lambda k: plot.gg(k, limits=[(0.4, "source A")]),
+    "gg no colour": lambda k: plot.gg(k, color=None),
+}
+PLAIN_FIGURES = {
+    "path speed": lambda k: plot.path(k, color="speed"),
+    "path curvature": lambda k: plot.path(k),
+    "path plain": lambda k: plot.path(k, color=None),
+    "profile speed": lambda k: plot.profile(k, quantities=["speed", "curvature"]),
+    "work": lambda k: plot.work(k, values=k.arclength),
+}
+
+
+@pytest.mark.parametrize("name", list(CAUTIONED_FIGURES))
+@pytest.mark.parametrize("kind", ["2d", "3d"])
+def test_figures_of_a_n_jerk_or_radius_carry_the_caution(name, kind):
+    from osculate import _palette as palette
+
+    p = CAUTIONED_FIGURES[name](RESULTS[kind]())
+    found = caution_text(p.figure)
+    assert len(found) == 1, name
+    note = found[0]
+    assert note.get_color() == palette.MUTED and note.get_fontsize() <= 8
+    # It overlaps no other text (titles, tick labels, axis labels, legends, colour bars).
+    boxes = window_boxes(p.figure)
+    mine = boxes.pop(note)
+    clash = [t.get_text() for t, b in boxes.items() if b.overlaps(mine)]
+    assert not clash, clash
+    # Nor the plotting area of a 2-D axes or the legend, and it stays inside the figure.
+    for ax in p.figure.axes:
+        if not hasattr(ax, "zaxis"):
+            assert not ax.get_window_extent().overlaps(mine), name
+    for legend in p.figure.legends:
+        assert not legend.get_window_extent().overlaps(mine)
+    assert mine.x0 >= 0 and mine.y0 >= 0 and mine.x1 <= p.figure.bbox.width + 1
+
+
+@pytest.mark.parametrize("name", list(PLAIN_FIGURES))
+def test_figures_without_them_carry_none(name):
+    p = PLAIN_FIGURES[name](circle_2d())
+    assert not caution_text(p.figure)
+    assert "licensed engineers" not in texts(p.figure)
+
+
+def test_caution_in_the_callers_axes():
+    fig = Figure(layout="constrained")
+    axes = fig.subplots(2, 1)
+    plot.gg(circle_2d(), ax=axes[0])
+    plot.path(circle_2d(), color="speed", ax=axes[1])
+    found = caution_text(fig)
+    assert len(found) == 1  # the g-g panel's; the speed path has none
+    boxes = window_boxes(fig)
+    mine = boxes.pop(found[0])
+    assert not [t.get_text() for t, b in boxes.items() if b.overlaps(mine)]
+    assert not axes[1].get_window_extent().overlaps(mine)
+    axes = Figure(layout="constrained").subplots(2, 1)
+    p = plot.profile(circle_2d(), quantities=["speed", "accel_normal"], ax=axes)
+    assert len(caution_text(p.figure)) == 1
+
+
+def test_tick_labels_are_plain_numbers_without_an_offset():
+    # A 25 mm circle at constant speed: a_n = v²/r = 0.025 m/s², constant, so the colour scale
+    # is narrow; matplotlib's default would print "6, 7, 8" and an offset "1e-8+2.4998e-2".
+    p = plot.path(scaled_circle(0.025), color="accel_normal")
+    cbar = p.figure.axes[-1]
+    values = tick_values(cbar.yaxis)
+    assert all(np.isclose(v, loc, rtol=1e-12) for loc, v in values)
+    assert all(0.02499 < v < 0.02501 for _, v in values)
+    assert cbar.yaxis.get_offset_text().get_text() == ""
+    p = plot.profile(scaled_circle(0.025), quantities=["speed", "accel_normal"])
+    for ax in p.axes:
+        assert all(np.isclose(v, loc, rtol=1e-12) for loc, v in tick_values(ax.yaxis))
+        assert ax.yaxis.get_offset_text().get_text() == ""

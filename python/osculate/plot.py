@@ -426,25 +426,32 @@ def _new_figure(size: tuple[float, float]) -> Figure:
 class _Scaled(Formatter):
     """Tick labels of the values times ``factor`` (metres shown as mm or km, joules as kJ).
 
-    Uses as few decimals as the ticks need to differ and read exactly; the axis keeps its data
-    (and its locator) in the data's units.
+    Plain numbers with as few decimals as the ticks need to differ and read exactly, never an
+    offset ("1e-7 + 2.4998e-2") that a reader has to add up; scientific notation only for very
+    small or very large values. The axis keeps its data (and its locator) in the data's units.
     """
 
-    def __init__(self, factor: float) -> None:
+    def __init__(self, factor: float = 1.0) -> None:
         self.factor = float(factor)
-        self.decimals = 0
+        self.spec = ".0f"
 
     def set_locs(self, locs: Any) -> None:
         v = np.unique(np.asarray(locs, dtype=float) * self.factor)
         v = v[np.isfinite(v)]
-        step = float(np.min(np.diff(v))) if len(v) > 1 else float(np.max(np.abs(v), initial=1.0))
-        tol = 1e-6 * step if step > 0 else 1e-12
-        self.decimals = next(
-            (n for n in range(13) if np.allclose(np.round(v, n), v, rtol=0.0, atol=tol)), 12
+        top = float(np.max(np.abs(v), initial=0.0))
+        step = float(np.min(np.diff(v))) if len(v) > 1 else top
+        tol = 1e-6 * step if step > 0 else 1e-12 * max(top, 1e-300)
+        decimals = next(
+            (n for n in range(16) if np.allclose(np.round(v, n), v, rtol=0.0, atol=tol)), 15
         )
+        if top == 0.0 or 1e-4 <= top < 1e9:
+            self.spec = f".{decimals}f"
+        else:  # as many significant digits as the ticks need, all alike
+            exact = (p for p in range(15) if all(abs(float(f"{x:.{p}e}") - x) <= tol for x in v))
+            self.spec = f".{next(exact, 14)}e"
 
     def __call__(self, x: float, pos: Optional[int] = None) -> str:
-        text = f"{x * self.factor:.{self.decimals}f}"
+        text = format(x * self.factor, self.spec)
         if float(text) == 0.0:
             text = text.lstrip("-")
         return text.replace("-", "\N{MINUS SIGN}")
@@ -462,8 +469,7 @@ class _Lengths(NamedTuple):
 
     def apply(self, axis: Any) -> None:
         """Label the ticks of an axis holding lengths in the shown unit."""
-        if self.factor != 1.0:
-            axis.set_major_formatter(_Scaled(self.factor))
+        axis.set_major_formatter(_Scaled(self.factor))
 
 
 def _lengths(u: dict[str, str], length_unit: str, d: _Samples) -> _Lengths:
@@ -825,6 +831,8 @@ def path(
         cb.ax.tick_params(labelsize=8.5, colors=_MUTED, labelcolor=_INK)
         if isinstance(color, str) and color in lengths.quantities:
             lengths.apply(cb.ax.yaxis)
+        else:
+            cb.formatter = _Scaled()  # plain numbers, no offset to add up
         if np.isnan(seg_values).any():
             handles.append(Line2D([], [], color=_UNDEFINED, linewidth=2, label="undefined"))
     else:
@@ -1113,12 +1121,16 @@ def profile(
         a.yaxis.set_major_locator(MaxNLocator(4))
         if name in lengths.quantities:
             lengths.apply(a.yaxis)
+        else:
+            a.yaxis.set_major_formatter(_Scaled())  # plain numbers, no offset to add up
         _style(a)
         if np.isfinite(y).any() and np.nanmin(y) < 0 < np.nanmax(y):
             a.axhline(0.0, color=_MUTED, linewidth=0.6, zorder=1)
     axes[-1].set_xlabel(_label(x, u))
     if x in lengths.quantities:
         lengths.apply(axes[-1].xaxis)  # shared by every panel
+    else:
+        axes[-1].xaxis.set_major_formatter(_Scaled())
     finite_x = xs[np.isfinite(xs)]
     if finite_x.size:
         axes[-1].set_xlim(float(finite_x.min()), float(finite_x.max()))
@@ -1289,6 +1301,7 @@ def gg(
         cb.set_label(_label(color, u), color=_INK, fontsize=9.5)
         cb.outline.set_edgecolor(_MUTED)
         cb.ax.tick_params(labelsize=8.5, colors=_MUTED, labelcolor=_INK)
+        cb.formatter = _Scaled()
     else:
         ax.scatter(lat_g[good], lon_g[good], s=7, color=_LINE, alpha=0.7, linewidths=0, zorder=3)
     if weak.any():
@@ -1558,9 +1571,10 @@ def work(
     ax.set_xlabel(_label(x, u))
     if x in lengths.quantities:
         lengths.apply(ax.xaxis)
+    else:
+        ax.xaxis.set_major_formatter(_Scaled())
     ax.set_ylabel(_label("work", {**u, "energy": shown}))
-    if factor != 1.0:
-        ax.yaxis.set_major_formatter(_Scaled(factor))
+    ax.yaxis.set_major_formatter(_Scaled(factor))
     _style(ax)
     _title(ax, title or "Work done along the path", "W = ∫ F·dr; negative: energy taken out")
     return Plot(fig, ax)
