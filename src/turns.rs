@@ -332,11 +332,10 @@ fn track_turns(s: &Samples, rows: Range<usize>, k: usize, o: &TurnOptions) -> Ve
         };
     }
     runs.extend(open);
-    // 2. Merge runs of one sign across short blips: gaps with at most `merge_samples` typical
-    //    steps of arc length where the path is seen to go straight or the other way. A sample
-    //    is such evidence when it is significantly curved the other way, or when it could have
-    //    told a curvature of half the turn's from zero and did not; slow, noisy samples next to
-    //    a stop in a bend are neither (and a stop travels no distance).
+    // 2. Merge runs of one sign across short blips: gaps in which the path travels at most
+    //    `merge_samples` typical steps at speed (at least half the runs' speed). A stop in a
+    //    bend travels no distance, and the slow, noisy samples around it little; a straight
+    //    between two bends of one hand travels its length.
     let mut steps: Vec<f64> = rows
         .clone()
         .skip(1)
@@ -344,24 +343,19 @@ fn track_turns(s: &Samples, rows: Range<usize>, k: usize, o: &TurnOptions) -> Ve
         .map(|i| s.s[i] - s.s[i - 1])
         .collect();
     let step = crate::uncertainty::median(&mut steps);
-    let peak = |(a, b, d): (usize, usize, i8)| {
-        (a..=b)
+    let pace = |(a, b, _): (usize, usize, i8)| {
+        let mut v: Vec<f64> = (a..=b)
             .filter(|&i| s.moving(i))
-            .map(|i| d as f64 * s.curvature[i])
-            .fold(0.0f64, f64::max)
+            .map(|i| s.speed[i])
+            .collect();
+        crate::uncertainty::median(&mut v)
     };
     let mut merged: Vec<(usize, usize, i8)> = Vec::new();
     for run in runs {
         if let Some(prev) = merged.last_mut() {
-            let (d, level) = (run.2 as f64, 0.5 * peak(*prev).min(peak(run)));
-            let evidence = |i: usize| {
-                let k = d * s.curvature[i];
-                let other_way = k < 0.0 && stay(i);
-                let could_see = o.z_on * s.kappa_se(i) < level && k < level;
-                s.moving(i) && (other_way || could_see)
-            };
+            let fast = 0.5 * pace(*prev).min(pace(run));
             let straight: f64 = (prev.1 + 1..=run.0)
-                .filter(|&i| evidence(i))
+                .filter(|&i| s.moving(i) && s.speed[i] >= fast)
                 .map(|i| s.s[i] - s.s[i - 1])
                 .filter(|v| v.is_finite())
                 .sum();
