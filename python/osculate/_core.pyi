@@ -103,7 +103,7 @@ def find_elements(
     *,
     penalty: float,
     min_length: npt.NDArray[np.float64],
-    correlation: npt.NDArray[np.float64],
+    bandwidth: npt.NDArray[np.float64],
     significance: float,
     resolution: float,
     refine: bool,

@@ -141,11 +141,12 @@ def elements_of(
     penalty : float, optional
         Cost of one more element, in units of the weighted χ² of the curvature diagram. Default
         ``3 ln n_eff``: BIC-like, for the level, slope and change point of each piece over
-        ``n_eff`` = samples / smoothing bandwidth independent curvature values. Larger: fewer
-        elements.
+        ``n_eff`` = samples / (3 smoothing bandwidths) independent curvature values (smoothed
+        curvatures are correlated over about that many samples). Larger: fewer elements.
     min_length : float, optional
-        Shortest element in arc length (default: ``max(3, 2 · bandwidth)`` median sample
-        spacings of the track).
+        Shortest element in arc length (default: ``max(3, 6 · bandwidth)`` median sample
+        spacings of the track; the smoother rounds the curvature diagram over a few
+        bandwidths, so shorter elements are not resolved).
     significance : float
         Standard errors within which a piece's curvature (straight) or its slope (arc) count as
         zero.
@@ -168,7 +169,7 @@ def elements_of(
     Three steps per track, all in Rust (``src/elements.rs``): the signed curvature against arc
     length is cut into pieces linear in s by exact penalized segmentation (optimal partitioning
     with the PELT pruning of R. Killick, P. Fearnhead & I. A. Eckley, JASA 107 (2012)
-    1590–1598; weighted least squares with weights 1/(bandwidth · se²)); each piece is a
+    1590–1598; weighted least squares with weights 1/(3 bandwidths · se²)); each piece is a
     straight, an arc or a spiral by tests on its level and slope, neighbours of one kind
     merged unless keeping them apart pays for the penalty; then the chain, continuous in
     position and heading and in curvature at spiral ends, is fitted to the positions by
@@ -226,7 +227,7 @@ def elements_of(
     se = (k.se or {}).get("signed_curvature")
     se = np.full(len(k.t), np.nan) if se is None else se
     band = (k.fit_info or {}).get("bandwidth")
-    corr = np.ones(m) if band is None else np.asarray(band, dtype=float)
+    band = np.full(m, np.nan) if band is None else np.asarray(band, dtype=float)
     if penalty is None:
         beta = np.nan
     else:
@@ -248,7 +249,7 @@ def elements_of(
         g.offsets,
         penalty=beta,
         min_length=_per_track("min_length", min_length, m),
-        correlation=np.ascontiguousarray(corr, dtype=float),
+        bandwidth=np.ascontiguousarray(band, dtype=float),
         significance=as_real("significance", significance),
         resolution=as_real("resolution", resolution),
         refine=bool(refine),

@@ -6,6 +6,7 @@ use numpy::{IntoPyArray, PyArray1, PyReadonlyArray1, PyReadonlyArray2};
 use pyo3::prelude::*;
 use pyo3::types::PyDict;
 
+type Pair<'py> = (Bound<'py, PyArray1<f64>>, Bound<'py, PyArray1<f64>>);
 type Column = (&'static str, fn(&Element) -> f64);
 
 /// Straights, arcs and spirals of every track (see `osculate.elements`); one array per column,
@@ -13,7 +14,7 @@ type Column = (&'static str, fn(&Element) -> f64);
 #[pyfunction]
 #[pyo3(signature = (
     t, arclength, curvature, se, flags, positions, offsets, *, penalty, min_length,
-    correlation, significance, resolution, refine, max_iterations
+    bandwidth, significance, resolution, refine, max_iterations
 ))]
 #[allow(clippy::too_many_arguments)]
 pub fn find_elements<'py>(
@@ -27,7 +28,7 @@ pub fn find_elements<'py>(
     offsets: PyReadonlyArray1<'py, i64>,
     penalty: f64,
     min_length: PyReadonlyArray1<'py, f64>,
-    correlation: PyReadonlyArray1<'py, f64>,
+    bandwidth: PyReadonlyArray1<'py, f64>,
     significance: f64,
     resolution: f64,
     refine: bool,
@@ -44,7 +45,7 @@ pub fn find_elements<'py>(
     let opt = Options {
         penalty,
         min_length: contiguous("min_length", min_length.as_slice())?,
-        correlation: contiguous("correlation", correlation.as_slice())?,
+        bandwidth: contiguous("bandwidth", bandwidth.as_slice())?,
         significance,
         resolution,
         refine,
@@ -95,10 +96,7 @@ pub fn find_elements<'py>(
 /// Fresnel integrals `(C(x), S(x))` elementwise (normalisation of `scipy.special.fresnel`,
 /// which returns them in the order `(S, C)`).
 #[pyfunction]
-pub fn fresnel<'py>(
-    py: Python<'py>,
-    x: PyReadonlyArray1<'py, f64>,
-) -> PyResult<(Bound<'py, PyArray1<f64>>, Bound<'py, PyArray1<f64>>)> {
+pub fn fresnel<'py>(py: Python<'py>, x: PyReadonlyArray1<'py, f64>) -> PyResult<Pair<'py>> {
     let x = contiguous("x", x.as_slice())?;
     let (c, s) = detached(py, || {
         let mut c = crate::error::try_filled(x.len(), 0.0)?;
