@@ -1215,7 +1215,7 @@ def gg(
     cmap : str or Colormap, default "viridis"
         Colour map of ``color``.
     ax : matplotlib Axes, optional
-        Draw here instead of in a new figure (the note then sits inside the axes).
+        Draw here instead of in a new figure (the caution then hangs under its x axis).
     title : str, optional
         Title.
     by : optional
@@ -1277,7 +1277,7 @@ def gg(
     good, weak = ok & ~doubtful, ok & doubtful
     own = ax is None
     if ax is None:
-        fig = _new_figure((7.0, 7.6))
+        fig = _new_figure((7.0, 7.6 if refs else 7.0))
         ax = fig.add_subplot()
     else:
         fig = ax.figure
