@@ -258,8 +258,13 @@ def test_report_estimates_match_the_ground_truth(demo_run):
     assert abs(est("centripetal acceleration in turns") / (6.0**2 / 30.0) - 1) < 0.03
     assert abs(est("cruise speed") / f.cruise_speed - 1) < 0.01
     assert abs(est("length of the flight path") / f.length - 1) < 0.01
+    assert est("turns found") == f.turn.max() + 1  # the plan's half-circle turns
+    worst = [v[0] for k, v in rows.items() if re.match(r"turn \d \(the worst\)", k)]
+    assert len(worst) == 1 and abs(worst[0] / f.turn_radius - 1) < 0.02  # plan: R = 30 m
     # Electric vehicle, truth from the loop's geometry and the logged force's model.
-    assert abs(est("bend radius") / 35.0 - 1) < 0.02
+    assert abs(est("bend radius (median") / 35.0 - 1) < 0.02
+    assert abs(est("bend radius from the turn table") / 35.0 - 1) < 0.02
+    assert est("bends found") == 2 * len(e.lap_distance)  # two bends per lap (construction)
     assert abs(est("clothoid rate") / (1 / (35.0 * 40.0)) - 1) < 0.05
     # Laps are numbered from 1 in the report; the generator's arrays are indexed from 0.
     lap = int(re.search(r"length of lap (\d)", " ".join(rows)).group(1))
@@ -281,7 +286,8 @@ def test_checks_csv_agrees_with_the_report(demo_run):
     rows = report_rows((out / "report.md").read_text())
     with (out / "checks.csv").open() as fh:
         checks = list(csv.DictReader(fh))
-    assert len(checks) == len(rows) == 16  # 14 figures + the hover stop and the summary radius
+    # 14 figures + the hover stop, the summary radius and the turn tables' counts and radii.
+    assert len(checks) == len(rows) == 20
     for c in checks:
         est, true = rows[c["figure"]]
         assert np.isclose(float(c["estimated"]), est, rtol=1e-4)
@@ -295,7 +301,7 @@ def test_checks_csv_has_the_signed_error(demo_run):
         checks = list(csv.DictReader(fh))
     shown = report_errors((out / "report.md").read_text())
     relative = [c for c in checks if c["relative"] == "True"]
-    assert len(relative) == 14  # all but the tracers' two error percentages
+    assert len(relative) == 16  # all but the tracers' two percentages and the two turn counts
     for c in checks:
         est, true, err = float(c["estimated"]), float(c["true"]), float(c["error"])
         # The definition: (estimated − true) / true for a relative check, else estimated − true;

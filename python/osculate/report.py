@@ -339,6 +339,27 @@ def _drone(out: Any, figs: bool, files: list[Any]) -> _Section:
             0.1,
         )
     )
+    turns = k.turns()
+    worst_turn = int(np.argmax(np.abs(turns.min_radius - f.turn_radius))) if len(turns) else 0
+    checks += [
+        Check(
+            name,
+            "turns found (turn table)",
+            "",
+            float(len(turns)),
+            float(f.turn.max() + 1),
+            0.0,
+            relative=False,
+        ),
+        Check(
+            name,
+            f"turn {worst_turn + 1} (the worst): radius of the circle through its core",
+            "m",
+            float(turns.min_radius[worst_turn]) if len(turns) else float("nan"),
+            f.turn_radius,
+            0.02,
+        ),
+    ]
     summary = k.summary_arrays()
     checks.append(
         Check(
@@ -449,6 +470,8 @@ def _spiral(out: Any, figs: bool, files: list[Any]) -> _Section:
     entry = (half > s0 + 0.1 * e.spiral_length) & (half < s0 + 0.9 * e.spiral_length)
     slope = np.polyfit(half[entry] - s0, k.signed_curvature[entry], 1)[0]
     summary = k.summary_arrays()
+    bends = k.turns()
+    worst_bend = int(np.argmax(np.abs(bends.min_radius - e.bend_radius))) if len(bends) else 0
     lap_err = (summary["length"] - e.lap_distance) / e.lap_distance
     worst = int(np.argmax(np.abs(lap_err)))  # an index: lap worst + 1
     w = line_work(e.xy, e.force, t=e.t, tracks=lap, cumulative=True)
@@ -462,6 +485,23 @@ def _spiral(out: Any, figs: bool, files: list[Any]) -> _Section:
             "bend radius (median over the circular arcs)",
             "m",
             float(np.median(k.radius[arc])),
+            e.bend_radius,
+            0.02,
+        ),
+        Check(
+            name,
+            "bends found (turn table, two per lap)",
+            "",
+            float(len(bends)),
+            float(2 * laps),
+            0.0,
+            relative=False,
+        ),
+        Check(
+            name,
+            "bend radius from the turn table (circle through the core, worst bend)",
+            "m",
+            float(bends.min_radius[worst_bend]) if len(bends) else float("nan"),
             e.bend_radius,
             0.02,
         ),
