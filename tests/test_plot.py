@@ -485,7 +485,7 @@ def window_boxes(fig):
     renderer = fig.canvas.get_renderer()
     out = {}
     for t in fig.findobj(matplotlib.text.Text):
-        if t.get_visible() and t.get_text().strip() and t.get_figure(root=True) is fig:
+        if t.get_visible() and t.get_text().strip():
             out[t] = t.get_window_extent(renderer)
     return out
 

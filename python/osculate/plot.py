@@ -90,6 +90,10 @@ _FLAG_STYLE = {  # colour, hatch, description
 }
 #: Samples drawn hollow (less reliable: EDGE, GAP, STOPPED) or not at all (INVALID) by :func:`gg`.
 GG_DOUBTFUL = Flag.EDGE | Flag.GAP | Flag.STOPPED | Flag.INVALID
+# Thin hatch lines where matplotlib can set them per artist (3.10 and later).
+_THIN_HATCH: dict[str, float] = (
+    {"hatch_linewidth": 0.5} if hasattr(PolyCollection, "set_hatch_linewidth") else {}
+)
 #: Half-width of the shaded bands in standard errors (two-sided 95 % of a normal distribution).
 BAND_Z = 1.96
 _REFERENCE_STYLES = list(
@@ -591,7 +595,7 @@ def _shade(ax: Any, x: F64, flags: npt.NDArray[np.uint8], d: _Samples, which: in
                 facecolors=colour,
                 edgecolors=colour,
                 hatch=hatch or None,
-                hatch_linewidth=0.5,
+                **_THIN_HATCH,
                 linewidths=0.0,
                 alpha=palette.FLAG_ALPHA,
                 zorder=0,
@@ -603,7 +607,7 @@ def _shade(ax: Any, x: F64, flags: npt.NDArray[np.uint8], d: _Samples, which: in
                 facecolor=colour,
                 edgecolor=colour,
                 hatch=hatch or None,
-                hatch_linewidth=0.5,
+                **_THIN_HATCH,
                 linewidth=0.0,
                 alpha=palette.FLAG_ALPHA,
                 label=text,
