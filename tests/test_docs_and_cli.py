@@ -19,6 +19,8 @@ MODULES = [
     "osculate.accessor",
     "osculate.dask",
     "osculate.plot",
+    "osculate.elements",
+    "osculate.turns",
 ]
 
 

@@ -286,3 +286,36 @@ def test_3d_needs_up():
         elements(T, np.column_stack([XY, T]))
     with pytest.raises(osc.InputError, match=r"^up:"):
         elements(T, np.column_stack([XY, T]), up=[0, 0, 0])
+
+
+def test_elements_through_kinematics_the_accessor_and_the_command_line(tmp_path):
+    # An invented stop-and-go vehicle (tests/test_trust.py): 60 m straight, stop, 30 m straight,
+    # quarter circle R = 20 m, 40 m straight, stop, 50 m straight (construction), 5 cm noise.
+    # Stops travel no distance, so the chain is straight 90 m → arc 31.4 m → straight 90 m:
+    # radius within 2 %, lengths within max(2 %, 2 spacings ~1.6 m), lateral RMS ≈ 0.05 m.
+    pd = pytest.importorskip("pandas")
+    from osculate.cli import main
+    from test_trust import _stop_and_go
+
+    frames = []
+    for vid, seed in (("a", 1), ("b", 2)):
+        t, x, _, _ = _stop_and_go(np.random.default_rng(seed))
+        frames.append(pd.DataFrame({"t": t, "x": x[:, 0], "y": x[:, 1], "van": vid}))
+    k = osc.kinematics(frames[0]["t"], frames[0][["x", "y"]], method="smooth")
+    el = k.elements()
+    assert list(el.kind_name) == ["straight", "arc", "straight"]
+    assert abs(el.radius[1] / 20 - 1) <= 0.02
+    np.testing.assert_allclose(el.length, [90, 10 * np.pi, 90], atol=max(1.6, 0.02 * 90))
+    assert np.all(np.abs(el.rms - 0.05) <= 0.015)
+    df = pd.concat(frames).sort_values("t", kind="stable").reset_index(drop=True)
+    table = df.osc.elements(time="t", position=["x", "y"], by="van", method="smooth")
+    assert list(table["van"]) == ["a"] * 3 + ["b"] * 3
+    # The accessor runs the same kernels on the same rows: equal to rounding (1e-9).
+    np.testing.assert_allclose(table["radius"].to_numpy()[:3], el.radius, rtol=1e-9)
+    src, out = tmp_path / "log.csv", tmp_path / "elements.csv"
+    df.to_csv(src, index=False)
+    args = ["--time", "t", "--position", "x,y", "--track", "van", "--method", "smooth", "-q"]
+    assert main(["summary", str(src), *args, "--elements", str(out)]) == 0
+    back = pd.read_csv(out)
+    np.testing.assert_allclose(back["radius"], table["radius"], rtol=1e-9)
+    assert list(back["kind"]) == list(table["kind"].astype(str))

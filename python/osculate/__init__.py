@@ -8,6 +8,7 @@ from __future__ import annotations
 
 from ._core import InputError, __version__
 from .diagnose import SuspectDataWarning
+from .elements import Elements, elements
 from .flags import Flag
 from .geodesy import enu_to_geodetic, geodetic_to_enu
 from .intrinsic import (
@@ -24,6 +25,7 @@ from .paths import Path, fit
 from .reparam import Resampled, resample
 from .stops import Stops
 from .summary import COLUMNS as SUMMARY_COLUMNS
+from .turns import SpeedChanges, Turns
 
 try:  # the DataFrame.osc accessor registers itself when pandas is importable
     from . import accessor as _accessor  # noqa: F401
@@ -33,6 +35,7 @@ except ImportError:  # pragma: no cover - numpy-only installs
 __all__ = [
     "SUMMARY_COLUMNS",
     "Derivatives",
+    "Elements",
     "Flag",
     "Frames",
     "GridField",
@@ -41,11 +44,14 @@ __all__ = [
     "LineIntegral",
     "Path",
     "Resampled",
+    "SpeedChanges",
     "Stops",
     "SuspectDataWarning",
+    "Turns",
     "__version__",
     "arclength",
     "derivatives",
+    "elements",
     "enu_to_geodetic",
     "fit",
     "frames",

@@ -496,6 +496,44 @@ def events(
     return {name: _event_frame(prep, getattr(k, name)(**r), by) for name, r in rules.items()}
 
 
+#: Options of :func:`osculate.elements.elements_of` the accessor passes on.
+_ELEMENT_OPTIONS = ("significance", "resolution", "refine", "max_iterations")
+
+
+def element_table(
+    df: pd.DataFrame,
+    time: Hashable,
+    position: Sequence[Hashable],
+    by: Optional[Hashable],
+    crs: str,
+    origin: npt.ArrayLike | None,
+    options: dict[str, Any],
+    rules: dict[str, Any],
+) -> pd.DataFrame:
+    """Return the table of :meth:`OscAccessor.elements` (``rules``: :func:`elements_of`'s)."""
+    from .elements import elements_of
+
+    prep = _Prepared(df, time, position, by, crs, origin)
+    if crs == "geodetic" and rules.get("up") is None:
+        rules = {**rules, "up": (0.0, 0.0, 1.0)}
+    k = prep.run(options) if prep.n else _synthetic(prep, options)
+    if not prep.n and k.dim == 3 and rules.get("up") is None:
+        rules = {**rules, "up": (0.0, 0.0, 1.0)}  # the synthetic run only gives the layout
+    keep = slice(None) if prep.n else slice(0, 0)
+    out = elements_of(k, **rules).to_pandas().iloc[keep].reset_index(drop=True)
+    code = np.asarray(out["track"], dtype=np.intp)
+    out["track"] = prep.labels[code]
+    # Times in the caller's type: each track's first time plus the seconds since it.
+    firsts = prep.offsets[:-1] if prep.order is None else prep.order[prep.offsets[:-1]]
+    origin_time = prep.time_values.iloc[firsts[code]].array if len(code) else []
+    for c in ("start_time", "end_time"):
+        if prep.datetimes:
+            out[c] = pd.Series(origin_time) + pd.to_timedelta(out[c], unit="s")
+        elif prep.integer_times:
+            out[c] = np.asarray(origin_time, dtype=np.float64) + out[c].to_numpy()
+    return out.rename(columns={"track": "track" if by is None else by})
+
+
 def _synthetic(prep: _Prepared, options: dict[str, Any]) -> Kinematics:
     """Run on a small made-up path with the same options: the layout for zero-row frames."""
     t = np.arange(24, dtype=np.float64)
@@ -765,6 +803,59 @@ class OscAccessor:
         rules.update(merge=merge, core=core, up=(0.0, 0.0, 1.0) if crs == "geodetic" else up)
         args = (self._df, time, position, by, crs, origin, options)
         return events(*args, {"turns": rules})["turns"]
+
+    def elements(
+        self,
+        *,
+        time: Hashable,
+        position: Sequence[Hashable],
+        by: Optional[Hashable] = None,
+        crs: str = "cartesian",
+        origin: npt.ArrayLike | None = None,
+        up: npt.ArrayLike | None = None,
+        penalty: float | None = None,
+        min_length: float | None = None,
+        **options: Any,
+    ) -> pd.DataFrame:
+        """Straights, circular arcs and transition spirals of every track, one row each.
+
+        Parameters
+        ----------
+        time, position, by, crs, origin, **options
+            As in :meth:`kinematics` (``method="smooth"`` is the usual choice for logs); the
+            element options ``significance``, ``resolution``, ``refine`` and
+            ``max_iterations`` go to :func:`osculate.elements.elements_of`.
+        up, penalty, min_length
+            As in :meth:`osculate.Kinematics.elements` (geodetic input: up is the local
+            vertical).
+
+        Returns
+        -------
+        pandas.DataFrame
+            The columns of :class:`osculate.Elements` (``kind`` by name), the track label named
+            after ``by``, ``start_time``/``end_time`` in the time column's own type. Element
+            tables are reconstructions from logged data; design values are decided by local
+            codes and licensed engineers.
+
+        Examples
+        --------
+        >>> import numpy as np
+        >>> import pandas as pd
+        >>> import osculate as osc
+        >>> s = np.arange(0.0, 200.0 + 50 * np.pi / 3, 1.0)
+        >>> a = np.clip((s - 100.0) / 50.0, 0.0, np.pi / 3)
+        >>> after = np.clip(s - 100.0 - 50 * np.pi / 3, 0.0, None)
+        >>> x = np.where(s < 100, s, 100 + 50 * np.sin(a)) + after * np.cos(np.pi / 3)
+        >>> y = 50 * (1 - np.cos(a)) + after * np.sin(np.pi / 3)
+        >>> df = pd.DataFrame({"t": s / 10.0, "x": x, "y": y})
+        >>> el = df.osc.elements(time="t", position=["x", "y"], method="spline")
+        >>> el["kind"].astype(str).tolist()
+        ['straight', 'arc', 'straight']
+        """
+        element_rules = {k: options.pop(k) for k in list(options) if k in _ELEMENT_OPTIONS}
+        rules = {"up": up, "penalty": penalty, "min_length": min_length, **element_rules}
+        args = (self._df, time, position, by, crs, origin, options)
+        return element_table(*args, rules)
 
     def speed_changes(
         self,

@@ -557,7 +557,7 @@ def _analyze(args: argparse.Namespace) -> int:
 def _summarize(args: argparse.Namespace) -> int:
     """``osculate summary``: one line per track and the stop intervals."""
     pd = _pandas()
-    from .accessor import RESULTS_SUMMARIZED, events, summary_and_stops
+    from .accessor import RESULTS_SUMMARIZED, element_table, events, summary_and_stops
 
     spec = _selection(args)
     source = _check_input(args.file)
@@ -566,6 +566,7 @@ def _summarize(args: argparse.Namespace) -> int:
         "--stops": args.stops,
         "--turns": args.turns,
         "--speed-changes": args.speed_changes,
+        "--elements": args.elements,
     }
     paths = {k: _check_output(v, k) for k, v in outputs.items() if v is not None}
     seen: dict[Any, str] = {}
@@ -610,6 +611,16 @@ def _summarize(args: argparse.Namespace) -> int:
         for name in rules:  # rows within a chunk are not the file's: left out
             both = pd.concat([p[name] for _, p in ev], ignore_index=True)
             found[name] = both.drop(columns=["first_row", "last_row"])
+    if "--elements" in paths:
+        up = {"up": spec.get("up") or (0.0, 0.0, 1.0)} if len(position) == 3 else {}
+        options = {k: v for k, v in spec.items() if k != "up"}
+        parts_el = _in_chunks(
+            df,
+            args.track,
+            lambda part: element_table(part, time_col, position, by, crs, origin, options, up),
+            args,
+        )
+        found["elements"] = pd.concat([p for _, p in parts_el], ignore_index=True)
     if "--output" in paths:
         _write(table, paths["--output"], "--output")
     if "--stops" in paths:
@@ -618,13 +629,19 @@ def _summarize(args: argparse.Namespace) -> int:
         _write(found["turns"], paths["--turns"], "--turns")
     if "--speed-changes" in paths:
         _write(found["speed_changes"], paths["--speed-changes"], "--speed-changes")
+    if "--elements" in paths:
+        _write(found["elements"], paths["--elements"], "--elements")
     if not args.quiet:
         with pd.option_context("display.max_rows", None, "display.width", 250):
             print(table.to_string())
             print(f"\n{len(stops)} stop(s):")
             if len(stops):
                 print(stops.to_string(index=False))
-            for name, what in (("turns", "turn(s)"), ("speed_changes", "speed change(s)")):
+            for name, what in (
+                ("turns", "turn(s)"),
+                ("speed_changes", "speed change(s)"),
+                ("elements", "element(s): straights, arcs, spirals"),
+            ):
                 if name in found:
                     print(f"\n{len(found[name])} {what}:")
                     if len(found[name]):
@@ -709,6 +726,11 @@ def _add_data_commands(sub: Any) -> None:
         "--speed-changes",
         help="also write one row per speed-up or slow-down above 0.5 length units/time unit² "
         "(.csv or .parquet)",
+    )
+    summary.add_argument(
+        "--elements",
+        help="also write the path's straights, circular arcs and transition spirals, one row "
+        "each (.csv or .parquet): reconstructions from the log, not design values",
     )
     summary.add_argument(
         "--recompute",

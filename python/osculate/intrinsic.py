@@ -27,6 +27,7 @@ from .flags import Flag
 from .stops import Stops, find_stops, stop_table
 
 if TYPE_CHECKING:
+    from .elements import Elements
     from .turns import SpeedChanges, Turns
 
 __all__ = [
@@ -285,6 +286,52 @@ class Kinematics:
             merge=merge,
             core=core,
         )
+
+    def elements(
+        self,
+        *,
+        up: npt.ArrayLike | None = None,
+        penalty: float | None = None,
+        min_length: float | None = None,
+        **options: Any,
+    ) -> Elements:
+        """Return the straights, circular arcs and transition spirals of every track.
+
+        Parameters
+        ----------
+        up : array_like, shape (3,), optional
+            For 3-D paths, the vertical (the elements are those of the plan view); required
+            there.
+        penalty, min_length, **options
+            As in :func:`osculate.elements.elements_of` (cost of one more element; shortest
+            element; ``significance``, ``resolution``, ``refine``, ``max_iterations``).
+
+        Returns
+        -------
+        Elements
+            One row per element (see :func:`osculate.elements`); element tables are
+            reconstructions from logged data, and design values are decided by local codes and
+            licensed engineers.
+
+        Examples
+        --------
+        A straight, then a circular arc of radius 50 m turning 60°, then a straight:
+
+        >>> import numpy as np
+        >>> import osculate as osc
+        >>> s = np.arange(0.0, 200.0 + 50 * np.pi / 3, 1.0)
+        >>> a = np.clip((s - 100.0) / 50.0, 0.0, np.pi / 3)
+        >>> after = np.clip(s - 100.0 - 50 * np.pi / 3, 0.0, None)
+        >>> x = np.where(s < 100, s, 100 + 50 * np.sin(a)) + after * np.cos(np.pi / 3)
+        >>> y = 50 * (1 - np.cos(a)) + after * np.sin(np.pi / 3)
+        >>> k = osc.kinematics(s / 10.0, np.column_stack([x, y]), method="spline")
+        >>> el = k.elements()
+        >>> [str(n) for n in el.kind_name], round(float(el.radius[1]), 3)
+        (['straight', 'arc', 'straight'], 50.0)
+        """
+        from .elements import elements_of
+
+        return elements_of(self, up=up, penalty=penalty, min_length=min_length, **options)
 
     def speed_changes(
         self,

@@ -203,7 +203,24 @@ def find_turns(
     merge: int = 5,
     core: float = 0.75,
 ) -> Turns:
-    """Return the turns of every track of ``k``; see :meth:`osculate.Kinematics.turns`."""
+    """Return the turns of every track of ``k``; see :meth:`osculate.Kinematics.turns`.
+
+    Examples
+    --------
+    Half a circle of radius 15 driven to the right, between two straights:
+
+    >>> import numpy as np
+    >>> import osculate as osc
+    >>> from osculate.turns import find_turns
+    >>> s = np.arange(0.0, 80.0 + 15 * np.pi, 0.5)
+    >>> a = np.clip((s - 40.0) / 15.0, 0.0, np.pi)
+    >>> x = np.where(s < 40, s, 40 + 15 * np.sin(a)) - np.clip(s - 40 - 15 * np.pi, 0, None)
+    >>> y = -15 * (1 - np.cos(a))
+    >>> turns = find_turns(osc.kinematics(s / 5.0, np.column_stack([x, y]), method="spline"))
+    >>> t0 = turns.to_pandas().iloc[0]
+    >>> str(t0.direction), round(float(t0.heading_change)), round(float(t0.min_radius), 2)
+    ('right', -180, 15.0)
+    """
     g = k._grouping
     kern = g.to_kernel
     kappa, xy, vxy = _plane(k, up)
@@ -267,7 +284,23 @@ def find_speed_changes(
     hold: float = 1.0,
     min_samples: int = 3,
 ) -> SpeedChanges:
-    """Return the speed changes of every track; see :meth:`osculate.Kinematics.speed_changes`."""
+    """Return the speed changes of every track; see :meth:`osculate.Kinematics.speed_changes`.
+
+    Examples
+    --------
+    Braking from 20 m/s to rest at 4 m/s² on a straight line:
+
+    >>> import numpy as np
+    >>> import osculate as osc
+    >>> from osculate.turns import find_speed_changes
+    >>> t = np.linspace(0.0, 8.0, 161)
+    >>> v = np.maximum(20.0 - 4.0 * np.maximum(t - 2.0, 0.0), 0.0)
+    >>> x = np.concatenate([[0.0], np.cumsum(0.5 * (v[1:] + v[:-1]) * np.diff(t))])
+    >>> k = osc.kinematics(t, np.column_stack([x, np.zeros_like(x)]))
+    >>> ch = find_speed_changes(k)
+    >>> str(ch.kind[0]), round(float(ch.peak_accel[0]), 1), round(float(ch.speed_before[0]))
+    ('slow-down', 4.0, 20)
+    """
     g = k._grouping
     kern = g.to_kernel
     on = as_real("threshold", threshold)
