@@ -343,6 +343,19 @@ def _select(
     return chosen
 
 
+def _caller_time(prep: _Prepared, elapsed: np.ndarray, since: Any) -> Any:
+    """Return the times ``elapsed`` after the caller's times ``since`` in the caller's type.
+
+    Datetimes for datetime columns (``elapsed`` in seconds), the integers' own unit for integer
+    columns; float times are already the caller's.
+    """
+    if prep.datetimes:
+        return (pd.Series(since) + pd.to_timedelta(np.asarray(elapsed), unit="s")).array
+    if prep.integer_times:
+        return np.asarray(since, dtype=np.float64) + np.asarray(elapsed)
+    return elapsed
+
+
 def summary_and_stops(
     df: pd.DataFrame,
     time: Hashable,
@@ -377,10 +390,7 @@ def summary_and_stops(
     out["end"] = raw.iloc[last].array
     # The times of the extremes, like start and end, in the caller's type and origin.
     for c in [c for c in out.columns if str(c).endswith("_at")]:
-        if prep.datetimes:
-            out[c] = out["start"] + pd.to_timedelta(out[c].to_numpy(), unit="s")
-        elif prep.integer_times:
-            out[c] = out["start"].to_numpy(np.float64) + out[c].to_numpy()
+        out[c] = _caller_time(prep, out[c].to_numpy(), out["start"].array)
     if prep.crs == "geodetic":
         o = prep.origins if prep.origins is not None else np.empty((0, 3))
         for j, name in enumerate(("origin_lat", "origin_lon", "origin_h")):
@@ -468,10 +478,7 @@ def _event_frame(prep: _Prepared, table: Any, by: Optional[Hashable]) -> pd.Data
     raw = prep.time_values
     start = raw.iloc[rows[0]].array
     for c in [c for c in out.columns if str(c).endswith("_at")]:
-        if prep.datetimes:
-            out[c] = pd.Series(start) + pd.to_timedelta(out[c] - out["start"], unit="s")
-        elif prep.integer_times:
-            out[c] = np.asarray(start, dtype=np.float64) + (out[c] - out["start"]).to_numpy()
+        out[c] = _caller_time(prep, (out[c] - out["start"]).to_numpy(), start)
     out["start"], out["end"] = start, raw.iloc[rows[1]].array
     return out.rename(columns={"track": "track" if by is None else by})
 
@@ -525,12 +532,9 @@ def element_table(
     out["track"] = prep.labels[code]
     # Times in the caller's type: each track's first time plus the seconds since it.
     firsts = prep.offsets[:-1] if prep.order is None else prep.order[prep.offsets[:-1]]
-    origin_time = prep.time_values.iloc[firsts[code]].array if len(code) else []
+    origin_time = prep.time_values.iloc[firsts[code]].array
     for c in ("start_time", "end_time"):
-        if prep.datetimes:
-            out[c] = pd.Series(origin_time) + pd.to_timedelta(out[c], unit="s")
-        elif prep.integer_times:
-            out[c] = np.asarray(origin_time, dtype=np.float64) + out[c].to_numpy()
+        out[c] = _caller_time(prep, out[c].to_numpy(), origin_time)
     return out.rename(columns={"track": "track" if by is None else by})
 
 
