@@ -28,8 +28,27 @@ CAUTION = (
 )
 
 
+class _Table:
+    """Column arrays of equal length, one row per event."""
+
+    start: npt.NDArray[np.float64]
+
+    def __len__(self) -> int:
+        return len(self.start)
+
+    def columns(self) -> dict[str, np.ndarray]:
+        """Every attribute as a column, in order."""
+        return {f.name: getattr(self, f.name) for f in dataclasses.fields(self)}  # type: ignore[arg-type]
+
+    def to_pandas(self) -> Any:
+        """Return the table as a :class:`pandas.DataFrame`, one row per event."""
+        import pandas as pd
+
+        return pd.DataFrame(self.columns())
+
+
 @dataclasses.dataclass(frozen=True)
-class Turns:
+class Turns(_Table):
     """One row per turn, ordered by track and time (see :meth:`osculate.Kinematics.turns`).
 
     Attributes
@@ -86,22 +105,9 @@ class Turns:
     first_row: npt.NDArray[np.int64]
     last_row: npt.NDArray[np.int64]
 
-    def __len__(self) -> int:
-        return len(self.start)
-
-    def columns(self) -> dict[str, np.ndarray]:
-        """Every attribute as a column, in order."""
-        return {f.name: getattr(self, f.name) for f in dataclasses.fields(self)}
-
-    def to_pandas(self) -> Any:
-        """Return the turns as a :class:`pandas.DataFrame`, one row each."""
-        import pandas as pd
-
-        return pd.DataFrame(self.columns())
-
 
 @dataclasses.dataclass(frozen=True)
-class SpeedChanges:
+class SpeedChanges(_Table):
     """One row per marked speed-up or slow-down (see :meth:`osculate.Kinematics.speed_changes`).
 
     Attributes
@@ -141,19 +147,6 @@ class SpeedChanges:
     samples: npt.NDArray[np.int64]
     first_row: npt.NDArray[np.int64]
     last_row: npt.NDArray[np.int64]
-
-    def __len__(self) -> int:
-        return len(self.start)
-
-    def columns(self) -> dict[str, np.ndarray]:
-        """Every attribute as a column, in order."""
-        return {f.name: getattr(self, f.name) for f in dataclasses.fields(self)}
-
-    def to_pandas(self) -> Any:
-        """Return the speed changes as a :class:`pandas.DataFrame`, one row each."""
-        import pandas as pd
-
-        return pd.DataFrame(self.columns())
 
 
 def _plane(k: Kinematics, up: Any) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
