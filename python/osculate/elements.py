@@ -221,9 +221,10 @@ def elements_of(
         xy = np.ascontiguousarray(kern(k.position))
     kappa = k.signed_curvature
     if dim == 3 and not np.any(np.isfinite(kappa)):
-        raise _core.InputError(
-            "up: the Kinematics has no signed curvature; compute it with the same up="
-        )
+        # Computed without up: sign κ here, left of the motion about up positive.
+        u = np.cross(plane[0], plane[1])
+        side = np.sign(np.cross(k.velocity, k.acceleration) @ u)
+        kappa = np.where(side == 0, 0.0, side) * k.curvature
     se = (k.se or {}).get("signed_curvature")
     se = np.full(len(k.t), np.nan) if se is None else se
     band = (k.fit_info or {}).get("bandwidth")
