@@ -594,3 +594,89 @@ pub fn evaluate(fits: &Fits, t: &[f64], query_offsets: &[i64], nu: usize) -> Res
         });
     Ok(out)
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// An arc of radius 5 (about a quarter circle) at unit speed, sampled unevenly; 2-D rows.
+    fn arc(n: usize) -> (Vec<f64>, Vec<f64>) {
+        let t: Vec<f64> = (0..n)
+            .map(|i| {
+                let u = i as f64 / (n - 1) as f64;
+                (u + 0.05 * (7.0 * u).sin()) * 5.0 * std::f64::consts::FRAC_PI_2
+            })
+            .collect();
+        let x = t
+            .iter()
+            .flat_map(|&s| [5.0 * (s / 5.0).cos(), 5.0 * (s / 5.0).sin()])
+            .collect();
+        (t, x)
+    }
+
+    #[test]
+    fn linear_fit_lengths_are_the_chords() {
+        // The polyline's cumulative length is the sum of the chords (closed form: 3-4-5 steps).
+        let t = [0.0, 1.0, 2.0, 3.0];
+        let x = [0.0, 0.0, 3.0, 4.0, 6.0, 8.0, 6.0, 8.0];
+        let f = fit_track(&t, &x, 2, None, &Method::Linear).unwrap();
+        assert_eq!(f.cumulative_length().unwrap(), vec![0.0, 5.0, 10.0, 10.0]);
+        let mut out = [0.0; 8];
+        f.at_time(0.5, &mut out); // midway along the first chord, velocity (3, 4)
+        assert_eq!(&out[..4], &[1.5, 2.0, 3.0, 4.0]);
+    }
+
+    #[test]
+    fn spline_arc_length_of_a_quarter_circle() {
+        // Interpolating cubic through 41 uneven samples of an arc of radius 5 at unit speed: the
+        // length is the elapsed time (closed form) to 1e-6 relative (spline error ~h⁴, h ≈ 0.2).
+        let (t, x) = arc(41);
+        let f = fit_track(&t, &x, 2, None, &Method::Spline(EndCondition::NotAKnot)).unwrap();
+        let cum = f.cumulative_length().unwrap();
+        let exact = t[40] - t[0];
+        assert!((cum[40] / exact - 1.0).abs() < 1e-6, "{}", cum[40]);
+        // length_to between samples agrees with the cumulative lengths at the samples.
+        assert!((f.length_to(&cum, t[20]) - cum[20]).abs() < 1e-12);
+        assert!(f.info().smoothing.is_nan());
+    }
+
+    #[test]
+    fn batch_skips_non_finite_rows_and_flags_short_tracks() {
+        // Two tracks: the first has a NaN row (fitted on the others, its rows recorded); the
+        // second has 3 finite rows of 4, fewer than a quintic smoothing spline needs (5).
+        let (t1, x1) = arc(30);
+        let mut x = x1.clone();
+        x[2 * 10] = f64::NAN;
+        let t2 = [0.0, 1.0, 2.0, 3.0, 4.0];
+        let x2 = [0.0, 0.0, 1.0, 0.0, f64::NAN, 0.0, 3.0, 0.0, 4.0, 0.0];
+        let mut t = t1.clone();
+        t.extend(t2);
+        x.extend(x2);
+        let method = Method::Smooth {
+            degree: 5,
+            smoothing: Smoothing::Gcv,
+            derivative: 0,
+            covariance: None,
+        };
+        let fits = fit_batch(&t, &x, 2, &[0, 30, 35], None, &method).unwrap();
+        let kept = fits.rows[0].as_ref().unwrap();
+        assert_eq!(kept.len(), 29);
+        assert!(!kept.contains(&10));
+        assert!(matches!(fits.tracks[1], TrackFit::Invalid));
+        assert!(fits.tracks[0].info().edf >= 3.0 - 1e-9); // tr A ≥ m = 3 (penalty null space)
+    }
+
+    #[test]
+    fn bad_weights_are_named() {
+        let (t, x) = arc(20);
+        let w = vec![1.0; 19];
+        let method = Method::Smooth {
+            degree: 3,
+            smoothing: Smoothing::Gcv,
+            derivative: 0,
+            covariance: None,
+        };
+        let err = fit_batch(&t, &x, 2, &[0, 20], Some(&w), &method).unwrap_err();
+        assert_eq!(err.argument(), "weights");
+    }
+}
