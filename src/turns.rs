@@ -383,11 +383,13 @@ fn track_turns(s: &Samples, rows: Range<usize>, k: usize, o: &TurnOptions) -> Ve
     merged.retain(turned);
     // 3. Extend over the flanks where κ keeps its sign, up to the neighbouring turns.
     let mut out = Vec::new();
+    // End of the previous run's extension: flanks never overlap.
+    let mut taken = rows.start;
     for j in 0..merged.len() {
         let (mut a, mut b, d) = merged[j];
         let df = d as f64;
         let lo = if j > 0 {
-            merged[j - 1].1 + 1
+            (merged[j - 1].1 + 1).max(taken)
         } else {
             rows.start
         };
@@ -403,6 +405,7 @@ fn track_turns(s: &Samples, rows: Range<usize>, k: usize, o: &TurnOptions) -> Ve
         while b + 1 < hi && same(b + 1) {
             b += 1;
         }
+        taken = b + 1;
         // Heading change by trapezoids over consecutive moving samples.
         let mut heading = 0.0;
         let mut prev: Option<usize> = None;
