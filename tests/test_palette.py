@@ -255,3 +255,18 @@ def test_flag_shadings_stay_apart_light_and_hatched():
         set(palette.FLAGS) == set(palette.HATCHES) == {f.name for f in __import__("osculate").Flag}
     )
     assert len(set(palette.HATCHES.values())) == len(palette.HATCHES)  # one pattern each
+
+
+def test_element_shadings_and_the_model_stay_apart():
+    # The kinds as shaded in a curvature diagram, with the band drawn over them and white.
+    shades = [over_white(c, palette.ELEMENT_ALPHA) for c in palette.ELEMENTS.values()]
+    band = over_white(palette.BAND, palette.BAND_ALPHA)
+    white = palette.to_rgb(palette.PAPER)
+    assert smallest_difference([*shades, band, white]) >= palette.MIN_DELTA_E["ELEMENTS"]
+    assert min(palette.cielab(s)[0] for s in shades) >= 75.0  # the curves stay readable
+    # The fitted model against the estimated curve, every tint and white.
+    for other in [palette.LINE, *shades, white]:
+        assert smallest_difference([palette.MODEL, other]) >= palette.MIN_DELTA_E["MODEL"]
+    from osculate.elements import KINDS
+
+    assert set(palette.ELEMENTS) == set(KINDS)

@@ -17,8 +17,14 @@ so that the curves stay readable on them; they also differ from the standard-err
 tints cannot differ much, so each flag also has its own hatch (STRAIGHT: plain). The
 smallest differences reached, which the tests assert, are in :data:`MIN_DELTA_E`. Flags are
 further told apart by a hatch each (:data:`HATCHES`) and reference lines by a dash pattern each,
-so colour is never the only cue. Continuous quantities use matplotlib's viridis (or the caller's
-colour map); tracks use viridis sampled evenly between 0 and 0.82.
+so colour is never the only cue. The element kinds of a curvature diagram (straight, arc, spiral)
+were searched the same way, as shaded at :data:`ELEMENT_ALPHA` over white with L* ≥ 80 and apart
+from the band; the fitted model drawn over them (:data:`MODEL`) is a sample with L* ≤ 60 far from
+the estimated curve, the three tints and white (the farthest, inferno 0.60 and 0.65, lie next to
+the tangent glyph's colour, so the next one down was taken). Element kinds are also told apart
+by the model's shape (0, constant, linear) and, on a path, by a dash pattern each. Continuous
+quantities use matplotlib's viridis (or the caller's colour map); tracks use viridis sampled
+evenly between 0 and 0.82.
 
 The dichromat simulation
 ------------------------
@@ -48,6 +54,8 @@ import numpy.typing as npt
 __all__ = [
     "BAND",
     "BAND_ALPHA",
+    "ELEMENTS",
+    "ELEMENT_ALPHA",
     "FLAGS",
     "FLAG_ALPHA",
     "GLYPHS",
@@ -57,6 +65,7 @@ __all__ = [
     "INK",
     "LINE",
     "MIN_DELTA_E",
+    "MODEL",
     "MUTED",
     "NONE",
     "PANE",
@@ -116,6 +125,13 @@ HATCHES = {  # a second cue for each flag shading, independent of colour ("": pl
     "EDGE": "//",
     "VAGUE": "||",
 }
+ELEMENT_ALPHA = 0.3  # element shadings of the curvature diagram are drawn at this opacity
+ELEMENTS = {  # by element kind (osculate.elements.KINDS)
+    "straight": "#7d7c78",  # cividis 0.50 (nearly neutral: a straight is "no turn")
+    "arc": "#7ad151",  # viridis 0.80
+    "spiral": "#f0f921",  # plasma 1.00
+}
+MODEL = "#cc4248"  # inferno 0.55: the fitted chain of elements, over the estimate
 
 #: Where each sampled colour comes from: (matplotlib colour map, point in [0, 1]).
 SOURCES: dict[str, tuple[str, float]] = {
@@ -132,11 +148,17 @@ SOURCES: dict[str, tuple[str, float]] = {
     FLAGS["INVALID"]: ("viridis", 0.50),
     FLAGS["EDGE"]: ("viridis", 0.95),
     FLAGS["VAGUE"]: ("viridis", 0.70),
+    ELEMENTS["straight"]: ("cividis", 0.50),
+    ELEMENTS["arc"]: ("viridis", 0.80),
+    ELEMENTS["spiral"]: ("plasma", 1.00),
+    MODEL: ("inferno", 0.55),
 }
 
 #: Smallest ΔE*ab between members of each set (and white), under normal vision, protanopia and
-#: deuteranopia (flags as shaded, at FLAG_ALPHA over white, together with the band).
-MIN_DELTA_E = {"GLYPHS": 50.0, "REFERENCES": 40.0, "FLAGS": 8.5}
+#: deuteranopia (flags as shaded, at FLAG_ALPHA over white, together with the band; element
+#: kinds at ELEMENT_ALPHA over white with the band; the model against the estimated curve, the
+#: element tints and white).
+MIN_DELTA_E = {"GLYPHS": 50.0, "REFERENCES": 40.0, "FLAGS": 8.5, "ELEMENTS": 13.5, "MODEL": 40.0}
 
 # -- colour science: sRGB, CIELAB, dichromat simulation -------------------------------------------
 _SRGB_TO_XYZ = np.array(  # sRGB primaries, D65 white (IEC 61966-2-1)
