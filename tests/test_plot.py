@@ -8,7 +8,7 @@ import numpy as np
 import osculate as osc
 import pytest
 from matplotlib.backends.backend_agg import FigureCanvasAgg
-from matplotlib.collections import FillBetweenPolyCollection, PolyCollection
+from matplotlib.collections import FillBetweenPolyCollection, LineCollection, PolyCollection
 from matplotlib.figure import Figure
 from matplotlib.patches import Circle
 from matplotlib.quiver import Quiver
@@ -515,8 +515,9 @@ def rmf_helix():
         lambda: plot.gg(circle_2d(), limits=[(0.5, "source A")]),
         lambda: plot.work(circle_2d(), values=circle_2d().arclength),
         lambda: plot.profile(helix_3d()),
+        lambda: plot.curvature(helix_3d(), title="A curvature diagram with a long title " * 2),
     ],
-    ids=["path-2d", "path-3d", "gg", "work", "profile"],
+    ids=["path-2d", "path-3d", "gg", "work", "profile", "curvature"],
 )
 def test_title_sits_above_the_subtitle_without_touching_it(make):
     p = make()
@@ -621,6 +622,7 @@ CAUTIONED_FIGURES = {
     "gg": lambda k: plot.gg(k),
     "gg limits": lambda k: plot.gg(k, limits=[(0.4, "source A")]),
     "gg no colour": lambda k: plot.gg(k, color=None),
+    "curvature": lambda k: plot.curvature(k),
 }
 PLAIN_FIGURES = {
     "path speed": lambda k: plot.path(k, color="speed"),
@@ -691,3 +693,176 @@ def test_tick_labels_are_plain_numbers_without_an_offset():
     for ax in p.axes:
         assert all(np.isclose(v, loc, rtol=1e-12) for loc, v in tick_values(ax.yaxis))
         assert ax.yaxis.get_offset_text().get_text() == ""
+
+
+# -- the curvature diagram and the fitted elements ------------------------------------------------
+
+
+def clothoid_chain(spacing=0.5, grade=None):
+    """A straight of 60 m along +x, a left spiral of 50 m into R = 80 m, 70 m of that arc.
+
+    Exact positions: the clothoid from the straight is x = a·C(u/a), y = a·S(u/a) with
+    a = sqrt(π R L) (Fresnel integrals, scipy.special.fresnel's convention); it ends turned by
+    L/(2R), and the arc goes on about the centre R to its left. With ``grade`` the path climbs
+    z = grade·s (a 3-D path whose plan view is the chain). Returns t (10 m/s), positions, s.
+    """
+    from scipy.special import fresnel
+
+    straight, spiral, radius, arc = 60.0, 50.0, 80.0, 70.0
+    s = np.arange(0.0, straight + spiral + arc, spacing)
+    a = np.sqrt(np.pi * radius * spiral)
+    fs, fc = fresnel(np.clip(s - straight, 0.0, spiral) / a)
+    sx, sy = straight + a * fc, a * fs
+    end = straight + spiral
+    turn = spiral / (2 * radius)
+    ex, ey = sx[s >= end][0], sy[s >= end][0]  # the spiral's end (u clipped to L)
+    cx, cy = ex - radius * np.sin(turn), ey + radius * np.cos(turn)
+    phi = turn + np.clip(s - end, 0.0, None) / radius
+    x = np.where(s < straight, s, np.where(s < end, sx, cx + radius * np.sin(phi)))
+    y = np.where(s < straight, 0.0, np.where(s < end, sy, cy - radius * np.cos(phi)))
+    pos = np.column_stack([x, y] if grade is None else [x, y, grade * s])
+    return s / 10.0, pos, s
+
+
+def chain_elements(grade=None):
+    from osculate.elements import elements_of
+
+    t, pos, _ = clothoid_chain(grade=grade)
+    up = None if grade is None else (0.0, 0.0, 1.0)
+    k = osc.kinematics(t, pos, method="smooth", up=up)
+    return k, elements_of(k, up=up), pos
+
+
+def by_gid(fig, prefix):
+    return [c for c in fig.findobj() if str(c.get_gid() or "").startswith(prefix)]
+
+
+def distance_to_polyline(points, a, b):
+    """Smallest distance of each point to the segments a[j]–b[j] (any dimension)."""
+    ab = b - a
+    w = points[:, None, :] - a[None, :, :]
+    f = np.clip(np.einsum("ijk,jk->ij", w, ab) / np.einsum("jk,jk->j", ab, ab), 0.0, 1.0)
+    return np.linalg.norm(w - f[..., None] * ab[None], axis=2).min(axis=1)
+
+
+def test_curvature_diagram_draws_one_segment_per_element_and_names_the_kinds():
+    from osculate import _palette as palette
+    from osculate.elements import KINDS
+
+    k, el, _ = chain_elements()
+    assert [KINDS[c] for c in el.kind] == ["straight", "spiral", "arc"]  # the construction
+    p = plot.curvature(k, el)
+    (model,) = by_gid(p.figure, "elements:model")
+    segs = np.asarray(model.get_segments())
+    assert len(segs) == len(el)
+    # Each segment runs from (start s, start κ) to (end s, end κ): straights on 0, the arc flat.
+    assert np.allclose(segs[:, 0, 0], el.start_arclength) and np.allclose(
+        segs[:, 1, 0], el.end_arclength
+    )
+    assert np.allclose(segs[:, 0, 1], el.start_curvature) and np.allclose(
+        segs[:, 1, 1], el.end_curvature
+    )
+    assert np.all(segs[0, :, 1] == 0.0) and segs[2, 0, 1] == segs[2, 1, 1]
+    # One shading per kind present, a span per element, in the kind's tint; named in the legend.
+    for name in KINDS:
+        (shade,) = [
+            c for c in by_gid(p.figure, f"elements:{name}") if isinstance(c, PolyCollection)
+        ]
+        assert len(shade.get_paths()) == int(np.sum(el.kind_name == name))
+        assert np.allclose(shade.get_facecolor()[0][:3], palette.to_rgb(palette.ELEMENTS[name]))
+    legend = [t.get_text() for t in p.figure.legends[0].get_texts()]
+    for name in KINDS:
+        assert any(text.startswith(name) or f" {name} " in f" {text} " for text in legend), name
+    assert any(text.startswith("fitted elements (3)") for text in legend)
+    # The estimate with its 95 % band (k.se has the curvature), the caution, the axis units.
+    assert any(isinstance(c, FillBetweenPolyCollection) for c in p.axes.collections)
+    assert len(caution_text(p.figure)) == 1
+    assert p.axes.get_ylabel() == "signed curvature (left +) [1/m]"
+    assert p.axes.get_xlabel() == "arc length s [m]"
+
+
+def test_curvature_diagram_signs_3d_paths_about_up():
+    # A helix climbing anticlockwise about +z turns left about +z: κ = a/(a² + c²) > 0, and
+    # negative about −z. Without up the kinematics' own signed curvature (computed with up).
+    t = np.linspace(0.0, 12.0, 600)
+    xyz = np.column_stack([2 * np.cos(t), 2 * np.sin(t), 0.5 * t])
+    unsigned = osc.kinematics(t, xyz, order=4)
+    kappa = 2.0 / (2.0**2 + 0.5**2)
+
+    def drawn(p):
+        lc = [
+            c for c in p.axes.collections if isinstance(c, LineCollection) and c.get_gid() is None
+        ]
+        return np.concatenate([np.asarray(s)[:, 1] for s in lc[0].get_segments()])
+
+    inner = slice(100, -100)  # away from the EDGE samples
+    assert np.allclose(drawn(plot.curvature(unsigned, up=(0, 0, 1)))[inner], kappa, rtol=1e-3)
+    assert np.allclose(drawn(plot.curvature(unsigned, up=(0, 0, -2)))[inner], -kappa, rtol=1e-3)
+    # The kinematics' own 3-D signed curvature is (v × a)·up / |v|³ (src/frame.rs): for this
+    # helix v × a · z = a²ω³ = 4 and |v| = sqrt(a² + c²) = sqrt(4.25) (ω = 1).
+    signed = osc.kinematics(t, xyz, order=4, up=(0, 0, 1))
+    own = 4.0 / 4.25**1.5
+    assert np.allclose(drawn(plot.curvature(signed))[inner], own, rtol=1e-3)
+    with pytest.raises(osc.InputError, match="up"):
+        plot.curvature(unsigned)
+    with pytest.raises(osc.InputError, match="up"):
+        plot.curvature(circle_2d(), up=(0, 0, 1))
+
+
+def test_curvature_diagram_of_chosen_tracks():
+    from osculate.elements import elements_of
+
+    k = flagged_2d()
+    el = elements_of(k)
+    p = plot.curvature(k, el, tracks=["b"])
+    (model,) = by_gid(p.figure, "elements:model")
+    assert len(model.get_segments()) == int(np.sum(el.track == "b"))
+    assert p.axes.get_xlim()[1] == pytest.approx(np.nanmax(k.arclength[k.tracks == "b"]))
+    legend = [t.get_text() for t in p.figure.legends[0].get_texts()]
+    assert "track b" in legend and "track a" not in legend
+    with pytest.raises(osc.InputError, match="tracks"):
+        plot.curvature(k, tracks=["c"])
+    with pytest.raises(osc.InputError, match="tracks"):
+        plot.curvature(circle_2d(), tracks=[0])
+    with pytest.raises(TypeError, match="Elements"):
+        plot.curvature(k, elements=el.to_pandas())
+
+
+@pytest.mark.parametrize("grade", [None, 0.03], ids=["2d", "3d"])
+def test_path_draws_the_fitted_chain_within_1_cm_of_the_exact_one(grade):
+    # Noise-free samples of the exact chain (clothoid_chain: Fresnel integrals); the drawn
+    # chain is rebuilt from each element's start, heading, curvatures and length.
+    from osculate.elements import KINDS
+
+    k, el, pos = chain_elements(grade)
+    p = plot.path(k, color=None, elements=el)
+    drawn = {c.get_gid().split(":")[1]: c for c in by_gid(p.figure, "elements:")}
+    assert set(drawn) == set(KINDS)
+    lines = []
+    for name, lc in drawn.items():
+        segs = lc._segments3d if grade is not None else lc.get_segments()
+        lines += [np.asarray(s, dtype=float) for s in segs]
+        assert len(segs) == int(np.sum(el.kind_name == name))
+    a = np.concatenate([s[:-1] for s in lines])
+    b = np.concatenate([s[1:] for s in lines])
+    # Every sample within 1 cm of the drawn chain (the brief's tolerance) ...
+    assert distance_to_polyline(pos, a, b).max() < 0.01
+    # ... and every drawn point within 1 cm of the exact path (sampled every 2 cm: chords of the
+    # 80 m arc then stray 0.02² / (8·80) m, nothing against 1 cm).
+    _, fine, _ = clothoid_chain(spacing=0.02, grade=grade)
+    vertices = np.concatenate(lines)
+    assert distance_to_polyline(vertices, fine[:-1], fine[1:]).max() < 0.01
+    legend = [t.get_text() for t in p.figure.legends[0].get_texts()]
+    assert "fitted spiral (clothoid, κ linear in s)" in legend
+    # Dash patterns tell the kinds apart besides colour.
+    styles = {name: str(lc.get_linestyle()) for name, lc in drawn.items()}
+    assert len(set(styles.values())) == 3
+
+
+def test_path_refuses_elements_of_another_dimension():
+    k2, el2, _ = chain_elements()
+    k3, el3, _ = chain_elements(0.03)
+    with pytest.raises(osc.InputError, match="3-D"):
+        plot.path(k2, elements=el3)
+    with pytest.raises(osc.InputError, match="planar"):
+        plot.path(k3, elements=el2)

@@ -1,4 +1,4 @@
-"""Pictures of kinematics: the path coloured by a quantity, stacked profiles, g-g diagrams, work.
+"""Pictures of kinematics: paths, profiles, curvature diagrams, g-g diagrams, work.
 
 Needs matplotlib: ``pip install 'osculate[plot]'``. Every function takes a :class:`Kinematics`
 (or the DataFrame returned by ``df.osc.kinematics``), builds its own figure unless given an
@@ -18,7 +18,8 @@ standard gravity.
 
 Cautions. Every figure that shows lateral (normal) acceleration, total acceleration, jerk or
 radius of curvature carries :data:`CAUTION` in small muted type: such values estimated from
-logged data are indicative, not a safety assessment.
+logged data are indicative, not a safety assessment. So does every curvature diagram (curvature
+is one over the radius, the figure road and rail engineers judge an alignment by).
 """
 
 from __future__ import annotations
@@ -46,10 +47,21 @@ except ImportError as exc:  # pragma: no cover - depends on the environment
 
 from . import _core
 from . import _palette as palette
+from .elements import KINDS, Elements
 from .flags import Flag
 from .intrinsic import Kinematics
 
-__all__ = ["CAUTION", "LIMITS_CAUTION", "STANDARD_GRAVITY", "Plot", "gg", "path", "profile", "work"]
+__all__ = [
+    "CAUTION",
+    "LIMITS_CAUTION",
+    "STANDARD_GRAVITY",
+    "Plot",
+    "curvature",
+    "gg",
+    "path",
+    "profile",
+    "work",
+]
 
 F64 = npt.NDArray[np.float64]
 Units = Optional[Mapping[str, str]]
@@ -704,6 +716,7 @@ def path(
     by: Any = None,
     axis_names: Optional[Sequence[str]] = None,
     length_unit: str = "auto",
+    elements: Optional[Elements] = None,
 ) -> Plot:
     """Draw the path in 2-D or 3-D, coloured by a quantity, with optional frame glyphs.
 
@@ -744,6 +757,12 @@ def path(
         The unit positions (and a radius or arc-length colour bar) are shown in: with data in
         metres, "auto" picks mm below 0.5 m of extent, km above 50 km, else m; or name one of
         "µm", "mm", "cm", "m", "km". Only the tick labels change.
+    elements : Elements, optional
+        From :func:`osculate.elements.elements_of` on the same tracks: the fitted chain of
+        straights, arcs and spirals is drawn over the path, a dash pattern per kind, rebuilt
+        from each element's start point, heading, curvatures and length. For 3-D paths the
+        chain lies in the plane of ``Elements.plane`` (perpendicular to ``up``) and is drawn at
+        the path's height at the same arc length.
 
     Returns
     -------
@@ -783,6 +802,18 @@ def path(
     >>> fig, ax = osc.plot.path(k, frames_every=1.0)
     >>> [t.get_text() for t in fig.legends[0].get_texts()]
     ['track start', 'Frenet frame every 1 m', 'T (tangent)']
+
+    The fitted elements of a straight and a quarter circle of radius 50 m, drawn over it:
+
+    >>> from osculate.elements import elements_of
+    >>> s = np.arange(0.0, 100.0 + 25 * np.pi, 0.5)
+    >>> a = np.clip(s - 100.0, 0.0, None) / 50.0
+    >>> x = np.where(s < 100, s, 100 + 50 * np.sin(a))
+    >>> y = np.where(s < 100, 0.0, 50 * (1 - np.cos(a)))
+    >>> k = osc.kinematics(s / 10.0, np.column_stack([x, y]), method="smooth")
+    >>> fig, ax = osc.plot.path(k, color=None, elements=elements_of(k))
+    >>> [t.get_text() for t in fig.legends[0].get_texts()][1:]
+    ['fitted straight (κ = 0)', 'fitted circular arc (κ constant)']
     """
     d = _Samples(k, time=time, position=position, by=by)
     u = _units(units)
@@ -879,6 +910,8 @@ def path(
         )
     if frames_every is not None:
         handles += _glyphs(ax, d, float(frames_every), finite, lengths)
+    if elements is not None:
+        handles += _draw_chain(ax, elements, d)
     if handles and own:  # below everything, where constrained layout leaves room for it
         fig.legend(
             handles=handles,
@@ -1156,6 +1189,364 @@ def profile(
     if CAUTIONED.intersection(names):
         _caution(fig, axes[-1], CAUTION)
     return Plot(fig, axes)
+
+
+# -- geometric elements -------------------------------------------------------------------------
+
+#: Legend text of each element kind (``osculate.elements.KINDS``).
+ELEMENT_TEXT = {
+    "straight": "straight (κ = 0)",
+    "arc": "circular arc (κ constant)",
+    "spiral": "spiral (clothoid, κ linear in s)",
+}
+# The dash pattern of each kind where the fitted chain is drawn on a path: a cue besides colour.
+_ELEMENT_DASH: dict[str, Any] = {
+    "straight": (0, (7.0, 2.5)),
+    "arc": "solid",
+    "spiral": (0, (1.5, 1.5)),
+}
+_CHAIN_STEPS = 160  # chords per element where the chain is drawn
+
+
+def _element_rows(el: Any, d: _Samples) -> tuple[npt.NDArray[np.bool_], npt.NDArray[np.intp]]:
+    """Which elements lie on the tracks drawn, and the drawn track (code) of each of those."""
+    if not isinstance(el, Elements):
+        raise TypeError(
+            f"elements: expected an osculate.elements.Elements table, got {type(el).__name__}"
+        )
+    if not d.grouped:
+        return np.ones(len(el), dtype=bool), np.zeros(len(el), dtype=np.intp)
+    names = d.labels.astype(str)
+    mine = np.asarray(el.track).astype(str)
+    keep = np.isin(mine, names)
+    order = np.argsort(names)
+    codes = order[np.searchsorted(names, mine[keep], sorter=order)]
+    return keep, np.asarray(codes, dtype=np.intp)
+
+
+def _chain_points(el: Elements, steps: int = _CHAIN_STEPS) -> F64:
+    """Points of each element of the fitted chain, shape (elements, steps + 1, 2).
+
+    The heading of an element is θ(u) = θ₀ + κ₀ u + (κ₁ − κ₀) u² / (2L) over its length L
+    (curvature linear in arc length: constant on arcs, 0 on straights). Consecutive points are
+    joined by the chord of the circular arc through both ends with the heading's change between
+    them: length h·sin(Δθ/2)/(Δθ/2) along the mean heading. That is exact for straights and
+    arcs; on a spiral each chord errs by about κ′h³/12 sideways, so the chain's drift stays
+    below Δκ·L²/(12·steps²) (0.2 mm for a 40 m spiral into a 35 m radius).
+    """
+    length = np.where(np.isfinite(el.length), np.maximum(el.length, 0.0), 0.0)[:, None]
+    k0, k1 = el.start_curvature[:, None], el.end_curvature[:, None]
+    u = length * np.linspace(0.0, 1.0, steps + 1)[None, :]
+    rate = np.divide(k1 - k0, length, out=np.zeros_like(length), where=length > 0)
+    theta = el.heading[:, None] + k0 * u + 0.5 * rate * u**2
+    turn = np.diff(theta, axis=1)
+    chord = (length / steps) * np.sinc(turn / (2.0 * np.pi))  # np.sinc(x) = sin(πx)/(πx)
+    mean = 0.5 * (theta[:, 1:] + theta[:, :-1])
+    x = np.concatenate([el.x[:, None], el.x[:, None] + np.cumsum(chord * np.cos(mean), 1)], 1)
+    y = np.concatenate([el.y[:, None], el.y[:, None] + np.cumsum(chord * np.sin(mean), 1)], 1)
+    return np.stack([x, y], axis=-1)
+
+
+def _draw_chain(ax: Any, el: Any, d: _Samples) -> list[Any]:
+    """Draw the fitted chain of elements over a path, a dash pattern per kind; legend handles."""
+    keep, codes = _element_rows(el, d)
+    if d.dim == 2 and el.plane is not None:
+        raise _core.InputError("elements: measured on a 3-D path, but the path drawn is planar")
+    if d.dim == 3 and el.plane is None:
+        raise _core.InputError("elements: measured on a planar path, but the path drawn is 3-D")
+    flat = _chain_points(el)[keep]
+    kind = el.kind[keep]
+    if d.dim == 3:
+        # The chain lies in the plane perpendicular to up (Elements.plane); it is drawn at the
+        # height the path has at the same arc length along its track.
+        e1, e2 = np.asarray(el.plane, dtype=float)
+        up = np.cross(e1, e2)
+        frac = np.linspace(0.0, 1.0, flat.shape[1])[None, :]
+        s0, s1 = el.start_arclength[keep][:, None], el.end_arclength[keep][:, None]
+        at = s0 + frac * (s1 - s0)
+        height = np.full(at.shape, np.nan)
+        s_all = d.get("arclength")
+        h_all = d.position @ up
+        for code in np.unique(codes):  # a handful of tracks
+            rows = (d.codes == code) & np.isfinite(s_all) & np.isfinite(h_all)
+            mine = codes == code
+            if rows.any():
+                height[mine] = np.interp(at[mine], s_all[rows], h_all[rows])
+        pts = flat[..., :1] * e1 + flat[..., 1:] * e2 + height[..., None] * up
+        # The chain lies on the path: drawn in order of zorder, not sorted by depth, so that the
+        # path never hides it.
+        ax.computed_zorder = False
+    else:
+        pts = flat
+    handles: list[Any] = []
+    for code, name in enumerate(KINDS):  # three kinds
+        mine = kind == code
+        if not mine.any():
+            continue
+        style = {
+            "colors": palette.MODEL,
+            "linewidths": 1.1,
+            "linestyles": _ELEMENT_DASH[name],
+            "zorder": 5,
+        }
+        if d.dim == 3:
+            from mpl_toolkits.mplot3d.art3d import Line3DCollection
+
+            lc: Any = Line3DCollection(list(pts[mine]), **style)
+        else:
+            lc = LineCollection(list(pts[mine]), **style)
+        lc.set_gid(f"elements:{name}")
+        ax.add_collection(lc)
+        handles.append(
+            Line2D(
+                [],
+                [],
+                color=palette.MODEL,
+                linewidth=1.1,
+                linestyle=_ELEMENT_DASH[name],
+                label=f"fitted {ELEMENT_TEXT[name]}",
+            )
+        )
+    return handles
+
+
+def _subset(d: _Samples, keep: npt.NDArray[np.bool_]) -> _Samples:
+    """Keep the drawn rows of ``d`` (sorted order), tracks renumbered; do not call its ``get``."""
+    import copy
+
+    out = copy.copy(d)
+    present = np.unique(d.codes[keep])
+    out.labels = d.labels[present]
+    out.codes = np.searchsorted(present, d.codes[keep])
+    out.position = d.position[keep]
+    out.t = None if d.t is None else d.t[keep]
+    out.n = int(keep.sum())
+    same = out.codes[1:] == out.codes[:-1]
+    out.first = np.concatenate([[True], ~same])[: out.n]
+    out.last = np.concatenate([~same, [True]])[: out.n]
+    return out
+
+
+def _signed_curvature(d: _Samples, up: Any) -> tuple[F64, str]:
+    """Signed curvature (left turns positive, sorted rows) and the words of the subtitle."""
+    if up is not None:
+        if d.dim == 2:
+            raise _core.InputError(f"up: only applies to 3-D paths, got {up!r} for a 2-D path")
+        u = np.asarray(up, dtype=float).reshape(-1)
+        if u.shape != (3,) or not np.all(np.isfinite(u)) or not np.linalg.norm(u) > 0:
+            raise _core.InputError(f"up: expected a finite, non-zero 3-vector, got {up!r}")
+        u = u / np.linalg.norm(u)
+        v, a = d.vector("velocity")[:, :3], d.vector("acceleration")[:, :3]
+        side = np.sign(np.cross(v, a) @ u)  # left of the direction of motion about up: +
+        kappa = np.where(side == 0, 0.0, side) * d.get("curvature")
+        return kappa, "left turns about up = (" + ", ".join(f"{c:.3g}" for c in u) + ") positive"
+    kappa = d.get("signed_curvature") if d.has("signed_curvature") else np.full(d.n, np.nan)
+    if d.dim == 3 and not np.isfinite(kappa).any():
+        raise _core.InputError(
+            "up: 3-D paths need the vertical to sign the curvature (pass up=, or compute the "
+            "kinematics with it)"
+        )
+    return kappa, "left turns positive"
+
+
+def curvature(
+    k: Any,
+    elements: Optional[Elements] = None,
+    *,
+    by: Any = None,
+    up: Optional[npt.ArrayLike] = None,
+    tracks: Any = None,
+    units: Units = None,
+    ax: Any = None,
+    title: Optional[str] = None,
+    bands: bool = True,
+    length_unit: str = "auto",
+) -> Plot:
+    """Draw the curvature diagram: signed curvature against arc length, and an element model.
+
+    Parameters
+    ----------
+    k : Kinematics or pandas.DataFrame
+        Results of :func:`osculate.kinematics` or ``df.osc.kinematics`` (``by`` names the
+        DataFrame's track column).
+    elements : Elements, optional
+        From :func:`osculate.elements.elements_of` (or :func:`osculate.elements.elements`) on
+        the same tracks: its piecewise-linear model is drawn over the estimate, one segment per
+        element (straights at 0, arcs constant, spirals linear in arc length), and each
+        element's span is shaded by kind, the kinds named in the legend.
+    by : optional
+        DataFrame input only: the track column.
+    up : array_like of 3 floats, optional
+        For 3-D paths: the vertical, to sign the curvature as sign((v × a)·up)·κ (left turns
+        about ``up`` positive, as the turn table does). Without it a 3-D path needs the signed
+        curvature that ``osc.kinematics(..., up=...)`` computed, (v × a)·up / |v|³: the same
+        on a level path, smaller where the path climbs or falls (see Notes).
+    tracks : label or sequence of labels, optional
+        Draw only these tracks (e.g. one lap); default all.
+    units : mapping, optional
+        Unit labels, as in :func:`path`.
+    ax : matplotlib Axes, optional
+        Draw here instead of in a new figure.
+    title : str, optional
+        Title.
+    bands : bool, default True
+        Shade ±1.96 standard errors of the curvature where the results have them.
+    length_unit : str, default "auto"
+        The unit of arc length, as in :func:`path`; curvature stays in 1/(the data's unit).
+
+    Returns
+    -------
+    Plot
+        ``(figure, axes)``.
+
+    Notes
+    -----
+    Every track starts at arc length 0, so laps overlay. For 3-D paths the element table is
+    fitted to the kinematics' own signed curvature (v × a)·up / |v|³, the component of the
+    curvature vector along ``up``; to draw it over the curve it was fitted to, leave ``up``
+    unset. With ``up`` the curve is the full κ with the turn's sign, which exceeds it on a
+    helix, say, by the factor |v| / |v_horizontal|. The model is drawn over the arc-length
+    span each element covers in the results (``start_arclength`` to ``end_arclength``). Every
+    curvature diagram carries :data:`CAUTION`: radius and curvature are what an alignment is
+    judged by, and an element table reconstructed from logged data describes how the path was
+    driven, not its design.
+
+    Examples
+    --------
+    A straight, a 60 m spiral into a 200 m radius and 80 m of arc (positions from Fresnel
+    integrals, as in :func:`osculate.elements.elements`):
+
+    >>> import matplotlib
+    >>> matplotlib.use("Agg")
+    >>> import numpy as np
+    >>> import osculate as osc
+    >>> from osculate.elements import elements_of
+    >>> from scipy.special import fresnel
+    >>> A = np.sqrt(60.0 * 200.0)
+    >>> s = np.arange(0.0, 220.0, 2.0)
+    >>> S, C = fresnel(np.clip(s - 80.0, 0.0, 60.0) / (A * np.sqrt(np.pi)))
+    >>> sx, sy = 80.0 + A * np.sqrt(np.pi) * C, A * np.sqrt(np.pi) * S
+    >>> th, v = 60.0 / 400.0, np.clip(s - 140.0, 0.0, None)
+    >>> cx = sx[s >= 140][0] - 200.0 * np.sin(th)
+    >>> cy = sy[s >= 140][0] + 200.0 * np.cos(th)
+    >>> x = np.where(s < 80, s, np.where(s < 140, sx, cx + 200.0 * np.sin(th + v / 200.0)))
+    >>> y = np.where(s < 80, 0.0, np.where(s < 140, sy, cy - 200.0 * np.cos(th + v / 200.0)))
+    >>> k = osc.kinematics(s / 20.0, np.column_stack([x, y]), method="smooth")
+    >>> el = elements_of(k)
+    >>> fig, ax = osc.plot.curvature(k, el)
+    >>> ax.get_xlabel(), ax.get_ylabel()
+    ('arc length s [m]', 'signed curvature (left +) [1/m]')
+    >>> [t.get_text() for t in fig.legends[0].get_texts()][-3:]
+    ['straight (κ = 0)', 'circular arc (κ constant)', 'spiral (clothoid, κ linear in s)']
+    >>> words = " ".join(" ".join(t.get_text().split()) for t in fig.findobj(matplotlib.text.Text))
+    >>> osc.plot.CAUTION in words
+    True
+    """
+    d = _Samples(k, by=by)
+    u = _units(units)
+    s = d.get("arclength")
+    kappa, sign_words = _signed_curvature(d, up)
+    kappa = np.where(np.isfinite(kappa), kappa, np.nan)
+    se = d.standard_error("signed_curvature") if bands else None
+    if se is None and bands:
+        se = d.standard_error("curvature")
+    if tracks is not None:
+        if not d.grouped:
+            raise _core.InputError("tracks: the results have no tracks to choose from")
+        wanted = np.atleast_1d(np.asarray(tracks)).astype(str)
+        missing = sorted(set(wanted.tolist()) - set(d.labels.astype(str).tolist()))
+        if missing:
+            raise _core.InputError(f"tracks: no track {missing[0]!r} in the results")
+        keep = np.isin(d.labels.astype(str)[d.codes], wanted)
+        s, kappa = s[keep], kappa[keep]
+        se = None if se is None else se[keep]
+        d = _subset(d, keep)
+    lengths = _lengths(u, length_unit, d)
+    own = ax is None
+    if ax is None:
+        fig = _new_figure((8.2, 4.8))
+        ax = fig.add_subplot()
+    else:
+        fig = ax.figure
+    handles: list[Any] = []
+    model: list[Any] = []
+    if elements is not None:
+        keep_el, _ = _element_rows(elements, d)
+        lo, hi = elements.start_arclength[keep_el], elements.end_arclength[keep_el]
+        k0, k1 = elements.start_curvature[keep_el], elements.end_curvature[keep_el]
+        kind = elements.kind[keep_el]
+        for code, name in enumerate(KINDS):  # three kinds: one shading each
+            mine = kind == code
+            if not mine.any():
+                continue
+            a, b = lo[mine], hi[mine]
+            verts = np.stack(
+                [
+                    np.column_stack([a, np.zeros_like(a)]),
+                    np.column_stack([a, np.ones_like(a)]),
+                    np.column_stack([b, np.ones_like(a)]),
+                    np.column_stack([b, np.zeros_like(a)]),
+                ],
+                axis=1,
+            )
+            shade = PolyCollection(
+                list(verts),
+                transform=ax.get_xaxis_transform(),
+                facecolors=palette.ELEMENTS[name],
+                edgecolors=palette.NONE,
+                alpha=palette.ELEMENT_ALPHA,
+                zorder=0,
+            )
+            shade.set_gid(f"elements:{name}")
+            ax.add_collection(shade, autolim=False)
+            handles.append(
+                Patch(
+                    facecolor=palette.ELEMENTS[name],
+                    alpha=palette.ELEMENT_ALPHA,
+                    label=ELEMENT_TEXT[name],
+                )
+            )
+        segs = np.stack([np.column_stack([lo, k0]), np.column_stack([hi, k1])], axis=1)
+        lc = LineCollection(list(segs), colors=palette.MODEL, linewidths=1.8, zorder=4)
+        lc.set_gid("elements:model")
+        ax.add_collection(lc)
+        if len(segs):
+            ax.update_datalim(segs.reshape(-1, 2))
+        model = [
+            Line2D(
+                [],
+                [],
+                color=palette.MODEL,
+                linewidth=1.8,
+                label=f"fitted elements ({len(segs)}): straights, arcs, spirals",
+            )
+        ]
+    track_handles = _lines(ax, s, kappa, d)
+    band = [] if se is None else [_band(ax, s, kappa, se, d)]
+    ax.axhline(0.0, color=_MUTED, linewidth=0.6, zorder=1)
+    ax.set_xlabel(_label("arclength", u))
+    ax.set_ylabel(_label("signed_curvature", u))
+    lengths.apply(ax.xaxis)
+    ax.yaxis.set_major_formatter(_Scaled())
+    finite_x = s[np.isfinite(s)]
+    if finite_x.size:
+        ax.set_xlim(float(finite_x.min()), float(finite_x.max()))
+    _style(ax)
+    handles = track_handles + band + model + handles
+    if handles and own:
+        fig.legend(
+            handles=handles,
+            loc="outside lower center",
+            ncols=min(3, len(handles)),
+            fontsize=8,
+            frameon=False,
+        )
+    elif handles:
+        ax.legend(handles=handles, loc="best", fontsize=8, framealpha=0.85)
+    sub = (f"estimator: {d.estimator};  " if d.estimator else "") + sign_words
+    _title(ax, title or "Curvature diagram: signed curvature against arc length", sub)
+    _caution(fig, ax, CAUTION)
+    return Plot(fig, ax)
 
 
 # -- g-g diagram --------------------------------------------------------------------------------
