@@ -167,6 +167,7 @@ PROMISED = [
     "ev_profile.png",
     "ev_gg.png",
     "ev_work.png",
+    "ev_curvature.png",
     "tracers_path.png",
 ]
 
@@ -239,6 +240,9 @@ def test_report_states_scenarios_methods_and_cautions(demo_run):
         "local codes and licensed engineers decide",
         "Every key figure is within its stated tolerance",
         "comes from no code or standard",
+        "Element tables are reconstructions from logged data",
+        "design values (radii, spiral parameters, lengths) are decided by local codes and "
+        "licensed engineers",
     ):
         assert phrase in text, phrase
 
@@ -265,6 +269,16 @@ def test_report_estimates_match_the_ground_truth(demo_run):
     assert abs(est("bend radius (median") / 35.0 - 1) < 0.02
     assert abs(est("bend radius from the turn table") / 35.0 - 1) < 0.02
     assert est("bends found") == 2 * len(e.lap_distance)  # two bends per lap (construction)
+    # The element table, against the loop's construction (demo.spiral_loop): per lap half a
+    # straight, then twice spiral, arc, spiral, straight: 2 arcs and 4 spirals, counted exactly.
+    assert est("circular arcs per lap") == 2
+    assert est("transition spirals per lap") == 4
+    assert est("laps whose elements run") == len(e.lap_distance)
+    assert abs(est("arc radius") / e.bend_radius - 1) < 0.02  # R = 35 m, to 2 %
+    # A² = R·L for a clothoid from a straight into radius R over length L: √(35·40) m, to 5 %.
+    assert abs(est("spiral parameter A") / np.sqrt(35.0 * 40.0) - 1) < 0.05
+    # L = 40 m, to max(5 %, two sample spacings): spacings here are at most 14 m/s / 20 Hz.
+    assert abs(est("spiral length") / e.spiral_length - 1) < max(0.05, 2 * 0.7 / 40.0)
     assert abs(est("clothoid rate") / (1 / (35.0 * 40.0)) - 1) < 0.05
     # Laps are numbered from 1 in the report; the generator's arrays are indexed from 0.
     lap = int(re.search(r"length of lap (\d)", " ".join(rows)).group(1))
@@ -286,8 +300,9 @@ def test_checks_csv_agrees_with_the_report(demo_run):
     rows = report_rows((out / "report.md").read_text())
     with (out / "checks.csv").open() as fh:
         checks = list(csv.DictReader(fh))
-    # 14 figures + the hover stop, the summary radius and the turn tables' counts and radii.
-    assert len(checks) == len(rows) == 20
+    # 14 figures + the hover stop, the summary radius, the turn tables' counts and radii, and
+    # the loop's element table (arcs, spirals and their order per lap; radius, A, spiral length).
+    assert len(checks) == len(rows) == 26
     for c in checks:
         est, true = rows[c["figure"]]
         assert np.isclose(float(c["estimated"]), est, rtol=1e-4)
@@ -301,7 +316,8 @@ def test_checks_csv_has_the_signed_error(demo_run):
         checks = list(csv.DictReader(fh))
     shown = report_errors((out / "report.md").read_text())
     relative = [c for c in checks if c["relative"] == "True"]
-    assert len(relative) == 16  # all but the tracers' two percentages and the two turn counts
+    # All but the tracers' two percentages, the two turn counts and the three element counts.
+    assert len(relative) == 19
     for c in checks:
         est, true, err = float(c["estimated"]), float(c["true"]), float(c["error"])
         # The definition: (estimated − true) / true for a relative check, else estimated − true;
@@ -333,12 +349,12 @@ def test_report_embeds_every_figure_and_its_links_resolve(demo_run):
     for target in images + others:
         assert (out / target).is_file(), target
     pngs = sorted(p.name for p in out.glob("*.png"))
-    assert len(pngs) == 7
+    assert len(pngs) == 8
     assert sorted(images) == pngs  # every figure embedded, once
     assert set(pngs) <= set(others)  # and listed among the files
     # Each image is followed by its one-line caption, numbered in order.
     captions = re.findall(r"!\[[^\]]*\]\([^)]+\)\n\n\*Figure (\d+)\. [^\n]+\*\n", text)
-    assert captions == [str(i) for i in range(1, 8)]
+    assert captions == [str(i) for i in range(1, 9)]
     # Every file of the folder is linked from the Files section.
     assert sorted(others) == sorted(p.name for p in out.iterdir())
 
@@ -427,7 +443,7 @@ def test_a_second_run_removes_only_the_stale_files(demo_run, tmp_path):
     rep = report.run(out, figures=False)
     now = {p.name for p in out.iterdir()}
     figures = {n for n in written if n.endswith(".png")}
-    assert len(figures) == 7
+    assert len(figures) == 8
     assert not figures & now  # the first run's figures are gone
     assert {p.name for p in rep.removed} == figures
     assert {"notes.txt", "my_plot.png"} <= now and outside.read_text() == "mine"

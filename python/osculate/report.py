@@ -451,6 +451,7 @@ the middle half of each turn.
 
 def _spiral(out: Any, figs: bool, files: list[Any]) -> _Section:
     from .demo import STANDARD_GRAVITY
+    from .elements import elements_of
     from .intrinsic import kinematics
     from .lineint import power as line_power
     from .lineint import work as line_work
@@ -478,6 +479,20 @@ def _spiral(out: Any, figs: bool, files: list[Any]) -> _Section:
     w_err = (w.total - e.drag_work) / np.abs(e.drag_work)
     w_worst = int(np.argmax(np.abs(w_err)))
     power = line_power(e.t, e.xy, e.force, method="smooth", tracks=lap)
+    # The element table of every lap: straights, circular arcs and clothoids.
+    el = elements_of(k)
+    design = _design_kinds()
+    laps_in_order = sum(
+        int(np.array_equal(el.kind[el.track == n], design)) for n in range(1, laps + 1)
+    )  # three laps
+    per_lap = np.stack(
+        [np.bincount(el.kind[el.track == n], minlength=3) for n in range(1, laps + 1)]
+    )
+    arcs_off = int(np.argmax(np.abs(per_lap[:, 1] - 2)))  # an index: lap arcs_off + 1
+    spirals_off = int(np.argmax(np.abs(per_lap[:, 2] - 4)))
+    el_arc, el_spiral = el.kind == 1, el.kind == 2
+    spacing = float(np.median(np.diff(k.arclength)[np.diff(lap) == 0]))
+    spiral_tol = max(0.05, 2.0 * spacing / e.spiral_length)
     name = "electric vehicle"
     checks = [
         Check(
@@ -536,6 +551,57 @@ def _spiral(out: Any, figs: bool, files: list[Any]) -> _Section:
             float(w.total[w_worst]),
             float(e.drag_work[w_worst]),
             0.01,
+        ),
+        Check(
+            name,
+            f"circular arcs per lap (element table, lap {arcs_off + 1}: the worst)",
+            "",
+            float(per_lap[arcs_off, 1]),
+            2.0,
+            0.0,
+            relative=False,
+        ),
+        Check(
+            name,
+            f"transition spirals per lap (element table, lap {spirals_off + 1}: the worst)",
+            "",
+            float(per_lap[spirals_off, 2]),
+            4.0,
+            0.0,
+            relative=False,
+        ),
+        Check(
+            name,
+            "laps whose elements run straight, spiral, arc, spiral, straight (twice)",
+            "",
+            float(laps_in_order),
+            float(laps),
+            0.0,
+            relative=False,
+        ),
+        Check(
+            name,
+            "arc radius (median over the element table's arcs)",
+            "m",
+            float(np.median(el.radius[el_arc])) if el_arc.any() else float("nan"),
+            e.bend_radius,
+            0.02,
+        ),
+        Check(
+            name,
+            "spiral parameter A (median over the element table's spirals; A² = RL)",
+            "m",
+            float(np.median(el.spiral_parameter[el_spiral])) if el_spiral.any() else float("nan"),
+            float(np.sqrt(e.bend_radius * e.spiral_length)),
+            0.05,
+        ),
+        Check(
+            name,
+            "spiral length (median over the element table's spirals)",
+            "m",
+            float(np.median(el.length[el_spiral])) if el_spiral.any() else float("nan"),
+            e.spiral_length,
+            spiral_tol,
         ),
     ]
     cols = _kinematics_columns(k, ("x", "y"), track="lap")
@@ -604,6 +670,20 @@ whose time integral per lap ({", ".join(f"{x / 1e3:.2f}" for x in energy)} kJ) a
 Frames: the Frenet normal is undefined at {frenet_gone} of the {int(straight.sum())} samples on
 the straights, where the curvature is within the noise of zero (STRAIGHT); where the noise lets it
 be defined there, it may point to either side.
+
+Elements: `osculate.elements.elements_of(k)` cuts each lap's curvature diagram into straights,
+circular arcs and clothoids and fits the chain to the logged positions ({len(el)} elements over
+the {laps} laps; RMS distance of the samples from the chain {100 * float(np.median(el.rms)):.1f} cm,
+median over the elements, against the {e.noise * 100:.0f} cm noise). By construction each lap
+runs half a straight, then twice spiral → arc → spiral → straight, the last straight halved:
+2 arcs and 4 spirals per lap, counted exactly. The arcs' radius is checked against the
+{e.bend_radius:.0f} m of the design to 2 %, the spirals' parameter A against √(R·L) =
+{np.sqrt(e.bend_radius * e.spiral_length):.3f} m (A² = R·L, the clothoid's usual parameter) to
+5 %, and their length against {e.spiral_length:.0f} m to the larger of 5 % and two sample
+spacings (2 × {spacing:.2f} m = {100 * 2 * spacing / e.spiral_length:.1f} %): where a spiral
+ends is blurred by the smoothing, which rounds the corners of the curvature diagram. Element
+tables are reconstructions from logged data, describing how the loop was driven: design values
+(radii, spiral parameters, lengths) are decided by local codes and licensed engineers.
 """
     figures: list[_Figure] = []
     if figs:
@@ -640,6 +720,22 @@ be defined there, it may point to either side.
                 _save(p, out / "ev_profile.png"),
                 f"Electric vehicle: speed, curvature, a_t and a_n along laps 1 to {laps} with "
                 "95 % bands, the truth of lap 1 dashed; shaded: flagged samples.",
+            )
+        )
+        p = plot.curvature(
+            k,
+            el,
+            tracks=[1],
+            title="Electric vehicle: curvature diagram of lap 1 and its fitted elements",
+        )
+        _truth(p.axes, s_lap, e.curvature[lap1], "true κ (lap 1)", loc="upper right")
+        _lap_legends(p.figure)
+        figures.append(
+            _Figure(
+                _save(p, out / "ev_curvature.png"),
+                "Electric vehicle: signed curvature along lap 1 with its 95 % band, the fitted "
+                "elements over it (straights at 0, arcs constant, spirals linear; spans shaded "
+                "by kind) and the truth dashed.",
             )
         )
         p = plot.gg(k, limits=[DEMO_LIMIT], title="Electric vehicle: acceleration share")
@@ -811,6 +907,17 @@ def _lap_legends(fig: Any) -> None:
             label = text.get_text()
             if label.startswith("track "):
                 text.set_text("lap " + label[len("track ") :])
+
+
+def _design_kinds() -> npt.NDArray[np.int8]:
+    """Element kinds of one lap of the loop by construction, as codes of ``elements.KINDS``.
+
+    Half a straight, then twice spiral, arc, spiral, straight, the last straight halved.
+    """
+    from .elements import KINDS
+
+    names = ["straight", *(["spiral", "arc", "spiral", "straight"] * 2)]
+    return np.array([KINDS.index(n) for n in names], dtype=np.int8)
 
 
 def _stops_text(k: Any) -> str:
