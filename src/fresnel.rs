@@ -256,6 +256,9 @@ pub fn clothoid_integral(a: f64, b: f64) -> (f64, f64) {
     (f.re, f.im)
 }
 
+/// Most sub-intervals [`integral`] sums (beyond: NaN).
+const MAX_PIECES: f64 = 1e6;
+
 fn integral(a: f64, b: f64) -> Cx {
     if !(a.is_finite() && b.is_finite()) {
         return Cx::new(f64::NAN, f64::NAN);
@@ -288,6 +291,11 @@ fn integral(a: f64, b: f64) -> Cx {
     } else {
         (a / SMALL_A).sqrt().floor() + 1.0
     };
+    if m > MAX_PIECES {
+        // Heading changes of millions of turns within one element: not a path anybody
+        // logged (a diverging fit proposes them); no value rather than an endless sum.
+        return Cx::new(f64::NAN, f64::NAN);
+    }
     let mut sum = Cx::new(0.0, 0.0);
     for j in 0..m as usize {
         let j = j as f64;
