@@ -79,8 +79,9 @@ class Kinematics:
     curvature, radius, torsion : ndarray, shape (n,)
         κ ≥ 0, ρ = 1/κ and τ.
     signed_curvature : ndarray, shape (n,)
-        κ with the sign of the turn about ``up`` (left turns positive); always present for planar
-        paths, NaN for 3-D paths without ``up``.
+        Curvature signed by the turn about ``up`` (left turns positive): ((r′ × r″)·up)/|r′|³,
+        which is κ for planar paths and κ·(B·up) in 3-D (smaller than κ where the path climbs or
+        banks); always present for planar paths, NaN for 3-D paths without ``up``.
     center : ndarray, shape (n, dim)
         Centre of the osculating circle r + ρN.
     accel_tangential, accel_normal : ndarray, shape (n,)
