@@ -760,18 +760,8 @@ tables are reconstructions from logged data, describing how the loop was driven:
         p = plot.work(
             k,
             values=w.cumulative,
+            truth=e.cumulative_drag_work,  # the true cumulative work at every row, dashed
             title="Electric vehicle: work of the logged resistance force, per lap",
-        )
-        # The true cumulative work of every lap against the true distance from the lap's first
-        # row, one dashed line broken between laps.
-        cut = first[1:]
-        s_true = e.distance - e.distance[first][e.lap]
-        _truth(
-            p.axes,
-            np.insert(s_true, cut, np.nan),
-            np.insert(e.cumulative_drag_work, cut, np.nan),
-            f"true W, totals {', '.join(f'{x / 1e3:.1f}' for x in e.drag_work)} kJ",
-            loc="upper right",
         )
         _lap_legends(p.figure)
         figures.append(
