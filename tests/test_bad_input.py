@@ -180,6 +180,23 @@ def test_arc_length_of_huge_steps_stays_finite(method):
     np.testing.assert_allclose(s, 1.4e200 * t, rtol=1e-12)
 
 
+def test_rows_of_a_track_may_come_in_any_order():
+    # One rule with the accessor: with tracks=, rows are put in time order within each track,
+    # and every result comes back on the caller's row (exactly: the same kernel on the same
+    # rows). With offsets= the caller states the layout, and times must increase.
+    rng = np.random.default_rng(3)
+    t = np.arange(100.0)
+    x = np.column_stack([np.cos(t / 10), np.sin(t / 10)])
+    ids = np.repeat([0, 1], 50)
+    perm = rng.permutation(100)
+    a = osc.kinematics(t, x, tracks=ids, method="smooth")
+    b = osc.kinematics(t[perm], x[perm], tracks=ids[perm], method="smooth")
+    np.testing.assert_array_equal(a.speed[perm], b.speed)
+    np.testing.assert_array_equal(a.curvature[perm], b.curvature)
+    with pytest.raises(osc.InputError, match=r"t: track 0, row \d+: times must be strictly"):
+        osc.kinematics(t[::-1], x[::-1], offsets=[0, 100])
+
+
 def test_ragged_positions_are_named():
     with pytest.raises(osc.InputError, match=r"positions: expected a regular array, got a ragged"):
         osc.kinematics(T5, [[0, 0, 0], [1, 1], [2, 2, 2], [3, 3, 3], [4, 4, 4]])

@@ -225,8 +225,36 @@ class Grouping:
         return row if self.order is None else int(self.order[row])
 
 
-def group_rows(n: int, tracks: Any = None, offsets: Any = None) -> Grouping:
-    """Split ``n`` rows into tracks given per-row ids (any order) or row offsets."""
+def track_time_order(
+    codes: npt.NDArray[np.intp], key: np.ndarray, n_tracks: int
+) -> npt.NDArray[np.intp] | None:
+    """Permutation that sorts rows stably by (track code, time key); None if they already are.
+
+    Equal to ``numpy.lexsort((key, codes))``, computed faster: rows already time-ordered within
+    each track (the usual log, tracks interleaved) need one stable sort of the small-integer codes
+    (a radix sort); otherwise a stable sort by time comes first, then the stable sort by track.
+    """
+    if len(codes) < 2:
+        return None
+    same = codes[1:] == codes[:-1]
+    if np.all((codes[1:] > codes[:-1]) | (same & (key[1:] >= key[:-1]))):
+        return None
+    small = codes.astype(np.uint16 if n_tracks <= 1 << 16 else np.int64)
+    order = np.argsort(small, kind="stable")
+    c, k = codes[order], key[order]
+    if np.all((c[1:] != c[:-1]) | (k[1:] >= k[:-1])):
+        return order
+    by_time = np.argsort(key, kind="stable")
+    return by_time[np.argsort(small[by_time], kind="stable")]
+
+
+def group_rows(n: int, tracks: Any = None, offsets: Any = None, t: Any = None) -> Grouping:
+    """Split ``n`` rows into tracks given per-row ids (any order) or row offsets.
+
+    With ids and times ``t``, the rows of each track are put in time order (stable), as the
+    DataFrame accessor does: a log's rows may come in any order. With offsets the caller states
+    the layout, and times must already increase within each track.
+    """
     if tracks is not None and offsets is not None:
         raise InputError("tracks, offsets: give one of them, not both")
     if offsets is not None:
@@ -260,8 +288,11 @@ def group_rows(n: int, tracks: Any = None, offsets: Any = None) -> Grouping:
     else:
         labels, codes = np.unique(ids, return_inverse=True)
         codes = codes.reshape(-1)
-    grouped = bool(np.all(codes[1:] >= codes[:-1]))
-    order = None if grouped else np.argsort(codes, kind="stable")
+    if t is None:
+        grouped = bool(np.all(codes[1:] >= codes[:-1]))
+        order = None if grouped else np.argsort(codes, kind="stable")
+    else:
+        order = track_time_order(codes, np.asarray(t), len(labels))
     counts = np.bincount(codes, minlength=len(labels))
     off = np.zeros(len(labels) + 1, dtype=np.int64)
     np.cumsum(counts, out=off[1:])

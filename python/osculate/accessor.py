@@ -20,7 +20,7 @@ except ImportError as exc:  # pragma: no cover - depends on the environment
     ) from exc
 
 from . import _core
-from ._validate import EXACT_SPAN, Grouping, plain
+from ._validate import EXACT_SPAN, Grouping, plain, track_time_order
 from .geodesy import enu_and_origins
 from .intrinsic import Kinematics
 from .intrinsic import kinematics as _kinematics
@@ -100,29 +100,6 @@ def _times(s: pd.Series) -> _Times:
         return _Times(ticks, per_second, missing)
     sec = _numbers(s, "time")
     return _Times(sec, None, np.isnan(sec))
-
-
-def track_time_order(
-    codes: npt.NDArray[np.intp], key: np.ndarray, n_tracks: int
-) -> Optional[npt.NDArray[np.intp]]:
-    """Permutation that sorts rows stably by (track code, time key); None if they already are.
-
-    Equal to ``numpy.lexsort((key, codes))``, computed faster: rows already time-ordered within
-    each track (the usual log, tracks interleaved) need one stable sort of the small-integer codes
-    (a radix sort); otherwise a stable sort by time comes first, then the stable sort by track.
-    """
-    if len(codes) < 2:
-        return None
-    same = codes[1:] == codes[:-1]
-    if np.all((codes[1:] > codes[:-1]) | (same & (key[1:] >= key[:-1]))):
-        return None
-    small = codes.astype(np.uint16 if n_tracks <= 1 << 16 else np.int64)
-    order = np.argsort(small, kind="stable")
-    c, k = codes[order], key[order]
-    if np.all((c[1:] != c[:-1]) | (k[1:] >= k[:-1])):
-        return order
-    by_time = np.argsort(key, kind="stable")
-    return by_time[np.argsort(small[by_time], kind="stable")]
 
 
 class _Prepared:

@@ -702,7 +702,7 @@ def kinematics(
     kind = _uncertainty(uncertainty, method)
     tt = as_times(t)
     x = as_positions(positions, len(tt))
-    g = group_rows(len(tt), tracks, offsets)
+    g = group_rows(len(tt), tracks, offsets, tt)
     options = {
         **_thresholds(min_speed, min_curvature, significance, max_relative_se),
         "gap_factor": as_real("gap_factor", gap_factor),
@@ -981,7 +981,7 @@ def arclength(
     EstimatorOptions(method, **options)
     tt = as_times(t)
     x = as_positions(positions, len(tt))
-    g = group_rows(len(tt), tracks, offsets)
+    g = group_rows(len(tt), tracks, offsets, tt)
     s = call_kernel(
         g, _core.polyline_arclength, kernel_times(t, tt, g)[0], g.to_kernel(x), g.offsets
     )

@@ -190,6 +190,6 @@ def fit(
     opts = EstimatorOptions(method, **options)
     tt = as_times(t)
     x = as_positions(positions, len(tt))
-    g = group_rows(len(tt), tracks, offsets)
+    g = group_rows(len(tt), tracks, offsets, tt)
     fitted = fit_core(opts, g, g.to_kernel(tt), g.to_kernel(x))
     return Path(fitted, g, opts)

@@ -186,7 +186,7 @@ def resample(
     opts = EstimatorOptions(method, **options)
     tt = as_times(t)
     x = as_positions(positions, len(tt))
-    g = group_rows(len(tt), tracks, offsets)
+    g = group_rows(len(tt), tracks, offsets, tt)
     stacked, unstack = _extra_columns(extra, len(tt))
     tk, shift = kernel_times(t, tt, g)
     fitted = fit_core(opts, g, tk, g.to_kernel(x))
