@@ -23,7 +23,7 @@
 //! (and `z_off` standard errors). Stops end it.
 
 use crate::batch::{check_offsets, track_rows};
-use crate::error::{KernelError, Result};
+use crate::error::{try_collect, KernelError, Result};
 use crate::frame::flag;
 use rayon::prelude::*;
 use std::ops::Range;
@@ -216,11 +216,11 @@ pub fn fit_circle(pts: &[[f64; 2]]) -> Option<(f64, f64)> {
         .iter()
         .fold((0.0, 0.0), |(a, b), p| (a + p[0], b + p[1]));
     let (mx, my) = (mx / m as f64, my / m as f64);
-    let q: Vec<[f64; 2]> = pts.iter().map(|p| [p[0] - mx, p[1] - my]).collect();
+    let centred = || pts.iter().map(|p| [p[0] - mx, p[1] - my]);
     // Kåsa: x² + y² + D x + E y + F = 0 in least squares (3 × 3 normal equations).
     let mut a = [[0.0; 3]; 3];
     let mut b = [0.0; 3];
-    for p in &q {
+    for p in centred() {
         let row = [p[0], p[1], 1.0];
         let rhs = -(p[0] * p[0] + p[1] * p[1]);
         for r in 0..3 {
@@ -243,7 +243,7 @@ pub fn fit_circle(pts: &[[f64; 2]]) -> Option<(f64, f64)> {
         let mut g = [0.0; 3];
         normal = [[0.0; 3]; 3];
         rss = 0.0;
-        for p in &q {
+        for p in centred() {
             let (dx, dy) = (p[0] - cx, p[1] - cy);
             let d = (dx * dx + dy * dy).sqrt();
             if d == 0.0 {
@@ -307,7 +307,7 @@ fn invert3(a: [[f64; 3]; 3]) -> Option<[[f64; 3]; 3]> {
     Some(inv)
 }
 
-fn track_turns(s: &Samples, rows: Range<usize>, k: usize, o: &TurnOptions) -> Vec<Turn> {
+fn track_turns(s: &Samples, rows: Range<usize>, k: usize, o: &TurnOptions) -> Result<Vec<Turn>> {
     let sign = |v: f64| if v > 0.0 { 1i8 } else { -1i8 };
     let on = |i: usize| s.curvature[i].abs() >= (o.z_on * s.kappa_se(i)).max(o.min_curvature);
     let stay = |i: usize| {
@@ -336,24 +336,25 @@ fn track_turns(s: &Samples, rows: Range<usize>, k: usize, o: &TurnOptions) -> Ve
     //    `merge_samples` typical steps at speed (at least half the runs' speed). A stop in a
     //    bend travels no distance, and the slow, noisy samples around it little; a straight
     //    between two bends of one hand travels its length.
-    let mut steps: Vec<f64> = rows
-        .clone()
-        .skip(1)
-        .filter(|&i| s.moving(i) && s.moving(i - 1))
-        .map(|i| s.s[i] - s.s[i - 1])
-        .collect();
+    let mut steps = try_collect(
+        rows.len(),
+        rows.clone()
+            .skip(1)
+            .filter(|&i| s.moving(i) && s.moving(i - 1))
+            .map(|i| s.s[i] - s.s[i - 1]),
+    )?;
     let step = crate::uncertainty::median(&mut steps);
-    let pace = |(a, b, _): (usize, usize, i8)| {
-        let mut v: Vec<f64> = (a..=b)
-            .filter(|&i| s.moving(i))
-            .map(|i| s.speed[i])
-            .collect();
-        crate::uncertainty::median(&mut v)
+    let pace = |(a, b, _): (usize, usize, i8)| -> Result<f64> {
+        let mut v = try_collect(
+            b + 1 - a,
+            (a..=b).filter(|&i| s.moving(i)).map(|i| s.speed[i]),
+        )?;
+        Ok(crate::uncertainty::median(&mut v))
     };
     let mut merged: Vec<(usize, usize, i8)> = Vec::new();
     for run in runs {
         if let Some(prev) = merged.last_mut() {
-            let fast = 0.5 * pace(*prev).min(pace(run));
+            let fast = 0.5 * pace(*prev)?.min(pace(run)?);
             let straight: f64 = (prev.1 + 1..=run.0)
                 .filter(|&i| s.moving(i) && s.speed[i] >= fast)
                 .map(|i| s.s[i] - s.s[i - 1])
@@ -469,11 +470,13 @@ fn track_turns(s: &Samples, rows: Range<usize>, k: usize, o: &TurnOptions) -> Ve
         let peak = stretch_max(a..b + 1, o.half, trusted, |i| df * s.curvature[i])
             .or_else(|| stretch_max(a..b + 1, 0, |i| s.moving(i), |i| df * s.curvature[i]));
         let (peak_k, peak_row) = peak.unwrap_or((f64::NAN, a));
-        let core: Vec<[f64; 2]> = (a..=b)
-            .filter(|&i| s.moving(i) && df * s.curvature[i] >= o.core * peak_k)
-            .map(|i| [s.xy[2 * i], s.xy[2 * i + 1]])
-            .filter(|p| p[0].is_finite() && p[1].is_finite())
-            .collect();
+        let core = try_collect(
+            b + 1 - a,
+            (a..=b)
+                .filter(|&i| s.moving(i) && df * s.curvature[i] >= o.core * peak_k)
+                .map(|i| [s.xy[2 * i], s.xy[2 * i + 1]])
+                .filter(|p| p[0].is_finite() && p[1].is_finite()),
+        )?;
         // Too few core samples, or a circle no better than 10 % (a short turn: a few noisy
         // points on a short arc), and the smoothed peak is the figure, without an error.
         let (radius, radius_se) = match fit_circle(&core) {
@@ -500,7 +503,7 @@ fn track_turns(s: &Samples, rows: Range<usize>, k: usize, o: &TurnOptions) -> Ve
             flagged: (a..=b).filter(|&i| s.flags[i] & FLAGGED != 0).count(),
         });
     }
-    out
+    Ok(out)
 }
 
 fn track_speed_changes(
@@ -625,11 +628,15 @@ pub fn turns(s: &Samples, offsets: &[i64], o: &TurnOptions) -> Result<Vec<Turn>>
     check_options(o)?;
     let offsets = check_offsets(offsets, s.t.len())?;
     let m = offsets.len() - 1;
-    let per: Vec<Vec<Turn>> = (0..m)
+    let per: Vec<Result<Vec<Turn>>> = (0..m)
         .into_par_iter()
         .map(|k| track_turns(s, track_rows(&offsets, k), k, o))
         .collect();
-    Ok(per.into_iter().flatten().collect())
+    let mut out = Vec::new();
+    for turns in per {
+        out.extend(turns?);
+    }
+    Ok(out)
 }
 
 /// The speed changes of every track of a batch.
