@@ -124,3 +124,15 @@ def test_command_line_differences_integer_times_exactly(tmp_path):
     assert code == 0
     back = pd.read_csv(out)
     assert np.nanmax(np.abs(back["accel_tangential"])) * PER_NS2 <= 1e-6  # as above
+
+
+def test_fitted_paths_take_integer_times_exactly():
+    # osc.fit on epoch-nanosecond times, queried between the samples in nanoseconds: the
+    # constant-speed line has zero acceleration (closed form; tolerance 1e-6 m/s² as above), and
+    # positions at t0 + 100.5 ms are 1.005 m along (to 1e-9 m). Float64 times give 2.6 m/s².
+    t, x = _line()
+    p = osc.fit(t, x, method="spline")
+    q = t[100:110] + 500_000
+    assert np.abs(p(q, 2)).max() * PER_NS2 <= 1e-6
+    np.testing.assert_allclose(p(q)[:, 0], 10.0 * (np.arange(100, 110) + 0.5) * 1e-3, atol=1e-9)
+    assert np.abs(p.kinematics(q).accel_tangential).max() * PER_NS2 <= 1e-6

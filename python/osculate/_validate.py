@@ -91,7 +91,7 @@ def as_int(name: str, value: Any, low: int, high: int) -> int:
     return v
 
 
-def _ticks(t: Any) -> tuple[np.ndarray, float] | None:
+def ticks_of(t: Any) -> tuple[np.ndarray, float] | None:
     """Integer or datetime times as int64 ticks and ticks per time unit; None for float times.
 
     Datetimes (NumPy ``datetime64`` or pandas, naive or timezone-aware) count nanoseconds since
@@ -122,7 +122,7 @@ def as_times(t: Any, name: str = "t") -> F64:
     Datetimes become seconds since 1970-01-01 UTC (exact differences come from
     :func:`kernel_times`).
     """
-    ticks = _ticks(t)
+    ticks = ticks_of(t)
     if ticks is not None and ticks[1] != 1.0:
         t = ticks[0] / ticks[1]
     arr = _real(name, t)
@@ -150,10 +150,19 @@ def kernel_times(t: Any, tt: F64, g: Grouping, name: str = "t") -> tuple[F64, F6
         The kernel's times and, per track, what was subtracted (as float64; zeros for float
         times): add it back to times the kernels return.
     """
-    ticks = _ticks(t)
+    ticks = ticks_of(t)
     tk = g.to_kernel(tt)
-    if ticks is None or ticks[0].size == 0 or ticks[0].ndim != 1:
-        return tk, np.zeros(g.n_tracks)
+    off = g.offsets
+    layout_ok = (
+        off.ndim == 1
+        and len(off) >= 2
+        and off[0] == 0
+        and off[-1] == len(tt)
+        and bool(np.all(np.diff(off) >= 0))
+    )
+    if ticks is None or ticks[0].shape != tt.shape or not layout_ok:
+        # Float times, or offsets the kernel will reject with its own message.
+        return tk, np.zeros(max(g.n_tracks, 0))
     ik, per_unit = g.to_kernel(ticks[0]), ticks[1]
     counts = np.diff(g.offsets)
     has = counts > 0

@@ -9,7 +9,15 @@ import numpy.typing as npt
 
 from . import _core
 from ._estimators import FIT_METHODS, EstimatorOptions, fit_core
-from ._validate import Grouping, as_positions, as_times, call_kernel, group_rows
+from ._validate import (
+    Grouping,
+    as_positions,
+    as_times,
+    call_kernel,
+    group_rows,
+    kernel_times,
+    ticks_of,
+)
 from .intrinsic import Kinematics, _assemble, _threshold, _up
 
 __all__ = ["Path", "fit"]
@@ -34,10 +42,19 @@ class Path:
         not apply); see :func:`osculate.kinematics`.
     """
 
-    def __init__(self, fitted: _core.FittedPaths, g: Grouping, opts: EstimatorOptions) -> None:
+    def __init__(
+        self,
+        fitted: _core.FittedPaths,
+        g: Grouping,
+        opts: EstimatorOptions,
+        origin: tuple[npt.NDArray[np.int64], float] | None = None,
+    ) -> None:
         self._fitted = fitted
         self._g = g
         self._opts = opts
+        # Integer or datetime times: each track's first time (ticks) and ticks per time unit;
+        # the fits are in time since it, so queries are shifted the same way.
+        self._origin = origin
         self.tracks: np.ndarray = g.labels
         self.dim: int = fitted.dim
         self.fit_info: dict[str, np.ndarray] = fitted.info()
@@ -73,7 +90,16 @@ class Path:
         off = np.zeros(len(self.tracks) + 1, dtype=np.int64)
         np.cumsum(counts, out=off[1:])
         g = Grouping(off, order, self.tracks)
-        return tq, g, np.ascontiguousarray(tq[order])
+        if self._origin is None:
+            return tq, g, np.ascontiguousarray(tq[order])
+        first, per_unit = self._origin
+        code = codes[order]
+        ticks = ticks_of(t if np.ndim(t) else np.reshape(np.asarray(t), -1))
+        if ticks is not None and ticks[1] == per_unit:  # exact: differences in int64
+            rel = (ticks[0][order] - first[code]).astype(np.float64) / per_unit
+        else:
+            rel = tq[order] - first[code].astype(np.float64) / per_unit
+        return tq, g, np.ascontiguousarray(rel)
 
     def __call__(self, t: npt.ArrayLike, nu: int = 0, *, track: Any = None) -> F64:
         """Position (``nu=0``) or its ``nu``-th time derivative (up to 3) at times ``t``.
@@ -191,5 +217,12 @@ def fit(
     tt = as_times(t)
     x = as_positions(positions, len(tt))
     g = group_rows(len(tt), tracks, offsets, tt)
-    fitted = fit_core(opts, g, g.to_kernel(tt), g.to_kernel(x))
-    return Path(fitted, g, opts)
+    tk, _ = kernel_times(t, tt, g)
+    fitted = fit_core(opts, g, tk, g.to_kernel(x))
+    ticks = ticks_of(t)
+    origin = None
+    if ticks is not None:
+        ik = g.to_kernel(ticks[0])
+        first = ik[np.minimum(g.offsets[:-1], max(len(ik) - 1, 0))]
+        origin = (np.asarray(first, dtype=np.int64), ticks[1])
+    return Path(fitted, g, opts, origin)
