@@ -68,8 +68,9 @@ def test_csv_to_parquet_to_csv_keeps_every_row(tmp_path, capsys):
     assert len(back) == len(df)
     # Input columns come back unchanged (tolerance 0: CSV floats are written shortest-round-trip).
     pd.testing.assert_frame_equal(back[df.columns], df, check_exact=True, check_dtype=False)
-    # Results equal the accessor's on the same frame (tolerance 0: same kernel, exact floats).
-    expected = df.osc.kinematics(time="t", position=["x", "y"], by="id")
+    # Results equal the accessor's on the same frame with the CLI's default estimator, the
+    # smoothing spline (tolerance 0: same kernel, exact floats).
+    expected = df.osc.kinematics(time="t", position=["x", "y"], by="id", method="smooth")
     for col in expected.columns:
         np.testing.assert_array_equal(back[col].to_numpy(), expected[col].to_numpy(), err_msg=col)
     assert osc.Flag.INVALID in osc.Flag(int(back.loc[5, "flags"]))
@@ -178,7 +179,7 @@ def test_geodetic_columns_and_iso_times(tmp_path, capsys):
     assert main(capsys, *args, "-q") == (0, "", "")
     got = pd.read_parquet(out)
     expected = df.assign(when=stamps).osc.kinematics(
-        time="when", position=["lat", "lon", "alt"], crs="geodetic"
+        time="when", position=["lat", "lon", "alt"], crs="geodetic", method="smooth"
     )
     pd.testing.assert_frame_equal(got[expected.columns], expected, check_exact=True)
     df.loc[3, "when"] = "yesterday"
