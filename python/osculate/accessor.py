@@ -6,6 +6,7 @@ Importing :mod:`osculate` registers the accessor when pandas is importable.
 from __future__ import annotations
 
 import dataclasses
+import warnings
 from collections.abc import Hashable, Sequence
 from typing import Any, Optional
 
@@ -21,6 +22,7 @@ except ImportError as exc:  # pragma: no cover - depends on the environment
 
 from . import _core
 from ._validate import EXACT_SPAN, Grouping, plain, track_time_order
+from .diagnose import SuspectDataWarning, track_names
 from .geodesy import enu_and_origins
 from .intrinsic import Kinematics
 from .intrinsic import kinematics as _kinematics
@@ -256,9 +258,22 @@ class _Prepared:
         if self.enu is not None and self.x.shape[1] == 3:
             options = {"up": (0.0, 0.0, 1.0), **options}
         try:
-            return _kinematics(self.t, self.x, offsets=self.offsets, **options)
+            with warnings.catch_warnings(record=True) as caught:
+                warnings.simplefilter("always", SuspectDataWarning)
+                k = _kinematics(self.t, self.x, offsets=self.offsets, **options)
         except _core.InputError as err:
             raise self.relabel(err) from None
+        # The data checks name tracks by batch position here: say the caller's labels instead.
+        for w in caught:
+            tracks = getattr(w.message, "tracks", None)
+            if tracks is None:
+                warnings.warn_explicit(w.message, w.category, w.filename, w.lineno)
+                continue
+            bad = np.zeros(len(self.labels), dtype=bool)
+            bad[tracks] = True
+            names = track_names(np.asarray(self.labels), bad)
+            warnings.warn(f"track(s) {names}: {w.message.reason}", SuspectDataWarning, stacklevel=4)
+        return k
 
 
 def _quantities(k: Kinematics) -> list[tuple[str, np.ndarray]]:

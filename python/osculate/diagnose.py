@@ -10,7 +10,7 @@ import numpy.typing as npt
 from . import _core
 from .flags import Flag
 
-__all__ = ["SuspectDataWarning", "check_tracks"]
+__all__ = ["SuspectDataWarning", "check_tracks", "track_names"]
 
 #: No tracked object moves faster than Earth's escape speed, 11.2 km/s (common practice); a
 #: median step speed above this in metres per second is a unit mistake (e.g. millimetres).
@@ -37,7 +37,8 @@ class SuspectDataWarning(UserWarning):
     """
 
 
-def _names(labels: np.ndarray, bad: npt.NDArray[np.bool_]) -> str:
+def track_names(labels: np.ndarray, bad: npt.NDArray[np.bool_]) -> str:
+    """Return the labels of the tracks ``bad`` for a message (the first five, and how many more)."""
     shown = [str(v) for v in labels[bad][:5]]
     more = int(bad.sum()) - len(shown)
     return ", ".join(shown) + (f" and {more} more" if more > 0 else "")
@@ -75,9 +76,10 @@ def check_tracks(
         findings = _findings(t, x, offsets, flags, acceleration, noise, method)
     for bad, message in findings:
         if bad.any():
-            warnings.warn(
-                f"track(s) {_names(labels, bad)}: {message}", SuspectDataWarning, stacklevel=3
-            )
+            warning = SuspectDataWarning(f"track(s) {track_names(labels, bad)}: {message}")
+            # Batch positions and reason, for callers that name the tracks their own way.
+            warning.tracks, warning.reason = np.flatnonzero(bad), message
+            warnings.warn(warning, stacklevel=3)
 
 
 def _findings(
