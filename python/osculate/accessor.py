@@ -357,7 +357,8 @@ def summary_and_stops(
     origin: npt.ArrayLike | None,
     options: dict[str, Any],
     from_results: bool = False,
-) -> tuple[pd.DataFrame, pd.DataFrame]:
+    tables: Optional[dict[str, dict[str, Any]]] = None,
+) -> tuple[pd.DataFrame, pd.DataFrame, dict[str, pd.DataFrame]]:
     """Return the tables of :meth:`OscAccessor.summary` and :meth:`OscAccessor.stops`, one run.
 
     With ``from_results``, ``df`` is an output of ``osculate analyze`` (or of
@@ -365,6 +366,9 @@ def summary_and_stops(
     jerk and the ``_se`` columns where present) are summarised as they are, without recomputing.
     Extremes then use stretches of three samples (the smoothing bandwidth is not in the table),
     and the stops are the STOPPED runs of the table, not trimmed by the noise.
+
+    ``tables`` names the turn, speed-change and element tables to make as well (see
+    :func:`events`): from the same run, or from the positions when summarising results.
     """
     prep = _Prepared(df, time, position, by, crs, origin)
     if from_results and prep.n:
@@ -396,7 +400,12 @@ def summary_and_stops(
         rows = (prep.order[rows[0]], prep.order[rows[1]])
     stops["start"] = raw.iloc[rows[0]].array
     stops["end"] = raw.iloc[rows[1]].array
-    return out, stops.rename(columns={"track": "track" if by is None else by})
+    extra: dict[str, pd.DataFrame] = {}
+    if tables and from_results and prep.n:  # the results hold no velocities: run the positions
+        extra = events(df, time, position, by, crs, origin, options, tables)
+    elif tables:
+        extra = _tables_of(prep, k, by, tables)
+    return out, stops.rename(columns={"track": "track" if by is None else by}), extra
 
 
 #: Columns of an ``analyze`` output that a summary is made from (see :func:`summary_and_stops`).
@@ -485,39 +494,29 @@ def events(
     options: dict[str, Any],
     rules: dict[str, dict[str, Any]],
 ) -> dict[str, pd.DataFrame]:
-    """Return the tables of turns and speed changes named in ``rules``, from one run.
+    """Return the tables of turns, speed changes and elements named in ``rules``, from one run.
 
-    ``rules`` maps ``"turns"`` and/or ``"speed_changes"`` to the keyword arguments of
-    :meth:`osculate.Kinematics.turns` / :meth:`osculate.Kinematics.speed_changes`.
+    ``rules`` maps ``"turns"``, ``"speed_changes"`` and/or ``"elements"`` to the keyword
+    arguments of :meth:`osculate.Kinematics.turns`, :meth:`~osculate.Kinematics.speed_changes`
+    and :func:`osculate.elements.elements_of`.
     """
     prep = _Prepared(df, time, position, by, crs, origin)
     k = prep.run(options) if prep.n else _synthetic(prep, options)
-    return {name: _event_frame(prep, getattr(k, name)(**r), by) for name, r in rules.items()}
+    return _tables_of(prep, k, by, rules)
 
 
 #: Options of :func:`osculate.elements.elements_of` the accessor passes on.
 _ELEMENT_OPTIONS = ("significance", "resolution", "refine", "max_iterations")
 
 
-def element_table(
-    df: pd.DataFrame,
-    time: Hashable,
-    position: Sequence[Hashable],
-    by: Optional[Hashable],
-    crs: str,
-    origin: npt.ArrayLike | None,
-    options: dict[str, Any],
-    rules: dict[str, Any],
+def _element_frame(
+    prep: _Prepared, k: Kinematics, by: Optional[Hashable], rules: dict[str, Any]
 ) -> pd.DataFrame:
-    """Return the table of :meth:`OscAccessor.elements` (``rules``: :func:`elements_of`'s)."""
+    """Return the element table of a run of ``prep`` as the caller has it (labels, times)."""
     from .elements import elements_of
 
-    prep = _Prepared(df, time, position, by, crs, origin)
-    if crs == "geodetic" and rules.get("up") is None:
-        rules = {**rules, "up": (0.0, 0.0, 1.0)}
-    k = prep.run(options) if prep.n else _synthetic(prep, options)
-    if not prep.n and k.dim == 3 and rules.get("up") is None:
-        rules = {**rules, "up": (0.0, 0.0, 1.0)}  # the synthetic run only gives the layout
+    if rules.get("up") is None and (prep.crs == "geodetic" or (not prep.n and k.dim == 3)):
+        rules = {**rules, "up": (0.0, 0.0, 1.0)}  # local vertical; or the synthetic layout run
     keep = slice(None) if prep.n else slice(0, 0)
     out = elements_of(k, **rules).to_pandas().iloc[keep].reset_index(drop=True)
     code = np.asarray(out["track"], dtype=np.intp)
@@ -528,6 +527,18 @@ def element_table(
     for c in ("start_time", "end_time"):
         out[c] = _caller_time(prep, out[c].to_numpy(), origin_time)
     return out.rename(columns={"track": "track" if by is None else by})
+
+
+def _tables_of(
+    prep: _Prepared, k: Kinematics, by: Optional[Hashable], rules: dict[str, dict[str, Any]]
+) -> dict[str, pd.DataFrame]:
+    """Return the turn, speed-change and element tables named in ``rules``, from one run."""
+    return {
+        name: _element_frame(prep, k, by, r)
+        if name == "elements"
+        else _event_frame(prep, getattr(k, name)(**r), by)
+        for name, r in rules.items()
+    }
 
 
 def _synthetic(prep: _Prepared, options: dict[str, Any]) -> Kinematics:
@@ -851,7 +862,7 @@ class OscAccessor:
         element_rules = {k: options.pop(k) for k in list(options) if k in _ELEMENT_OPTIONS}
         rules = {"up": up, "penalty": penalty, "min_length": min_length, **element_rules}
         args = (self._df, time, position, by, crs, origin, options)
-        return element_table(*args, rules)
+        return events(*args, {"elements": rules})["elements"]
 
     def speed_changes(
         self,

@@ -560,7 +560,7 @@ def _analyze(args: argparse.Namespace) -> int:
 def _summarize(args: argparse.Namespace) -> int:
     """``osculate summary``: one line per track and the stop intervals."""
     pd = _pandas()
-    from .accessor import RESULTS_SUMMARIZED, element_table, events, summary_and_stops
+    from .accessor import RESULTS_SUMMARIZED, summary_and_stops
 
     spec = _selection(args)
     source = _check_input(args.file)
@@ -587,43 +587,33 @@ def _summarize(args: argparse.Namespace) -> int:
             "(--recompute computes them again from the positions)",
             file=sys.stderr,
         )
+    # Turns, speed changes and elements come from the same run as the summary.
+    rules: dict[str, dict[str, Any]] = {
+        name: {}
+        for name, option in (
+            ("turns", "--turns"),
+            ("speed_changes", "--speed-changes"),
+            ("elements", "--elements"),
+        )
+        if option in paths
+    }
+    if "elements" in rules and len(position) == 3:
+        rules["elements"] = {"up": spec.get("up") or (0.0, 0.0, 1.0)}
     parts = _in_chunks(
         df,
         args.track,
         lambda part: summary_and_stops(
-            part, time_col, position, by, crs, origin, spec, from_results=done
+            part, time_col, position, by, crs, origin, spec, from_results=done, tables=rules
         ),
         args,
     )
     table = pd.concat([p[0] for _, p in parts])
     stops = pd.concat([p[1] for _, p in parts], ignore_index=True)
-    # Turns and speed changes: their own run of the same kinematics (from the positions).
-    rules = {
-        name: {}
-        for name, option in (("turns", "--turns"), ("speed_changes", "--speed-changes"))
-        if option in paths
-    }
     found: dict[str, Any] = {}
-    if rules:
-        ev = _in_chunks(
-            df,
-            args.track,
-            lambda part: events(part, time_col, position, by, crs, origin, spec, rules),
-            args,
-        )
-        for name in rules:  # rows within a chunk are not the file's: left out
-            both = pd.concat([p[name] for _, p in ev], ignore_index=True)
-            found[name] = both.drop(columns=["first_row", "last_row"])
-    if "--elements" in paths:
-        up = {"up": spec.get("up") or (0.0, 0.0, 1.0)} if len(position) == 3 else {}
-        options = {k: v for k, v in spec.items() if k != "up"}
-        parts_el = _in_chunks(
-            df,
-            args.track,
-            lambda part: element_table(part, time_col, position, by, crs, origin, options, up),
-            args,
-        )
-        found["elements"] = pd.concat([p for _, p in parts_el], ignore_index=True)
+    for name in rules:
+        both = pd.concat([p[2][name] for _, p in parts], ignore_index=True)
+        # Rows within a chunk are not the file's: left out.
+        found[name] = both.drop(columns=["first_row", "last_row"], errors="ignore")
     if "--output" in paths:
         _write(table, paths["--output"], "--output")
     if "--stops" in paths:
