@@ -681,6 +681,10 @@ def _band(ax: Any, x: F64, y: F64, se: F64, d: _Samples) -> Any:
     # One fill for all tracks: a NaN row after each track's last sample separates them.
     cut = np.flatnonzero(d.last[:-1]) + 1
     xs, lo, hi = (np.insert(v, cut, np.nan) for v in (x, y - BAND_Z * se, y + BAND_Z * se))
+    # The band does not set the axis limits: next to a stop the standard error of κ or a_n is
+    # hundreds of times the value, and a band that wide flattened every curve of the panel to
+    # zero. The estimates set the limits; a band wider than them is cut at the frame.
+    limits, unset = ax.dataLim.frozen(), ax.ignore_existing_data_limits
     ax.fill_between(
         xs,
         lo,
@@ -690,6 +694,9 @@ def _band(ax: Any, x: F64, y: F64, se: F64, d: _Samples) -> Any:
         alpha=palette.BAND_ALPHA,
         zorder=1.5,
     )
+    ax.dataLim.set(limits)
+    ax.ignore_existing_data_limits = unset
+    ax.update_datalim(np.column_stack([x, y])[np.isfinite(x) & np.isfinite(y)])
     # The figure legend's entry (the fill itself stays out of per-axes legends).
     return Patch(
         facecolor=palette.BAND,
