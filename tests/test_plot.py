@@ -866,3 +866,19 @@ def test_path_refuses_elements_of_another_dimension():
         plot.path(k2, elements=el3)
     with pytest.raises(osc.InputError, match="planar"):
         plot.path(k3, elements=el2)
+
+
+def test_band_does_not_set_the_axis_limits():
+    # A vehicle with stops (tests/test_trust.py): next to each stop the standard error of κ is
+    # hundreds of times the value; the curvature panel's limits follow the estimates (the turn's
+    # κ = 1/20 m, construction), not the band, which used to stretch them to about ±20 1/m.
+    from test_trust import _stop_and_go
+
+    t, x, _, _ = _stop_and_go(np.random.default_rng(1))
+    k = osc.kinematics(t, x, method="smooth")
+    assert np.nanmax(k.se["curvature"]) > 1.0  # the wide band is there
+    p = osc.plot.profile(k, quantities=["curvature"])
+    lo, hi = (
+        p.axes[0].get_ylim() if isinstance(p.axes, (list, tuple, np.ndarray)) else p.axes.get_ylim()
+    )
+    assert hi < 0.2 and lo > -0.2, (lo, hi)
