@@ -18,6 +18,7 @@ __all__ = [
     "fresnel",
     "geodetic_to_enu",
     "grid_eval",
+    "group_rows",
     "line_integral_grid",
     "line_integral_sampled",
     "line_integral_values",
@@ -25,6 +26,7 @@ __all__ = [
     "rotation_minimizing",
     "segment_nodes",
     "summarize",
+    "take_rows",
     "track_stats",
 ]
 
@@ -34,6 +36,12 @@ class InputError(ValueError):
     row: int | None
     detail: str
 
+def group_rows(
+    codes: npt.NDArray[np.int64],
+    n_tracks: int,
+    key: npt.NDArray[np.float64] | npt.NDArray[np.int64] | None = None,
+) -> tuple[npt.NDArray[np.uintp] | None, npt.NDArray[np.uintp] | None, npt.NDArray[np.uintp]]: ...
+def take_rows(a: npt.NDArray[Any], index: npt.NDArray[np.uintp]) -> npt.NDArray[Any]: ...
 def fd_kinematics(
     t: npt.NDArray[np.float64],
     positions: npt.NDArray[np.float64],

@@ -5,12 +5,12 @@ Messages name the argument, and where relevant the track and the caller's row.
 
 from __future__ import annotations
 
-import dataclasses
 from typing import Any, Callable, TypeVar
 
 import numpy as np
 import numpy.typing as npt
 
+from . import _core
 from ._core import InputError
 
 __all__ = [
@@ -200,17 +200,62 @@ def as_positions(x: Any, n: int, name: str = "positions") -> F64:
     return arr
 
 
-@dataclasses.dataclass(frozen=True)
 class Grouping:
-    """How the caller's rows split into tracks.
+    """How the caller's rows split into tracks: the one grouping every layer uses.
 
-    ``order`` maps kernel rows (grouped by track) to caller rows, or is None when the caller's rows
-    are already grouped. ``labels`` holds one label per track.
+    The kernels see each track's rows together and in time order ("kernel rows"); the caller
+    keeps its own row order. ``order[i]`` is the caller row of kernel row ``i`` and ``inverse``
+    the reverse map; both are None when the caller's rows already are grouped and in time order.
+    Both directions are parallel gathers in Rust (:func:`osculate._core.take_rows`).
+
+    Build one with :meth:`from_offsets`, :meth:`from_codes` or :func:`group_rows` (from ids).
     """
 
-    offsets: npt.NDArray[np.int64]
-    order: npt.NDArray[np.intp] | None
-    labels: np.ndarray
+    __slots__ = ("inverse", "labels", "offsets", "order")
+
+    def __init__(
+        self,
+        offsets: npt.NDArray[np.int64],
+        order: np.ndarray | None,
+        labels: np.ndarray,
+        inverse: np.ndarray | None = None,
+    ) -> None:
+        self.offsets = offsets
+        self.order = None if order is None else _as_rows(order)
+        if self.order is not None and inverse is None:
+            inverse = np.empty_like(self.order)
+            inverse[self.order] = np.arange(len(self.order))
+        self.inverse = None if inverse is None else _as_rows(inverse)
+        self.labels = labels
+
+    @classmethod
+    def from_offsets(cls, offsets: Any, labels: np.ndarray | None = None) -> Grouping:
+        """Rows already grouped: track k is rows ``offsets[k]:offsets[k + 1]``."""
+        off = np.asarray(offsets)
+        if off.dtype.kind not in "iu":
+            raise TypeError(f"offsets: expected integers, got dtype {off.dtype}")
+        if off.ndim != 1:
+            raise InputError(f"offsets: expected a 1-D array, got shape {off.shape}")
+        if off.dtype.kind == "u" and off.size and off.max() > np.iinfo(np.int64).max:
+            raise InputError(f"offsets: {int(off.max())} is beyond any row count")
+        off = np.ascontiguousarray(off, dtype=np.int64)
+        return cls(off, None, np.arange(max(len(off) - 1, 0)) if labels is None else labels)
+
+    @classmethod
+    def from_codes(cls, codes: np.ndarray, labels: np.ndarray, key: Any = None) -> Grouping:
+        """Rows with track codes ``0 <= code < len(labels)``, put in ``key`` (time) order per track.
+
+        Equal to a stable sort by (code, key); O(n) when each track's rows are in time order.
+        """
+        key_arr = None
+        if key is not None:
+            key_arr = np.asarray(key)
+            kind = key_arr.dtype.kind
+            key_arr = np.ascontiguousarray(key_arr, np.int64 if kind in "iuMm" else np.float64)
+        order, inverse, off = _core.group_rows(
+            np.ascontiguousarray(codes, dtype=np.int64), len(labels), key_arr
+        )
+        return cls(off.astype(np.int64), order, labels, inverse)
 
     @property
     def n_tracks(self) -> int:
@@ -219,19 +264,50 @@ class Grouping:
 
     def to_kernel(self, a: np.ndarray) -> np.ndarray:
         """Caller rows → kernel rows."""
-        return a if self.order is None else np.ascontiguousarray(a[self.order])
+        return a if self.order is None else _take(a, self.order)
 
     def to_caller(self, a: np.ndarray) -> np.ndarray:
         """Kernel rows → caller rows."""
-        if self.order is None:
-            return a
-        out = np.empty_like(a)
-        out[self.order] = a
-        return out
+        return a if self.inverse is None else _take(a, self.inverse)
 
     def caller_row(self, row: int) -> int:
         """Return the caller's row of kernel row ``row``."""
         return row if self.order is None else int(self.order[row])
+
+    def caller_rows(self, rows: np.ndarray) -> npt.NDArray[np.int64]:
+        """Return the caller's rows of kernel rows ``rows`` (an integer array)."""
+        rows = np.asarray(rows, dtype=np.int64)
+        return rows if self.order is None else self.order[rows].astype(np.int64)
+
+    def row_codes(self) -> npt.NDArray[np.intp]:
+        """Track position (0 .. n_tracks - 1) of every caller row."""
+        codes = np.repeat(np.arange(self.n_tracks), np.diff(self.offsets))
+        return self.to_caller(codes)
+
+
+def _as_rows(index: np.ndarray) -> npt.NDArray[np.intp]:
+    """Row numbers as intp (Rust hands out usize; same bits, no copy)."""
+    index = np.ascontiguousarray(index)
+    if index.dtype == np.uintp:
+        return index.view(np.intp)
+    return np.ascontiguousarray(index, dtype=np.intp)
+
+
+def _take(a: np.ndarray, index: npt.NDArray[np.intp]) -> np.ndarray:
+    """``a[index]`` along the first axis: a parallel gather in Rust where the dtype allows."""
+    if (
+        isinstance(a, np.ndarray)
+        and a.dtype.kind in "fiub"
+        and a.dtype.itemsize in (1, 4, 8)
+        and a.dtype.isnative
+        and a.ndim >= 1
+        and a.size > 0
+        and a.flags.c_contiguous
+        and not (a.dtype.kind == "u" and a.dtype.itemsize != 1)
+        and not (a.dtype.kind == "i" and a.dtype.itemsize == 1)
+    ):
+        return _core.take_rows(a, index.view(np.uintp))
+    return np.ascontiguousarray(np.asarray(a)[index])
 
 
 def track_time_order(
@@ -239,22 +315,9 @@ def track_time_order(
 ) -> npt.NDArray[np.intp] | None:
     """Permutation that sorts rows stably by (track code, time key); None if they already are.
 
-    Equal to ``numpy.lexsort((key, codes))``, computed faster: rows already time-ordered within
-    each track (the usual log, tracks interleaved) need one stable sort of the small-integer codes
-    (a radix sort); otherwise a stable sort by time comes first, then the stable sort by track.
+    Equal to ``numpy.lexsort((key, codes))``; see :meth:`Grouping.from_codes`.
     """
-    if len(codes) < 2:
-        return None
-    same = codes[1:] == codes[:-1]
-    if np.all((codes[1:] > codes[:-1]) | (same & (key[1:] >= key[:-1]))):
-        return None
-    small = codes.astype(np.uint16 if n_tracks <= 1 << 16 else np.int64)
-    order = np.argsort(small, kind="stable")
-    c, k = codes[order], key[order]
-    if np.all((c[1:] != c[:-1]) | (k[1:] >= k[:-1])):
-        return order
-    by_time = np.argsort(key, kind="stable")
-    return by_time[np.argsort(small[by_time], kind="stable")]
+    return Grouping.from_codes(codes, np.arange(n_tracks), key).order
 
 
 def group_rows(n: int, tracks: Any = None, offsets: Any = None, t: Any = None) -> Grouping:
@@ -267,15 +330,7 @@ def group_rows(n: int, tracks: Any = None, offsets: Any = None, t: Any = None) -
     if tracks is not None and offsets is not None:
         raise InputError("tracks, offsets: give one of them, not both")
     if offsets is not None:
-        off = np.asarray(offsets)
-        if off.dtype.kind not in "iu":
-            raise TypeError(f"offsets: expected integers, got dtype {off.dtype}")
-        if off.ndim != 1:
-            raise InputError(f"offsets: expected a 1-D array, got shape {off.shape}")
-        if off.dtype.kind == "u" and off.size and off.max() > np.iinfo(np.int64).max:
-            raise InputError(f"offsets: {int(off.max())} is beyond any row count")
-        off = np.ascontiguousarray(off, dtype=np.int64)
-        return Grouping(off, None, np.arange(max(len(off) - 1, 0)))
+        return Grouping.from_offsets(offsets)
     if tracks is None:
         return Grouping(np.array([0, n], dtype=np.int64), None, np.array([0]))
     try:
@@ -297,15 +352,7 @@ def group_rows(n: int, tracks: Any = None, offsets: Any = None, t: Any = None) -
     else:
         labels, codes = np.unique(ids, return_inverse=True)
         codes = codes.reshape(-1)
-    if t is None:
-        grouped = bool(np.all(codes[1:] >= codes[:-1]))
-        order = None if grouped else np.argsort(codes, kind="stable")
-    else:
-        order = track_time_order(codes, np.asarray(t), len(labels))
-    counts = np.bincount(codes, minlength=len(labels))
-    off = np.zeros(len(labels) + 1, dtype=np.int64)
-    np.cumsum(counts, out=off[1:])
-    return Grouping(off, order, labels)
+    return Grouping.from_codes(codes, labels, None if t is None else t)
 
 
 def _factorize_objects(ids: np.ndarray) -> tuple[np.ndarray, np.ndarray]:

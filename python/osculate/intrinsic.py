@@ -845,7 +845,7 @@ def _assemble(
         stops=Stops.none(x.shape[1]) if stops is None else stops,
         t=t,
         position=x,
-        tracks=g.labels[_row_codes(g)] if grouped else None,
+        tracks=g.labels[g.row_codes()] if grouped else None,
         method=opts.method,
         estimator=opts.describe(),
         fit_info=info,
@@ -867,11 +867,6 @@ def _se_mapping(se: dict[str, np.ndarray], g: Grouping, dim: int) -> Mapping[str
         out[name] = a
     out["signed_curvature"] = out["curvature"]
     return types.MappingProxyType(out)
-
-
-def _row_codes(g: Grouping) -> npt.NDArray[np.intp]:
-    codes = np.repeat(np.arange(g.n_tracks), np.diff(g.offsets))
-    return g.to_caller(codes)
 
 
 def derivatives(
