@@ -131,7 +131,7 @@ pub fn take_rows<T: Copy + Send + Sync + Default>(
     width: usize,
     index: &[usize],
 ) -> Result<Vec<T>> {
-    let rows = if width == 0 { 0 } else { src.len() / width };
+    let rows = src.len().checked_div(width).unwrap_or(0);
     if let Some(pos) = index.iter().position(|&r| r >= rows) {
         return Err(KernelError::Shape {
             argument: "index",
