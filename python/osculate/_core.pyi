@@ -62,7 +62,6 @@ def track_stats(
     t: npt.NDArray[np.float64],
     positions: npt.NDArray[np.float64],
     offsets: npt.NDArray[np.int64],
-    acceleration: npt.NDArray[np.float64],
 ) -> dict[str, npt.NDArray[np.float64]]: ...
 def find_turns(
     t: npt.NDArray[np.float64],

@@ -153,13 +153,11 @@ class _Prepared:
             pos = int(np.argmax(times.missing))
             raise self.row_error(time, pos, "the time is missing (NaN or NaT)")
         self.n_tracks = m = len(self.labels) if n else 0
+        self.grouping = Grouping.from_codes(codes, np.arange(m), times.key)
+        self.order: Optional[npt.NDArray[np.intp]] = self.grouping.order
+        self.offsets = self.grouping.offsets
+        counts = np.diff(self.offsets)
         key = times.key
-        self.order: Optional[npt.NDArray[np.intp]] = track_time_order(codes, key, m)
-        self._inverse: Optional[npt.NDArray[np.intp]] = None
-        counts = np.bincount(codes, minlength=m)
-        self.offsets = np.zeros(m + 1, dtype=np.int64)
-        np.cumsum(counts, out=self.offsets[1:])
-        self.grouping = Grouping(self.offsets, None, np.arange(m))
         key = self.to_kernel(key)
         self.datetimes = times.ticks_per_second is not None and not times.integer
         self.integer_times = times.integer
@@ -194,17 +192,11 @@ class _Prepared:
     # -- rows ------------------------------------------------------------------------------------
     def to_kernel(self, a: np.ndarray) -> np.ndarray:
         """Caller rows → kernel rows (grouped by track, sorted by time)."""
-        return a if self.order is None else a[self.order]
+        return self.grouping.to_kernel(a)
 
     def to_caller(self, a: np.ndarray) -> np.ndarray:
-        """Kernel rows → caller rows, for a 1-D array (a gather, faster than a scatter)."""
-        if self.order is None:
-            return a
-        if self._inverse is None:
-            inv = np.empty(self.n, dtype=np.intp)
-            inv[self.order] = np.arange(self.n)
-            self._inverse = inv
-        return np.take(a, self._inverse)
+        """Kernel rows → caller rows."""
+        return self.grouping.to_caller(a)
 
     def caller_pos(self, kernel_row: int) -> int:
         """Return the caller's positional row of a kernel row."""

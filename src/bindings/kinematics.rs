@@ -185,14 +185,12 @@ pub fn track_stats<'py>(
     t: PyReadonlyArray1<'py, f64>,
     positions: PyReadonlyArray2<'py, f64>,
     offsets: PyReadonlyArray1<'py, i64>,
-    acceleration: PyReadonlyArray2<'py, f64>,
 ) -> PyResult<Bound<'py, PyDict>> {
     let dim = positions.shape()[1];
     let t = contiguous("t", t.as_slice())?;
     let x = contiguous("positions", positions.as_slice())?;
     let off = contiguous("offsets", offsets.as_slice())?;
-    let a = contiguous("acceleration", acceleration.as_slice())?;
-    let s = detached(py, || crate::diagnose::track_stats(t, x, dim, off, a))?;
+    let s = detached(py, || crate::diagnose::track_stats(t, x, dim, off))?;
     let out = PyDict::new(py);
     out.set_item("step", s.step.into_pyarray(py))?;
     out.set_item("back", s.back.into_pyarray(py))?;
