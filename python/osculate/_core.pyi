@@ -57,6 +57,7 @@ def fd_kinematics(
     auto_curvature: bool = False,
     significance: float = 3.0,
     max_relative_se: float = 0.25,
+    outputs: list[str] | None = None,
 ) -> dict[str, Any]: ...
 def track_stats(
     t: npt.NDArray[np.float64],
@@ -174,6 +175,7 @@ class FittedPaths:
         auto_curvature: bool = False,
         significance: float = 3.0,
         max_relative_se: float = 0.25,
+        outputs: list[str] | None = None,
     ) -> dict[str, Any]: ...
     def kinematics_at(
         self,
@@ -183,6 +185,7 @@ class FittedPaths:
         min_speed: float,
         min_curvature: float,
         up: tuple[float, float, float] | None = None,
+        outputs: list[str] | None = None,
     ) -> dict[str, Any]: ...
     def evaluate(
         self, t: npt.NDArray[np.float64], query_offsets: npt.NDArray[np.int64], nu: int

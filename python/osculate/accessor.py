@@ -24,7 +24,7 @@ from . import _core
 from ._validate import EXACT_SPAN, Grouping, plain, track_time_order
 from .diagnose import SuspectDataWarning, track_names
 from .geodesy import enu_and_origins
-from .intrinsic import Kinematics
+from .intrinsic import OUTPUTS, Kinematics
 from .intrinsic import kinematics as _kinematics
 from .summary import summarize
 
@@ -275,6 +275,8 @@ def _quantities(k: Kinematics) -> list[tuple[str, np.ndarray]]:
     for f in dataclasses.fields(k):
         if f.name.startswith("_") or f.name in _SKIP:
             continue
+        if f.name in OUTPUTS and f.name not in k.outputs:
+            continue
         a = getattr(k, f.name)
         if isinstance(a, np.ndarray) and a.ndim in (1, 2) and a.shape[0] == n and a.dtype != object:
             out.append((f.name, a))
@@ -304,6 +306,22 @@ def result_columns(k: Kinematics) -> list[str]:
         else:
             names.extend(f"{name}_{axis}" for axis in "xyz"[: a.shape[1]])
     return names
+
+
+def _outputs_for(columns: Any) -> list[str]:
+    """Return the quantities behind result column names (``speed``, ``tangent_x``, ``..._se``).
+
+    Names that match none (unknown ones, ``position``, ``flags``) ask for nothing here;
+    :func:`_select` reports the unknown ones.
+    """
+    wanted = [columns] if isinstance(columns, str) else list(columns)
+    out = []
+    for w in map(str, wanted):
+        base = w[:-3] if w.endswith("_se") else w.replace("_se_", "_")
+        for q in OUTPUTS:
+            if base == q or (base.startswith(f"{q}_") and base[len(q) + 1 :] in ("x", "y", "z")):
+                out.append(q)
+    return out
 
 
 def _select(
@@ -701,6 +719,8 @@ class OscAccessor:
         """
         df = self._df
         prep = _Prepared(df, time, position, by, crs, origin)
+        if columns is not None and "outputs" not in options:
+            options = {**options, "outputs": _outputs_for(columns)}
         k = prep.run(options) if prep.n else _synthetic(prep, options)
         res = _frame(prep, k, columns)
         if not keep:

@@ -39,9 +39,6 @@ impl Rows<'_> {
         up: Option<&Vector3<f64>>,
         opts: &Options,
     ) {
-        let put = |dst: &mut [f64], v: &Vector3<f64>| {
-            dst[j * D..(j + 1) * D].copy_from_slice(&v.as_slice()[..D]);
-        };
         let (d1, d2, d3) = (vec3(&s.d1), vec3(&s.d2), vec3(&s.d3));
         let sig = &opts.significance;
         // All standard errors when they are written, else only the two the flags need.
@@ -85,43 +82,66 @@ impl Rows<'_> {
         if defined && (too_big(se_kappa, f.curvature) || too_big(se_speed, f.speed)) {
             f.flags |= flag::VAGUE;
         }
-        self.velocity[j * D..(j + 1) * D].copy_from_slice(&s.d1);
-        self.acceleration[j * D..(j + 1) * D].copy_from_slice(&s.d2);
-        self.jerk[j * D..(j + 1) * D].copy_from_slice(&s.d3);
-        self.speed[j] = f.speed;
-        self.arclength[j] = s.ds;
-        put(self.tangent, &f.tangent);
-        put(self.normal, &f.normal);
-        self.binormal[j * 3..(j + 1) * 3].copy_from_slice(f.binormal.as_slice());
-        self.curvature[j] = f.curvature;
-        self.signed_curvature[j] = f.signed_curvature;
-        self.torsion[j] = f.torsion;
-        self.radius[j] = f.radius;
-        put(self.center, &(vec3(&s.p) + f.normal * f.radius));
-        self.accel_tangential[j] = f.accel_tangential;
-        self.accel_normal[j] = f.accel_normal;
-        self.angular_speed[j] = f.angular_speed;
-        self.angular_accel[j] = f.angular_accel;
+        let put = |dst: &mut [f64], v: &[f64]| {
+            if !dst.is_empty() {
+                dst[j * v.len()..(j + 1) * v.len()].copy_from_slice(v);
+            }
+        };
+        let set = |dst: &mut [f64], v: f64| {
+            if !dst.is_empty() {
+                dst[j] = v;
+            }
+        };
+        put(self.velocity, &s.d1);
+        put(self.acceleration, &s.d2);
+        put(self.jerk, &s.d3);
+        put(self.position, &s.p);
+        set(self.speed, f.speed);
+        set(self.arclength, s.ds);
+        put(self.tangent, &f.tangent.as_slice()[..D]);
+        put(self.normal, &f.normal.as_slice()[..D]);
+        put(self.binormal, f.binormal.as_slice());
+        set(self.curvature, f.curvature);
+        set(self.signed_curvature, f.signed_curvature);
+        set(self.torsion, f.torsion);
+        set(self.radius, f.radius);
+        if !self.center.is_empty() {
+            put(
+                self.center,
+                &(vec3(&s.p) + f.normal * f.radius).as_slice()[..D],
+            );
+        }
+        set(self.accel_tangential, f.accel_tangential);
+        set(self.accel_normal, f.accel_normal);
+        set(self.angular_speed, f.angular_speed);
+        set(self.angular_accel, f.angular_accel);
         self.flags[j] = f.flags | s.flags;
         if self.se_w == 1 {
             let e = err.unwrap_or(Errors::NAN);
             // A standard error only where its quantity is defined.
             let only = |q: f64, se: f64| if q.is_nan() { f64::NAN } else { se };
-            self.se_position[j] = e.position;
-            self.se_velocity[j] = e.velocity;
-            self.se_acceleration[j] = e.acceleration;
-            self.se_jerk[j] = e.jerk;
-            self.se_speed[j] = only(f.speed, e.speed);
-            self.se_accel_tangential[j] = only(f.accel_tangential, e.accel_tangential);
-            self.se_accel_normal[j] = only(f.accel_normal, e.accel_normal);
-            self.se_curvature[j] = only(f.curvature, e.curvature);
-            self.se_torsion[j] = only(f.torsion, e.torsion);
-            self.se_angular_speed[j] = only(f.angular_speed, e.angular_speed);
-            self.se_radius[j] = if f.curvature > 0.0 {
+            set(self.se_position, e.position);
+            set(self.se_velocity, e.velocity);
+            set(self.se_acceleration, e.acceleration);
+            set(self.se_jerk, e.jerk);
+            set(self.se_speed, only(f.speed, e.speed));
+            set(
+                self.se_accel_tangential,
+                only(f.accel_tangential, e.accel_tangential),
+            );
+            set(self.se_accel_normal, only(f.accel_normal, e.accel_normal));
+            set(self.se_curvature, only(f.curvature, e.curvature));
+            set(self.se_torsion, only(f.torsion, e.torsion));
+            set(
+                self.se_angular_speed,
+                only(f.angular_speed, e.angular_speed),
+            );
+            let se_radius = if f.curvature > 0.0 {
                 e.curvature / (f.curvature * f.curvature)
             } else {
                 f64::NAN
             };
+            set(self.se_radius, se_radius);
         }
     }
 }

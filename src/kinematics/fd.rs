@@ -97,7 +97,7 @@ fn run<const D: usize>(
         })
         .collect::<Result<Vec<_>>>()?;
 
-    let mut out = Kinematics::alloc_zeroed(n, D, opts.uncertainty)?;
+    let mut out = Kinematics::alloc_zeroed(n, D, opts.uncertainty, opts.outputs)?;
     let jobs = plan_jobs(&offsets, |k| prep[k].has_invalid);
     let parts = partition(out.rows(), jobs.iter().map(|j| j.rows.len()));
     jobs.par_iter()
@@ -121,7 +121,9 @@ fn run<const D: usize>(
             }
         })?;
 
-    accumulate_arclength(&mut out.arclength, &offsets);
+    if out.has("arclength") {
+        accumulate_arclength(&mut out.arclength, &offsets);
+    }
     out.noise = prep.iter().map(|p| p.noise).collect();
     Ok(out)
 }
@@ -213,7 +215,7 @@ fn compacted<const D: usize>(
         gap_dt: opts.gap_factor * batch::median_step(&tv)?,
         noise,
     };
-    let mut tmp = Kinematics::alloc(m, D, opts.uncertainty)?;
+    let mut tmp = Kinematics::alloc(m, D, opts.uncertainty, opts.outputs)?;
     dense::<D>(&tv, &xv, 0..m, &ctx, Some(&holes), tmp.rows());
     for (j, &i) in valid.iter().enumerate() {
         out.copy_row(i, &tmp, j);

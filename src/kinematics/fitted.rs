@@ -32,7 +32,7 @@ fn of_fits_dim<const D: usize>(fits: &Fits, opts: &Options) -> Result<Kinematics
     let n = offsets[offsets.len() - 1];
     let m = offsets.len() - 1;
     let se = opts.uncertainty && fits.tracks.iter().any(|f| f.gram(0).is_some());
-    let mut out = Kinematics::alloc(n, D, se)?;
+    let mut out = Kinematics::alloc(n, D, se, opts.outputs)?;
     let parts = partition(out.rows(), (0..m).map(|k| offsets[k + 1] - offsets[k]));
     parts.into_par_iter().enumerate().for_each(|(k, mut rows)| {
         let fit = &fits.tracks[k];
@@ -80,7 +80,9 @@ fn of_fits_dim<const D: usize>(fits: &Fits, opts: &Options) -> Result<Kinematics
             rows.emit(row_of(j), &s, up.as_ref(), opts);
         }
     });
-    accumulate_arclength(&mut out.arclength, offsets);
+    if out.has("arclength") {
+        accumulate_arclength(&mut out.arclength, offsets);
+    }
     out.noise = fits.tracks.iter().map(TrackFit::noise).collect();
     Ok(out)
 }
@@ -110,7 +112,7 @@ fn of_fits_at_dim<const D: usize>(
     let up = check_options(opts)?;
     let up = if D == 2 { Some(Vector3::z()) } else { up };
     let m = q.len() - 1;
-    let mut out = Kinematics::alloc(t.len(), D, false)?;
+    let mut out = Kinematics::alloc(t.len(), D, false, opts.outputs)?;
     let parts = partition(out.rows(), (0..m).map(|k| q[k + 1] - q[k]));
     parts
         .into_par_iter()

@@ -37,6 +37,8 @@ pub struct Options {
     pub uncertainty: bool,
     /// Flags judged against the standard errors.
     pub significance: Significance,
+    /// The columns written (flags always are).
+    pub outputs: Outputs,
 }
 
 impl Default for Options {
@@ -48,7 +50,93 @@ impl Default for Options {
             up: None,
             uncertainty: false,
             significance: Significance::default(),
+            outputs: Outputs::ALL,
         }
+    }
+}
+
+/// Which per-sample columns a kinematics kernel writes: a set of the names in [`Outputs::NAMES`].
+///
+/// Every quantity of a sample comes from the same derivatives in one pass, so asking for fewer
+/// saves the writing (the memory traffic, most of the cost) rather than arithmetic. A standard
+/// error column is written with its quantity when standard errors are asked for.
+///
+/// # Examples
+///
+/// ```
+/// use osculate::kinematics::Outputs;
+/// let o = Outputs::from_names(["speed", "curvature"]).unwrap();
+/// assert!(o.has("speed") && !o.has("torsion"));
+/// assert!(Outputs::from_names(["sped"]).is_err());
+/// assert!(Outputs::ALL.has("center") && !Outputs::ALL.has("position"));
+/// ```
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct Outputs(u32);
+
+impl Outputs {
+    /// Column names, in bit order. `position_se` is the standard error of the position;
+    /// `position` is the position the derivatives belong to (the fitted one for fitted paths),
+    /// not in [`Outputs::ALL`].
+    pub const NAMES: [&'static str; 19] = [
+        "velocity",
+        "acceleration",
+        "jerk",
+        "speed",
+        "arclength",
+        "tangent",
+        "normal",
+        "binormal",
+        "curvature",
+        "signed_curvature",
+        "torsion",
+        "radius",
+        "center",
+        "accel_tangential",
+        "accel_normal",
+        "angular_speed",
+        "angular_accel",
+        "position_se",
+        "position",
+    ];
+    /// Every quantity (all names but `position`).
+    pub const ALL: Outputs = Outputs((1 << 18) - 1);
+    /// No column (flags only).
+    pub const NONE: Outputs = Outputs(0);
+
+    fn bit(name: &str) -> Option<u32> {
+        Self::NAMES
+            .iter()
+            .position(|n| *n == name)
+            .map(|i| 1u32 << i)
+    }
+
+    /// The set of the given names; an unknown name is an error naming the argument `outputs`.
+    pub fn from_names<'a>(names: impl IntoIterator<Item = &'a str>) -> Result<Self> {
+        let mut bits = 0;
+        for name in names {
+            bits |= Self::bit(name).ok_or_else(|| KernelError::Option {
+                argument: "outputs",
+                detail: format!(
+                    "unknown output {name:?}; expected some of {}",
+                    Self::NAMES.join(", ")
+                ),
+            })?;
+        }
+        Ok(Outputs(bits))
+    }
+
+    /// Whether `name` is in the set.
+    pub fn has(self, name: &str) -> bool {
+        Self::bit(name).is_some_and(|b| self.0 & b != 0)
+    }
+
+    /// This set and `other`'s names.
+    pub fn with(self, other: Outputs) -> Outputs {
+        Outputs(self.0 | other.0)
+    }
+
+    fn any(self, names: &[&str]) -> bool {
+        names.iter().any(|n| self.has(n))
     }
 }
 
@@ -68,7 +156,7 @@ macro_rules! width {
 }
 
 macro_rules! columns {
-    ($($(#[$doc:meta])* $name:ident : $w:ident),* $(,)?) => {
+    ($($(#[$doc:meta])* $name:ident : $w:ident [$($q:literal),+]),* $(,)?) => {
         /// Kinematics of every row, row-major; vectors have the path's dimension `dim` except the
         /// binormal, which is always 3-D (for planar paths it is (0, 0, ±1)).
         #[derive(Debug, Clone, PartialEq)]
@@ -95,14 +183,18 @@ macro_rules! columns {
         }
 
         impl Kinematics {
-            /// Outputs for `n` rows, filled with NaN; standard-error columns when `se`.
-            pub fn alloc(n: usize, dim: usize, se: bool) -> Result<Self> {
+            /// Outputs for `n` rows, filled with NaN; standard-error columns when `se`. Columns
+            /// not in `want` are empty.
+            pub fn alloc(n: usize, dim: usize, se: bool, want: Outputs) -> Result<Self> {
                 let s = usize::from(se);
                 Ok(Kinematics {
                     n,
                     dim,
                     se_w: s,
-                    $($name: try_filled(n * width!($w, dim, s), f64::NAN)?,)*
+                    $($name: try_filled(
+                        n * width!($w, dim, s) * usize::from(want.any(&[$($q),+])),
+                        f64::NAN,
+                    )?,)*
                     flags: try_filled(n, 0u8)?,
                     noise: Vec::new(),
                 })
@@ -110,16 +202,26 @@ macro_rules! columns {
 
             /// Outputs for `n` rows on zeroed pages: every row must then be written (by
             /// `emit` or `fill_nan`), which saves a pass over the memory.
-            fn alloc_zeroed(n: usize, dim: usize, se: bool) -> Result<Self> {
+            fn alloc_zeroed(n: usize, dim: usize, se: bool, want: Outputs) -> Result<Self> {
                 let s = usize::from(se);
                 Ok(Kinematics {
                     n,
                     dim,
                     se_w: s,
-                    $($name: try_zeroed(n * width!($w, dim, s))?,)*
+                    $($name: try_zeroed(
+                        n * width!($w, dim, s) * usize::from(want.any(&[$($q),+])),
+                    )?,)*
                     flags: try_filled(n, 0u8)?,
                     noise: Vec::new(),
                 })
+            }
+
+            /// Whether column `name` (a field name) was written.
+            pub fn has(&self, name: &str) -> bool {
+                match name {
+                    $(stringify!($name) => !self.$name.is_empty(),)*
+                    _ => false,
+                }
             }
 
             fn rows(&mut self) -> Rows<'_> {
@@ -137,7 +239,7 @@ macro_rules! columns {
             fn fill_nan(&mut self, j: usize) {
                 let (d, s) = (self.dim, self.se_w);
                 $(
-                    let w = width!($w, d, s);
+                    let w = width!($w, d, s) * usize::from(!self.$name.is_empty());
                     self.$name[j * w..(j + 1) * w].fill(f64::NAN);
                 )*
             }
@@ -146,7 +248,7 @@ macro_rules! columns {
             fn copy_row(&mut self, dst_row: usize, src: &Kinematics, src_row: usize) {
                 let (d, s) = (self.dim, self.se_w);
                 $(
-                    let w = width!($w, d, s);
+                    let w = width!($w, d, s) * usize::from(!self.$name.is_empty());
                     self.$name[dst_row * w..(dst_row + 1) * w]
                         .copy_from_slice(&src.$name[src_row * w..(src_row + 1) * w]);
                 )*
@@ -157,7 +259,10 @@ macro_rules! columns {
         impl SplitRows for Rows<'_> {
             fn split_rows(self, k: usize) -> (Self, Self) {
                 let (d, s) = (self.dim, self.se_w);
-                $(let $name = self.$name.split_at_mut(k * width!($w, d, s));)*
+                $(
+                    let w = width!($w, d, s) * usize::from(!self.$name.is_empty());
+                    let $name = self.$name.split_at_mut(k * w);
+                )*
                 let flags = self.flags.split_at_mut(k);
                 (
                     Rows { dim: d, se_w: s, $($name: $name.0,)* flags: flags.0 },
@@ -170,61 +275,63 @@ macro_rules! columns {
 
 columns! {
     /// r′.
-    velocity: dim,
+    velocity: dim ["velocity"],
     /// r″.
-    acceleration: dim,
+    acceleration: dim ["acceleration"],
     /// r‴.
-    jerk: dim,
+    jerk: dim ["jerk"],
     /// |r′|.
-    speed: one,
+    speed: one ["speed"],
     /// Cumulative polyline length from the track's first finite row.
-    arclength: one,
+    arclength: one ["arclength"],
     /// T.
-    tangent: dim,
+    tangent: dim ["tangent"],
     /// N.
-    normal: dim,
+    normal: dim ["normal"],
     /// B (always 3 wide).
-    binormal: three,
+    binormal: three ["binormal"],
     /// κ.
-    curvature: one,
+    curvature: one ["curvature"],
     /// κ signed about the up axis (NaN for 3-D paths without one).
-    signed_curvature: one,
+    signed_curvature: one ["signed_curvature"],
     /// τ.
-    torsion: one,
+    torsion: one ["torsion"],
     /// ρ = 1/κ.
-    radius: one,
+    radius: one ["radius"],
     /// Centre of the osculating circle r + ρN.
-    center: dim,
+    center: dim ["center"],
     /// a_t.
-    accel_tangential: one,
+    accel_tangential: one ["accel_tangential"],
     /// a_n = κv².
-    accel_normal: one,
+    accel_normal: one ["accel_normal"],
     /// ω = κv.
-    angular_speed: one,
+    angular_speed: one ["angular_speed"],
     /// dω/dt.
-    angular_accel: one,
+    angular_accel: one ["angular_accel"],
+    /// The position the derivatives belong to (the fitted one for fitted paths).
+    position: dim ["position"],
     /// Standard error of each coordinate of the (fitted) position.
-    se_position: se,
+    se_position: se ["position_se"],
     /// Standard error of each coordinate of r′.
-    se_velocity: se,
+    se_velocity: se ["velocity"],
     /// Standard error of each coordinate of r″.
-    se_acceleration: se,
+    se_acceleration: se ["acceleration"],
     /// Standard error of each coordinate of r‴.
-    se_jerk: se,
+    se_jerk: se ["jerk"],
     /// Standard error of the speed.
-    se_speed: se,
+    se_speed: se ["speed"],
     /// Standard error of a_t.
-    se_accel_tangential: se,
+    se_accel_tangential: se ["accel_tangential"],
     /// Standard error of a_n.
-    se_accel_normal: se,
+    se_accel_normal: se ["accel_normal"],
     /// Standard error of κ (and of the signed curvature).
-    se_curvature: se,
+    se_curvature: se ["curvature", "signed_curvature"],
     /// Standard error of τ.
-    se_torsion: se,
+    se_torsion: se ["torsion"],
     /// Standard error of ω.
-    se_angular_speed: se,
+    se_angular_speed: se ["angular_speed"],
     /// Standard error of ρ (NaN where κ = 0).
-    se_radius: se,
+    se_radius: se ["radius"],
 }
 
 pub(crate) fn check_options(opts: &Options) -> Result<Option<Vector3<f64>>> {
