@@ -225,6 +225,7 @@ impl FittedPaths {
 
     /// Kinematics at times `t` grouped by track with `query_offsets`.
     #[pyo3(signature = (t, query_offsets, *, min_speed, min_curvature, up=None, outputs=None))]
+    #[allow(clippy::too_many_arguments)]
     fn kinematics_at<'py>(
         &self,
         py: Python<'py>,
