@@ -475,22 +475,15 @@ def _require_pandas() -> Any:
     return pd
 
 
-def _threshold(name: str, value: float) -> float:
-    v = as_real(name, value)
-    if not np.isfinite(v) or v < 0:
-        raise _core.InputError(f"{name}: must be finite and >= 0, got {value!r}")
-    return v
-
-
-def _up(up: Any, dim: int) -> tuple[float, float, float] | None:
+def up_vector(up: Any, dim: int) -> tuple[float, float, float] | None:
     if up is None:
         return None
     if dim != 3:
         raise _core.InputError(f"up: expected a 3-vector for a 3-D path, got {up!r} (dim {dim})")
-    return _vector3("up", up, 3)
+    return vector3("up", up, 3)
 
 
-def _vector3(name: str, v: Any, dim: int) -> tuple[float, float, float]:
+def vector3(name: str, v: Any, dim: int) -> tuple[float, float, float]:
     """Return a vector of the path's dimension as a 3-tuple (z = 0 for planar paths)."""
     raw = np.asarray(v)
     if raw.dtype.kind not in "fiu":
@@ -768,7 +761,7 @@ def kinematics(
     options = {
         **_thresholds(min_speed, min_curvature, significance, max_relative_se),
         "gap_factor": as_real("gap_factor", gap_factor),
-        "up": _up(up, x.shape[1]),
+        "up": up_vector(up, x.shape[1]),
         "uncertainty": kind is not None,
         # The rotation-minimizing frame is carried along the tangents and the (fitted) positions.
         "outputs": None
@@ -794,7 +787,7 @@ def kinematics(
     hold_stops(raw, held)
     if rmf:
         # The frame is carried along the fitted path (the samples themselves for "fd").
-        start = None if initial is None else _vector3("initial", initial, x.shape[1])
+        start = None if initial is None else vector3("initial", initial, x.shape[1])
         raw.update(
             call_kernel(
                 g,
@@ -815,7 +808,7 @@ def kinematics(
             del raw[name]  # asked for by the frame, not by the caller
         if "normal" not in asked:
             raw.pop("normal", None), raw.pop("binormal", None)
-    return _assemble(tt, x, g, raw, opts, info, grouped=grouped, frame=frame, stops=stops)
+    return assemble(tt, x, g, raw, opts, info, grouped=grouped, frame=frame, stops=stops)
 
 
 def _outputs(outputs: Sequence[str] | None) -> tuple[str, ...] | None:
@@ -867,7 +860,7 @@ def _thresholds(
             if value != "auto":
                 raise _core.InputError(f"{name}: expected a number or 'auto', got {value!r}")
             return floor, True
-        return _threshold(name, value), False
+        return as_real(name, value), False  # its range is checked by the kernel
 
     speed, auto_speed = one("min_speed", min_speed, 1e-3)
     curvature, auto_curvature = one("min_curvature", min_curvature, 1e-6)
@@ -896,7 +889,7 @@ def _find_stops(
     return find_stops(t, x, raw["flags"], g.offsets, raw["noise"], min_stop)
 
 
-def _assemble(
+def assemble(
     t: F64,
     x: F64,
     g: Grouping,
