@@ -15,12 +15,14 @@ from ._core import InputError
 
 __all__ = [
     "Grouping",
+    "Naming",
     "as_int",
     "as_positions",
     "as_real",
     "as_times",
     "call_kernel",
     "group_rows",
+    "relabel",
 ]
 
 F64 = npt.NDArray[np.float64]
@@ -209,9 +211,10 @@ class Grouping:
     Both directions are parallel gathers in Rust (:func:`osculate._core.take_rows`).
 
     Build one with :meth:`from_offsets`, :meth:`from_codes` or :func:`group_rows` (from ids).
+    ``naming`` (for DataFrame callers) tells :func:`relabel` the columns and row labels.
     """
 
-    __slots__ = ("inverse", "labels", "offsets", "order")
+    __slots__ = ("inverse", "labels", "naming", "offsets", "order")
 
     def __init__(
         self,
@@ -219,6 +222,7 @@ class Grouping:
         order: np.ndarray | None,
         labels: np.ndarray,
         inverse: np.ndarray | None = None,
+        naming: Naming | None = None,
     ) -> None:
         self.offsets = offsets
         self.order = None if order is None else _as_rows(order)
@@ -227,6 +231,7 @@ class Grouping:
             inverse[self.order] = np.arange(len(self.order))
         self.inverse = None if inverse is None else _as_rows(inverse)
         self.labels = labels
+        self.naming = naming
 
     @classmethod
     def from_offsets(cls, offsets: Any, labels: np.ndarray | None = None) -> Grouping:
@@ -325,10 +330,15 @@ def group_rows(n: int, tracks: Any = None, offsets: Any = None, t: Any = None) -
 
     With ids and times ``t``, the rows of each track are put in time order (stable), as the
     DataFrame accessor does: a log's rows may come in any order. With offsets the caller states
-    the layout, and times must already increase within each track.
+    the layout, and times must already increase within each track. ``tracks`` may also be a
+    :class:`Grouping` made by a caller that grouped its rows itself.
     """
     if tracks is not None and offsets is not None:
         raise InputError("tracks, offsets: give one of them, not both")
+    if isinstance(tracks, Grouping):  # made by a caller that already grouped (the accessor)
+        if tracks.offsets[-1] != n:
+            raise InputError(f"tracks: the grouping holds {tracks.offsets[-1]} rows, not {n}")
+        return tracks
     if offsets is not None:
         return Grouping.from_offsets(offsets)
     if tracks is None:
@@ -358,8 +368,10 @@ def group_rows(n: int, tracks: Any = None, offsets: Any = None, t: Any = None) -
 
 
 def _integer_codes(ids: np.ndarray) -> tuple[np.ndarray | None, np.ndarray | None]:
-    """Sorted labels and codes of integer ids spanning a range up to 4 times their count, in
-    O(n) (a presence table instead of the sort of :func:`numpy.unique`); (None, None) otherwise.
+    """Return sorted labels and codes of integer ids in O(n), or (None, None).
+
+    A presence table instead of the sort of :func:`numpy.unique`, for ids spanning a range up
+    to 4 times their count.
     """
     lo, hi = ids.min(), ids.max()
     span = int(hi) - int(lo) + 1
@@ -397,24 +409,70 @@ def _factorize_objects(ids: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     return labels, np.asarray(codes, dtype=np.intp)
 
 
+class Naming:
+    """How messages name a DataFrame caller's things: columns for arguments, index labels for rows.
+
+    Parameters
+    ----------
+    columns : mapping of str to label
+        The caller's column behind each kernel argument name (``"t"``, ``"positions"``, ...).
+    index : sequence
+        The caller's row labels (the DataFrame index), by position.
+    by : label
+        The column of the track ids.
+    order : ndarray of int, optional
+        The caller's row position of each kernel row, when the caller grouped its rows itself
+        and hands the kernels grouped arrays.
+    """
+
+    __slots__ = ("by", "columns", "index", "order")
+
+    def __init__(self, columns: dict[str, Any], index: Any, by: Any, order: Any = None) -> None:
+        self.columns, self.index, self.by, self.order = columns, index, by, order
+
+    def position(self, row: int) -> int:
+        """Return the caller's row position of kernel row ``row``."""
+        return row if self.order is None else int(self.order[row])
+
+
+def relabel(err: Any, grouping: Grouping) -> Any:
+    """Return a kernel error re-worded once with the caller's track labels and rows.
+
+    The one place where kernel errors get the caller's names: the track label for the batch
+    position, the caller's row for the kernel row, and with :attr:`Grouping.naming` the column
+    and the index label. Errors without a track are returned as they are.
+    """
+    track = getattr(err, "track", None)
+    if track is None or not 0 <= track < len(grouping.labels):
+        return err
+    label = plain(grouping.labels[track])
+    row = getattr(err, "row", None)
+    argument, detail = err.argument, err.detail
+    naming = grouping.naming
+    if naming is None:
+        caller = None if row is None else grouping.caller_row(row)
+        where = f"track {label!r}" + ("" if caller is None else f", row {caller}")
+        new = InputError(f"{argument}: {where}: {detail}")
+        new.argument, new.track, new.row, new.detail = argument, track, caller, detail
+        return new
+    if row is not None:
+        pos = naming.position(row)
+        column = naming.columns.get(argument, argument)
+        name = plain(naming.index[pos])
+        new = InputError(f"column {column!r}, row {name!r} (track {label!r}): {detail}")
+        new.argument, new.row = str(column), pos
+    else:
+        name = plain(naming.index[naming.position(int(grouping.offsets[track]))])
+        new = InputError(f"track {label!r} (column {naming.by!r}, first row {name!r}): {detail}")
+        new.argument, new.row = str(naming.by), None
+    new.track, new.detail = label, detail
+    setattr(new, "label", name)  # noqa: B010  (InputError has no declared `label`)
+    return new
+
+
 def call_kernel(grouping: Grouping, fn: Callable[..., T], *args: Any, **kwargs: Any) -> T:
-    """Call a kernel; re-word its errors with the caller's track labels and rows."""
+    """Call a kernel; its errors are re-worded once by :func:`relabel`."""
     try:
         return fn(*args, **kwargs)
     except InputError as err:
-        track = getattr(err, "track", None)
-        if track is None:
-            raise
-        label = plain(grouping.labels[track]) if track < len(grouping.labels) else track
-        where = f"track {label!r}"
-        row = getattr(err, "row", None)
-        if row is not None:
-            where += f", row {grouping.caller_row(row)}"
-        new = InputError(f"{err.argument}: {where}: {err.detail}")
-        new.argument, new.track, new.row, new.detail = (
-            err.argument,
-            track,
-            None if row is None else grouping.caller_row(row),
-            err.detail,
-        )
-        raise new from None
+        raise relabel(err, grouping) from None

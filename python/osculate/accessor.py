@@ -6,7 +6,6 @@ Importing :mod:`osculate` registers the accessor when pandas is importable.
 from __future__ import annotations
 
 import dataclasses
-import warnings
 from collections.abc import Hashable, Sequence
 from typing import Any, Optional
 
@@ -21,8 +20,7 @@ except ImportError as exc:  # pragma: no cover - depends on the environment
     ) from exc
 
 from . import _core
-from ._validate import EXACT_SPAN, Grouping, plain, track_time_order
-from .diagnose import SuspectDataWarning, track_names
+from ._validate import EXACT_SPAN, Grouping, Naming, plain, track_time_order
 from .geodesy import enu_and_origins
 from .intrinsic import OUTPUTS, Kinematics
 from .intrinsic import kinematics as _kinematics
@@ -156,6 +154,16 @@ class _Prepared:
         self.grouping = Grouping.from_codes(codes, np.arange(m), times.key)
         self.order: Optional[npt.NDArray[np.intp]] = self.grouping.order
         self.offsets = self.grouping.offsets
+        columns = {"t": time, "lat": self.position[0]}
+        columns["positions"] = columns["llh"] = ", ".join(str(p) for p in self.position)
+        # The kernels see the rows grouped (arrays below are in kernel order); errors and
+        # warnings name the caller's labels, columns and index through this grouping.
+        self.kernel_grouping = Grouping(
+            self.offsets,
+            None,
+            np.asarray(self.labels, dtype=object) if m else np.arange(0),
+            naming=Naming(columns, self.index, by, self.order),
+        )
         counts = np.diff(self.offsets)
         key = times.key
         key = self.to_kernel(key)
@@ -181,10 +189,7 @@ class _Prepared:
         self.enu: Optional[F64] = None
         if crs == "geodetic" and n:
             llh = x if x.shape[1] == 3 else np.column_stack([x, np.zeros(n)])
-            try:
-                enu, self.origins = enu_and_origins(llh, self.grouping, origin)
-            except _core.InputError as err:
-                raise self.relabel(err) from None
+            enu, self.origins = enu_and_origins(llh, self.kernel_grouping, origin)
             self.enu = enu
             x = enu if x.shape[1] == 3 else np.ascontiguousarray(enu[:, :2])
         self.x = np.ascontiguousarray(x, dtype=np.float64)
@@ -198,11 +203,6 @@ class _Prepared:
         """Kernel rows → caller rows."""
         return self.grouping.to_caller(a)
 
-    def caller_pos(self, kernel_row: int) -> int:
-        """Return the caller's positional row of a kernel row."""
-        return kernel_row if self.order is None else int(self.order[kernel_row])
-
-    # -- errors ----------------------------------------------------------------------------------
     def row_error(self, column: Hashable, pos: int, detail: str, track: Any = None) -> Any:
         """Make an InputError naming the column, the index label of caller row ``pos``, a track."""
         label = plain(self.index[pos])
@@ -211,37 +211,6 @@ class _Prepared:
             where += f" (track {plain(track)!r})"
         return _input_error(f"{where}: {detail}", str(column), pos, label)
 
-    def column_of(self, argument: str) -> Hashable:
-        """Return the caller's column behind a kernel argument name."""
-        if argument == "t":
-            return self.time
-        if argument == "lat":
-            return self.position[0]
-        if argument in ("positions", "llh"):
-            return ", ".join(str(p) for p in self.position)
-        return argument
-
-    def relabel(self, err: Any) -> Any:
-        """Re-word a kernel error with the caller's column, index label and track label."""
-        track, row = getattr(err, "track", None), getattr(err, "row", None)
-        if track is None or track >= self.n_tracks:
-            return err
-        label = plain(self.labels[track])
-        column = self.column_of(getattr(err, "argument", ""))
-        detail = getattr(err, "detail", str(err))
-        if row is not None:
-            new = self.row_error(column, self.caller_pos(row), detail, label)
-        else:
-            first = self.index[self.caller_pos(int(self.offsets[track]))]
-            new = _input_error(
-                f"track {label!r} (column {self.by!r}, first row {first!r}): {detail}",
-                str(self.by),
-                None,
-                first,
-            )
-        new.track = label
-        return new
-
     def run(self, options: dict[str, Any]) -> Kinematics:
         """One call of :func:`osculate.kinematics` on all tracks."""
         for bad in ("tracks", "offsets"):
@@ -249,23 +218,7 @@ class _Prepared:
                 raise TypeError(f"{bad}: not an option of the accessor; name the column with by=")
         if self.enu is not None and self.x.shape[1] == 3:
             options = {"up": (0.0, 0.0, 1.0), **options}
-        try:
-            with warnings.catch_warnings(record=True) as caught:
-                warnings.simplefilter("always", SuspectDataWarning)
-                k = _kinematics(self.t, self.x, offsets=self.offsets, **options)
-        except _core.InputError as err:
-            raise self.relabel(err) from None
-        # The data checks name tracks by batch position here: say the caller's labels instead.
-        for w in caught:
-            tracks = getattr(w.message, "tracks", None)
-            if tracks is None:
-                warnings.warn_explicit(w.message, w.category, w.filename, w.lineno)
-                continue
-            bad = np.zeros(len(self.labels), dtype=bool)
-            bad[tracks] = True
-            names = track_names(np.asarray(self.labels), bad)
-            warnings.warn(f"track(s) {names}: {w.message.reason}", SuspectDataWarning, stacklevel=4)
-        return k
+        return _kinematics(self.t, self.x, tracks=self.kernel_grouping, **options)
 
 
 def _quantities(k: Kinematics) -> list[tuple[str, np.ndarray]]:
