@@ -532,9 +532,12 @@ def _frame(prep: _Prepared, k: Kinematics, columns: Any) -> pd.DataFrame:
             if name in chosen:
                 cols[name] = prep.to_caller(a)
             continue
-        for j, axis in enumerate("xyz"[: a.shape[1]]):
-            if f"{name}_{axis}" in chosen:
-                cols[f"{name}_{axis}"] = prep.to_caller(a[:, j])
+        axes = [(j, f"{name}_{axis}") for j, axis in enumerate("xyz"[: a.shape[1]])]
+        axes = [(j, c) for j, c in axes if c in chosen]
+        if axes:
+            whole = prep.to_caller(a)  # one gather of all components; the columns are views
+            for j, c in axes:
+                cols[c] = whole[:, j]
     return pd.DataFrame(cols, index=prep.index, copy=False)
 
 
