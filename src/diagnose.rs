@@ -33,17 +33,9 @@ pub struct TrackStats {
     pub accel: Vec<f64>,
 }
 
-/// Distance between rows `i` and `j`: the plain Euclidean norm where its square is a normal
-/// number, else the scale-safe one (scaled by the largest difference).
-#[inline]
+/// Distance between rows `i` and `j` (scale-safe: scaled by the largest difference).
 fn distance(x: &[f64], dim: usize, i: usize, j: usize) -> f64 {
-    let (a, b) = (&x[i * dim..(i + 1) * dim], &x[j * dim..(j + 1) * dim]);
-    let sq: f64 = a.iter().zip(b).map(|(p, q)| (p - q) * (p - q)).sum();
-    if sq.is_normal() {
-        sq.sqrt()
-    } else {
-        crate::arclength::distance(a, b)
-    }
+    crate::arclength::distance(&x[i * dim..(i + 1) * dim], &x[j * dim..(j + 1) * dim])
 }
 
 fn one_track(t: &[f64], x: &[f64], dim: usize) -> Result<[f64; 5]> {

@@ -14,6 +14,21 @@ use rayon::prelude::*;
 ///
 /// Rows left out of a fit (non-finite positions) are INVALID; samples next to them, or next to a
 /// time step longer than `gap_factor` × the track's median step, are GAP.
+///
+/// # Examples
+///
+/// ```
+/// use osculate::fit::{fit_batch, Method};
+/// use osculate::spline::EndCondition;
+/// use osculate::kinematics::{of_fits, Options};
+/// // A circle of radius 2 at unit angular rate, 0.1 rad per sample: κ = 1/2, speed 2 (closed
+/// // form; the cubic spline's κ is off by O(h²), here 4e-4).
+/// let t: Vec<f64> = (0..60).map(|i| i as f64 * 0.1).collect();
+/// let x: Vec<f64> = t.iter().flat_map(|&s| [2.0 * s.cos(), 2.0 * s.sin()]).collect();
+/// let fits = fit_batch(&t, &x, 2, &[0, 60], None, &Method::Spline(EndCondition::NotAKnot)).unwrap();
+/// let k = of_fits(&fits, &Options::default()).unwrap();
+/// assert!((k.curvature[30] - 0.5).abs() < 1e-3 && (k.speed[30] - 2.0).abs() < 1e-5);
+/// ```
 pub fn of_fits(fits: &Fits, opts: &Options) -> Result<Kinematics> {
     match fits.dim {
         2 => of_fits_dim::<2>(fits, opts),
@@ -90,6 +105,22 @@ fn of_fits_dim<const D: usize>(fits: &Fits, opts: &Options) -> Result<Kinematics
 /// Kinematics of fitted tracks at arbitrary times: `t` grouped by track with `query_offsets`
 /// (m + 1 entries, tracks may be empty). Arc length is measured from each track's first fitted
 /// sample (negative before it). No GAP or EDGE flags are set.
+///
+/// # Examples
+///
+/// ```
+/// use osculate::fit::{fit_batch, Method};
+/// use osculate::spline::EndCondition;
+/// use osculate::kinematics::{of_fits_at, Options, Outputs};
+/// // Between the samples of a quadratic path x = t², y = t: exact for the cubic spline.
+/// let t: Vec<f64> = (0..10).map(f64::from).collect();
+/// let x: Vec<f64> = t.iter().flat_map(|&s| [s * s, s]).collect();
+/// let fits = fit_batch(&t, &x, 2, &[0, 10], None, &Method::Spline(EndCondition::NotAKnot)).unwrap();
+/// let opts = Options { outputs: Outputs::from_names(["velocity", "position"]).unwrap(), ..Options::default() };
+/// let k = of_fits_at(&fits, &[2.5], &[0, 1], &opts).unwrap();
+/// assert!((k.velocity[0] - 5.0).abs() < 1e-12 && (k.position[0] - 6.25).abs() < 1e-12);
+/// assert!(k.speed.is_empty()); // not asked for
+/// ```
 pub fn of_fits_at(
     fits: &Fits,
     t: &[f64],
