@@ -150,9 +150,9 @@ fn closed_weights<const N: usize>(x: &[f64], p: usize) -> [[f64; MAX_DERIV + 1];
         }
         let inv = 1.0 / den;
         let wj = [c0 * inv, 2.0 * c1 * inv, 6.0 * c2 * inv];
-        for k in 0..3 {
-            w[j][k + 1] = wj[k];
-            sum[k] += wj[k];
+        w[j][1..].copy_from_slice(&wj);
+        for (acc, v) in sum.iter_mut().zip(wj) {
+            *acc += v;
         }
     }
     for k in 0..3 {
