@@ -52,6 +52,16 @@ pub fn check_offsets(offsets: &[i64], n: usize) -> Result<Vec<usize>> {
 
 /// Validate offsets of query rows: `m + 1` entries from 0 to `n`, non-decreasing (tracks may
 /// have no queries).
+///
+/// # Examples
+///
+/// ```
+/// use osculate::batch::check_query_offsets;
+/// // 3 tracks, 4 query rows; track 1 has none.
+/// assert_eq!(check_query_offsets(&[0, 2, 2, 4], 4, 3).unwrap(), vec![0, 2, 2, 4]);
+/// assert!(check_query_offsets(&[0, 3, 2, 4], 4, 3).is_err()); // decreasing
+/// assert!(check_query_offsets(&[0, 4], 4, 3).is_err()); // not one entry per track + 1
+/// ```
 pub fn check_query_offsets(offsets: &[i64], n: usize, m: usize) -> Result<Vec<usize>> {
     let bad = |detail: String| Err(KernelError::Offsets { detail });
     if offsets.len() != m + 1 {
@@ -71,6 +81,13 @@ pub fn check_query_offsets(offsets: &[i64], n: usize, m: usize) -> Result<Vec<us
 }
 
 /// Row range of track `k`.
+///
+/// # Examples
+///
+/// ```
+/// use osculate::batch::track_rows;
+/// assert_eq!(track_rows(&[0, 3, 5], 1), 3..5);
+/// ```
 #[inline]
 pub fn track_rows(offsets: &[usize], k: usize) -> Range<usize> {
     offsets[k]..offsets[k + 1]
@@ -86,6 +103,16 @@ pub const MIN_STEP: f64 = 1e-100;
 pub const PAR_SCAN: usize = 4 * CHUNK;
 
 /// Row ranges `[c·CHUNK, (c + 1)·CHUNK)` of `0..n`, the last one shorter.
+///
+/// # Examples
+///
+/// ```
+/// use osculate::batch::{scan_chunks, CHUNK};
+/// use rayon::prelude::*;
+/// let chunks: Vec<_> = scan_chunks(2 * CHUNK + 1).collect();
+/// assert_eq!(chunks, vec![0..CHUNK, CHUNK..2 * CHUNK, 2 * CHUNK..2 * CHUNK + 1]);
+/// assert_eq!(scan_chunks(0).count(), 0);
+/// ```
 pub fn scan_chunks(n: usize) -> impl IndexedParallelIterator<Item = Range<usize>> {
     (0..n.div_ceil(CHUNK))
         .into_par_iter()
@@ -391,6 +418,15 @@ impl<T> SplitRows for &mut [T] {
 }
 
 /// Cut `rows` into consecutive pieces of the given lengths.
+///
+/// # Examples
+///
+/// ```
+/// use osculate::batch::partition;
+/// let mut v = [0, 1, 2, 3, 4, 5];
+/// let parts = partition(&mut v[..], [1, 3, 2]);
+/// assert_eq!(parts, vec![&mut [0][..], &mut [1, 2, 3][..], &mut [4, 5][..]]);
+/// ```
 pub fn partition<R: SplitRows>(mut rows: R, lengths: impl IntoIterator<Item = usize>) -> Vec<R> {
     let lengths = lengths.into_iter();
     let mut out = Vec::with_capacity(lengths.size_hint().0);
@@ -412,6 +448,20 @@ pub struct Job {
 }
 
 /// Cut every track into jobs of at most [`CHUNK`] rows; `whole(k)` keeps track `k` in one job.
+///
+/// # Examples
+///
+/// ```
+/// use osculate::batch::{plan_jobs, Job, CHUNK};
+/// // Track 0 is cut at CHUNK rows; track 1, as long, is kept whole.
+/// let offsets = [0, CHUNK + 2, 2 * CHUNK + 4];
+/// let jobs = plan_jobs(&offsets, |k| k == 1);
+/// assert_eq!(jobs, vec![
+///     Job { track: 0, rows: 0..CHUNK },
+///     Job { track: 0, rows: CHUNK..CHUNK + 2 },
+///     Job { track: 1, rows: CHUNK + 2..2 * CHUNK + 4 },
+/// ]);
+/// ```
 pub fn plan_jobs(offsets: &[usize], whole: impl Fn(usize) -> bool) -> Vec<Job> {
     let mut jobs = Vec::new();
     for k in 0..offsets.len() - 1 {

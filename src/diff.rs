@@ -36,6 +36,14 @@ pub enum FdOrder {
 
 impl FdOrder {
     /// Parse the public integer form (2 or 4).
+    ///
+    /// # Examples
+    ///
+    /// ```
+    /// use osculate::diff::FdOrder;
+    /// assert_eq!(FdOrder::from_int(4), Some(FdOrder::Four));
+    /// assert_eq!(FdOrder::from_int(3), None);
+    /// ```
     pub fn from_int(order: i64) -> Option<Self> {
         match order {
             2 => Some(FdOrder::Two),
@@ -45,6 +53,13 @@ impl FdOrder {
     }
 
     /// Stencil width for r′ and r″.
+    ///
+    /// # Examples
+    ///
+    /// ```
+    /// use osculate::diff::FdOrder;
+    /// assert_eq!((FdOrder::Two.width_low(), FdOrder::Four.width_low()), (3, 5));
+    /// ```
     pub fn width_low(self) -> usize {
         match self {
             FdOrder::Two => 3,
@@ -53,11 +68,25 @@ impl FdOrder {
     }
 
     /// Stencil width for r‴.
+    ///
+    /// # Examples
+    ///
+    /// ```
+    /// use osculate::diff::FdOrder;
+    /// assert_eq!((FdOrder::Two.width_high(), FdOrder::Four.width_high()), (5, 7));
+    /// ```
     pub fn width_high(self) -> usize {
         self.width_low() + 2
     }
 
     /// Fewest samples a track must have.
+    ///
+    /// # Examples
+    ///
+    /// ```
+    /// use osculate::diff::FdOrder;
+    /// assert_eq!((FdOrder::Two.min_samples(), FdOrder::Four.min_samples()), (3, 5));
+    /// ```
     pub fn min_samples(self) -> usize {
         self.width_low()
     }
@@ -164,6 +193,16 @@ fn closed_weights<const N: usize>(x: &[f64], p: usize) -> [[f64; MAX_DERIV + 1];
 /// Where a stencil of `width` nodes sits for sample `i` of a track of `n` samples.
 ///
 /// Returns the first node and whether the stencil is centred on `i`.
+///
+/// # Examples
+///
+/// ```
+/// use osculate::diff::place;
+/// // 5 nodes in a track of 10: centred on sample 4, slid inwards at both ends.
+/// assert_eq!(place(4, 5, 10), (2, true));
+/// assert_eq!(place(0, 5, 10), (0, false));
+/// assert_eq!(place(9, 5, 10), (5, false));
+/// ```
 #[inline]
 pub fn place(i: usize, width: usize, n: usize) -> (usize, bool) {
     let half = width / 2;
@@ -177,6 +216,24 @@ pub fn place(i: usize, width: usize, n: usize) -> (usize, bool) {
 /// track is too short to hold four nodes. With `gram`, also the Gram matrix of the rows of
 /// derivatives 0..=3 (the position row is the sample itself) from the same weights, for
 /// [`crate::uncertainty`]; its r‴ entries are NaN when r‴ is.
+///
+/// # Examples
+///
+/// ```
+/// use osculate::diff::{derivatives_at, FdOrder};
+/// use osculate::uncertainty::at;
+/// // x = t³ on uneven times: the 5-point r‴ is exact (6) for a cubic (closed form), to rounding.
+/// let t = [0.0, 0.3, 1.0, 1.4, 2.5, 3.0];
+/// let x: Vec<f64> = t.iter().map(|&s| s * s * s).collect();
+/// let mut g = [0.0; 10];
+/// let (d1, d2, d3, edge) = derivatives_at::<1>(&t, &x, 2, FdOrder::Two, Some(&mut g));
+/// assert!((d3[0] - 6.0).abs() < 1e-10 && !edge);
+/// assert!(d1[0] > 0.0 && d2[0] > 0.0);
+/// assert_eq!(g[at(0, 0)], 1.0); // the position row is the sample itself
+/// // Three samples: no r‴, and the stencils are the whole track.
+/// let (_, _, d3, edge) = derivatives_at::<1>(&t[..3], &x[..3], 1, FdOrder::Two, None);
+/// assert!(d3[0].is_nan() && edge);
+/// ```
 #[inline]
 pub fn derivatives_at<const D: usize>(
     t: &[f64],
@@ -258,6 +315,15 @@ pub fn derivatives_at<const D: usize>(
 }
 
 /// The rows `[first, last]` that the stencils of sample `i` read.
+///
+/// # Examples
+///
+/// ```
+/// use osculate::diff::{reach, FdOrder};
+/// // The 5-point r‴ stencil of order 2, and the 7-point one of order 4 (slid at the start).
+/// assert_eq!(reach(4, 10, FdOrder::Two), (2, 6));
+/// assert_eq!(reach(1, 10, FdOrder::Four), (0, 6));
+/// ```
 #[inline]
 pub fn reach(i: usize, n: usize, order: FdOrder) -> (usize, usize) {
     let wh = order.width_high().min(n);

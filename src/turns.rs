@@ -540,6 +540,33 @@ pub fn turns(s: &Samples, offsets: &[i64], o: &TurnOptions) -> Result<Vec<Turn>>
 }
 
 /// The speed changes of every track of a batch.
+///
+/// # Examples
+///
+/// ```
+/// use osculate::turns::{speed_changes, Samples, SpeedOptions};
+/// // Cruise at 10, brake at −0.5 over rows 10..=19 (10 → 5), cruise again: one speed change
+/// // (direction −1) over exactly the braking rows, peak |a_t| 0.5.
+/// let n = 30;
+/// let t: Vec<f64> = (0..n).map(|i| i as f64).collect();
+/// let a_t: Vec<f64> = (0..n).map(|i| if (10..20).contains(&i) { -0.5 } else { 0.0 }).collect();
+/// let speed: Vec<f64> = (0..n).map(|i| 10.0 - 0.5 * (i.clamp(10, 20) - 10) as f64).collect();
+/// let zero = vec![0.0; n];
+/// let xy: Vec<f64> = t.iter().flat_map(|&v| [v, 0.0]).collect();
+/// let samples = Samples {
+///     t: &t, s: &t, curvature: &zero, curvature_se: None, speed: &speed,
+///     accel_normal: &zero, accel_tangential: &a_t, accel_tangential_se: None,
+///     flags: &vec![0; n], xy: &xy, vxy: &xy,
+/// };
+/// let o = SpeedOptions { accel_on: 0.3, accel_off: 0.1, z_on: 2.0, z_off: 1.0, min_samples: 3 };
+/// let found = speed_changes(&samples, &[0, n as i64], &o).unwrap();
+/// assert_eq!(found.len(), 1);
+/// assert_eq!((found[0].first, found[0].last, found[0].direction), (10, 19, -1));
+/// assert_eq!((found[0].speed_before, found[0].peak), (10.0, 0.5));
+/// // An option out of range names itself.
+/// let bad = SpeedOptions { accel_off: 1.0, ..o };
+/// assert_eq!(speed_changes(&samples, &[0, n as i64], &bad).unwrap_err().argument(), "accel_off");
+/// ```
 pub fn speed_changes(s: &Samples, offsets: &[i64], o: &SpeedOptions) -> Result<Vec<SpeedChange>> {
     s.check()?;
     let bad = |argument: &'static str, detail: String| KernelError::Option { argument, detail };

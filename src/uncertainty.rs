@@ -26,6 +26,14 @@ use nalgebra::Vector3;
 pub type Gram = [f64; 10];
 
 /// Position of entry (a, b) of a [`Gram`].
+///
+/// # Examples
+///
+/// ```
+/// use osculate::uncertainty::at;
+/// assert_eq!((at(0, 0), at(0, 3), at(1, 1), at(2, 3), at(3, 3)), (0, 3, 4, 8, 9));
+/// assert_eq!(at(3, 1), at(1, 3)); // symmetric
+/// ```
 #[inline]
 pub const fn at(a: usize, b: usize) -> usize {
     let (a, b) = if a <= b { (a, b) } else { (b, a) };
@@ -35,6 +43,19 @@ pub const fn at(a: usize, b: usize) -> usize {
 
 /// G from the smoother rows `l[a][j]` (derivative a, node j) and node weights `w` (1/w is the
 /// relative noise variance of a node).
+///
+/// # Examples
+///
+/// ```
+/// use osculate::uncertainty::{at, gram_of_rows};
+/// // Rows of the central differences on a unit grid: r = x₀, r′ = (x₊ − x₋)/2,
+/// // r″ = x₊ − 2x₀ + x₋; G = LLᵀ gives G₁₁ = 1/2, G₂₂ = 6, G₀₂ = −2 (closed form).
+/// let rows = [[0.0, -0.5, 1.0, 0.0], [1.0, 0.0, -2.0, 0.0], [0.0, 0.5, 1.0, 0.0]];
+/// let g = gram_of_rows(&rows, None);
+/// assert_eq!((g[at(1, 1)], g[at(2, 2)], g[at(0, 2)], g[at(0, 1)]), (0.5, 6.0, -2.0, 0.0));
+/// // Node weights 2 halve every entry.
+/// assert_eq!(gram_of_rows(&rows, Some(&[2.0; 3]))[at(2, 2)], 3.0);
+/// ```
 pub fn gram_of_rows(l: &[[f64; 4]], w: Option<&[f64]>) -> Gram {
     let mut g = [0.0; 10];
     for (j, r) in l.iter().enumerate() {
@@ -136,6 +157,20 @@ fn spread(g: &[Vector3<f64>; 4], gram: &Gram, dim: usize, sigma: f64) -> f64 {
 
 /// Standard errors of the speed and of κ only (what the significance tests need), as in
 /// [`propagate`] but without the other quantities.
+///
+/// # Examples
+///
+/// ```
+/// use nalgebra::Vector3;
+/// use osculate::uncertainty::{speed_and_curvature, Gram};
+/// // Straight motion at speed 2 along x: se of the speed is σ·√G₁₁ (closed form); with no
+/// // velocity there is no curvature and its se is NaN.
+/// let g: Gram = [1.0, 0.0, -2.0, 0.0, 0.5, 0.0, -1.0, 6.0, 0.0, 2.5];
+/// let (se_v, se_k) = speed_and_curvature(&Vector3::new(2.0, 0.0, 0.0), &Vector3::zeros(), 3, &g, 0.1);
+/// assert!((se_v - 0.1 * 0.5f64.sqrt()).abs() < 1e-15 && se_k > 0.0);
+/// let (_, se_k) = speed_and_curvature(&Vector3::zeros(), &Vector3::zeros(), 3, &g, 0.1);
+/// assert!(se_k.is_nan());
+/// ```
 #[inline]
 pub fn speed_and_curvature(
     d1: &Vector3<f64>,
@@ -454,6 +489,15 @@ fn lagrange_weights(t: &[f64], nodes: &[usize], s: f64) -> [f64; 4] {
 }
 
 /// Median of the finite values of `v` (NaN if none), by selection; reorders `v`.
+///
+/// # Examples
+///
+/// ```
+/// use osculate::uncertainty::median;
+/// assert_eq!(median(&mut vec![3.0, f64::NAN, 1.0, 2.0]), 2.0);
+/// assert_eq!(median(&mut vec![4.0, 1.0, 2.0, 3.0]), 2.5); // mean of the middle two
+/// assert!(median(&mut vec![f64::NAN]).is_nan());
+/// ```
 pub fn median(v: &mut Vec<f64>) -> f64 {
     v.retain(|x| x.is_finite());
     if v.is_empty() {

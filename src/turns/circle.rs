@@ -4,6 +4,22 @@
 
 /// Least-squares circle through points `(x, y)`: (radius, its standard error), or `None` when
 /// the points do not determine one (fewer than 4, or collinear to rounding).
+///
+/// # Examples
+///
+/// ```
+/// use osculate::turns::fit_circle;
+/// // Eight points on a circle of radius 5 about (1, 2): radius 5 (closed form), se 0 to rounding.
+/// let pts: Vec<[f64; 2]> = (0..8)
+///     .map(|i| {
+///         let a = 0.4 * i as f64;
+///         [1.0 + 5.0 * a.cos(), 2.0 + 5.0 * a.sin()]
+///     })
+///     .collect();
+/// let (r, se) = fit_circle(&pts).unwrap();
+/// assert!((r - 5.0).abs() < 1e-10 && se < 1e-8);
+/// assert!(fit_circle(&pts[..3]).is_none()); // fewer than 4 points
+/// ```
 pub fn fit_circle(pts: &[[f64; 2]]) -> Option<(f64, f64)> {
     let m = pts.len();
     if m < 4 {
