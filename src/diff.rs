@@ -557,4 +557,29 @@ mod tests {
             }
         }
     }
+    #[test]
+    fn any_track_length_and_degenerate_times_do_not_panic() {
+        // The fuzz target's property on a fixed grid of cases: repeated, unsorted and
+        // non-finite times on tracks of 1..=12 samples, every sample, both orders.
+        let kinds: [fn(usize) -> f64; 4] = [
+            |j| j as f64,
+            |_| 1.0,
+            |j| (j as f64 * 2.7).sin(),
+            |j| if j == 2 { f64::NAN } else { j as f64 },
+        ];
+        for n in 1..=12 {
+            for times in kinds {
+                let t: Vec<f64> = (0..n).map(times).collect();
+                let x: Vec<f64> = (0..2 * n).map(|j| j as f64).collect();
+                for order in [FdOrder::Two, FdOrder::Four] {
+                    for i in 0..n {
+                        let mut g = [0.0; 10];
+                        let _ = derivatives_at::<2>(&t, &x, i, order, Some(&mut g));
+                        let (lo, hi) = reach(i, n, order);
+                        assert!(lo <= i && i <= hi && hi < n);
+                    }
+                }
+            }
+        }
+    }
 }
