@@ -253,6 +253,8 @@ pub fn median_step(t: &[f64]) -> Result<f64> {
 
 /// Steps sampled by [`step_of_rank_by_sample`] to place its bracket.
 const SAMPLE: usize = 1 << 16;
+/// Most steps of one block of [`HIST_BLOCK`] rows that [`step_of_rank_by_sample`] copies.
+const INSIDE_CAP: usize = HIST_BLOCK / 4;
 
 /// The step of rank `rank` (as [`step_of_rank`]) in one parallel pass, or `None` when the bracket
 /// missed: two steps of a regular sample of the steps, 8 standard deviations of the sample's rank
@@ -265,14 +267,17 @@ fn step_of_rank_by_sample(t: &[f64], rank: usize) -> Result<Option<f64>> {
     let every = (n / SAMPLE).max(1);
     let mut sample: Vec<u64> = (0..n).step_by(every).map(key).collect();
     let s = sample.len();
-    let margin = 8 * (s as f64).sqrt() as usize;
+    // The sample's count below the true value has standard deviation √s / 2 at the median.
+    let margin = 4 * (s as f64).sqrt() as usize;
     let at = rank as u128 * s as u128 / n as u128;
     let lo_rank = (at as usize).saturating_sub(margin);
     let hi_rank = (at as usize + margin).min(s - 1);
     let lo = *sample.select_nth_unstable(lo_rank).1;
     let hi = *sample.select_nth_unstable(hi_rank).1;
-    // (below lo, at lo, at hi, strictly inside), per block of rows.
-    let parts: Vec<(usize, usize, usize, Vec<u64>)> = (0..n.div_ceil(HIST_BLOCK))
+    // (below lo, at lo, at hi, strictly inside), per block of rows; a block with more than
+    // INSIDE_CAP steps inside (8 times the expected count: the sample misrepresents the steps)
+    // gives up, and the radix selection, which needs no copy, takes over.
+    let parts: Option<Vec<(usize, usize, usize, Vec<u64>)>> = (0..n.div_ceil(HIST_BLOCK))
         .into_par_iter()
         .map(|b| {
             let (mut below, mut at_lo, mut at_hi, mut inside) = (0, 0, 0, Vec::new());
@@ -285,12 +290,18 @@ fn step_of_rank_by_sample(t: &[f64], rank: usize) -> Result<Option<f64>> {
                 } else if k == hi {
                     at_hi += 1;
                 } else if k < hi {
+                    if inside.len() == INSIDE_CAP {
+                        return None;
+                    }
                     inside.push(k);
                 }
             }
-            (below, at_lo, at_hi, inside)
+            Some((below, at_lo, at_hi, inside))
         })
         .collect();
+    let Some(parts) = parts else {
+        return Ok(None);
+    };
     let below: usize = parts.iter().map(|p| p.0).sum();
     let at_lo: usize = parts.iter().map(|p| p.1).sum();
     let at_hi: usize = parts.iter().map(|p| p.2).sum();
@@ -603,6 +614,31 @@ mod tests {
             assert_eq!(from_order_key(order_key(v)).to_bits(), v.to_bits());
         }
         assert!(order_key(-0.0) < order_key(0.0) && order_key(-1.0) < order_key(-0.5));
+    }
+
+    #[test]
+    fn a_sample_that_misrepresents_the_steps_falls_back_to_the_radix_selection() {
+        // Every third step is sampled (n / SAMPLE = 3). Case 1: the sampled steps are all 1 and
+        // the others random, so the bracket [1, 1] misses the median. Case 2: the sampled steps
+        // spread over [0, 1000) and the others crowd near 500, inside the bracket, beyond
+        // INSIDE_CAP per block. Reference: selection on a copy (bitwise).
+        let n = 3 * SAMPLE + 1;
+        let mut state = 11u64;
+        for case in 0..2 {
+            let mut t = vec![0.0; n];
+            for j in 1..n {
+                let step = match (case, (j - 1) % 3 == 0) {
+                    (0, true) => 1.0,
+                    (0, false) => 2.0 + uniform(&mut state),
+                    (_, true) => 1000.0 * uniform(&mut state),
+                    (_, false) => 500.0 + 1e-3 * uniform(&mut state),
+                };
+                t[j] = t[j - 1] + step;
+            }
+            assert_eq!(step_of_rank_by_sample(&t, (n - 1) / 2).unwrap(), None);
+            let expected = median_step_by_copy(&t).unwrap();
+            assert_eq!(median_step(&t).unwrap().to_bits(), expected.to_bits());
+        }
     }
 
     #[test]
