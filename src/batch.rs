@@ -253,6 +253,9 @@ pub fn median_step(t: &[f64]) -> Result<f64> {
 
 /// Steps sampled by [`step_of_rank_by_sample`] to place its bracket.
 const SAMPLE: usize = 1 << 16;
+/// Steps of one block below the bracket, at its low end, at its high end, and those inside.
+type Tally = (usize, usize, usize, Vec<u64>);
+
 /// Most steps of one block of [`HIST_BLOCK`] rows that [`step_of_rank_by_sample`] copies.
 const INSIDE_CAP: usize = HIST_BLOCK / 4;
 
@@ -277,7 +280,7 @@ fn step_of_rank_by_sample(t: &[f64], rank: usize) -> Result<Option<f64>> {
     // (below lo, at lo, at hi, strictly inside), per block of rows; a block with more than
     // INSIDE_CAP steps inside (8 times the expected count: the sample misrepresents the steps)
     // gives up, and the radix selection, which needs no copy, takes over.
-    let parts: Option<Vec<(usize, usize, usize, Vec<u64>)>> = (0..n.div_ceil(HIST_BLOCK))
+    let parts: Option<Vec<Tally>> = (0..n.div_ceil(HIST_BLOCK))
         .into_par_iter()
         .map(|b| {
             let (mut below, mut at_lo, mut at_hi, mut inside) = (0, 0, 0, Vec::new());
