@@ -31,7 +31,7 @@ pub struct Options<'a> {
     /// Penalty per piece in weighted-χ² units; NaN: `3 ln n_eff`.
     pub penalty: f64,
     /// Shortest piece (arc length) per track; NaN: `max(3, 6 · bandwidth)` median spacings
-    /// (see [`MIN_LENGTH_BANDWIDTHS`]).
+    /// (see [`crate::elements::MIN_LENGTH_BANDWIDTHS`]).
     pub min_length: &'a [f64],
     /// Smoothing bandwidth in samples per track (`fit_info["bandwidth"]`; NaN: none, the
     /// curvatures are taken as independent).
