@@ -79,9 +79,7 @@ fn run<const D: usize>(
         .into_par_iter()
         .map(|k| {
             let rows = track_rows(&offsets, k);
-            let has_invalid = x[rows.start * D..rows.end * D]
-                .iter()
-                .any(|v| !v.is_finite());
+            let has_invalid = !batch::all_finite(&x[rows.start * D..rows.end * D]);
             let (tk, xk) = (&t[rows.clone()], &x[rows.start * D..rows.end * D]);
             let gap_dt = if has_invalid {
                 f64::NAN // decided on the compacted track
