@@ -240,7 +240,7 @@ def test_outputs_select_the_computed_quantities():
         np.testing.assert_array_equal(part.accel_normal, full.accel_normal)
         np.testing.assert_array_equal(part.flags, full.flags)
         with pytest.raises(AttributeError, match="outputs="):
-            part.speed
+            _ = part.speed
         if method == "smooth":
             np.testing.assert_array_equal(part.se["curvature"], full.se["curvature"])
             assert "speed" not in part.se

@@ -267,6 +267,12 @@ class Grouping:
         """Number of tracks."""
         return len(self.offsets) - 1
 
+    @property
+    def names(self) -> np.ndarray:
+        """Track labels as messages show them (the caller's, also when ``labels`` are codes)."""
+        named = None if self.naming is None else self.naming.labels
+        return self.labels if named is None else np.asarray(named, dtype=object)
+
     def to_kernel(self, a: np.ndarray) -> np.ndarray:
         """Caller rows → kernel rows."""
         return a if self.order is None else _take(a, self.order)
@@ -423,12 +429,17 @@ class Naming:
     order : ndarray of int, optional
         The caller's row position of each kernel row, when the caller grouped its rows itself
         and hands the kernels grouped arrays.
+    labels : sequence, optional
+        The caller's track labels, when the grouping's own labels are codes.
     """
 
-    __slots__ = ("by", "columns", "index", "order")
+    __slots__ = ("by", "columns", "index", "labels", "order")
 
-    def __init__(self, columns: dict[str, Any], index: Any, by: Any, order: Any = None) -> None:
+    def __init__(
+        self, columns: dict[str, Any], index: Any, by: Any, order: Any = None, labels: Any = None
+    ) -> None:
         self.columns, self.index, self.by, self.order = columns, index, by, order
+        self.labels = labels
 
     def position(self, row: int) -> int:
         """Return the caller's row position of kernel row ``row``."""
@@ -445,7 +456,7 @@ def relabel(err: Any, grouping: Grouping) -> Any:
     track = getattr(err, "track", None)
     if track is None or not 0 <= track < len(grouping.labels):
         return err
-    label = plain(grouping.labels[track])
+    label = plain(grouping.names[track])
     row = getattr(err, "row", None)
     argument, detail = err.argument, err.detail
     naming = grouping.naming

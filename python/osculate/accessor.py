@@ -161,8 +161,8 @@ class _Prepared:
         self.kernel_grouping = Grouping(
             self.offsets,
             None,
-            np.asarray(self.labels, dtype=object) if m else np.arange(0),
-            naming=Naming(columns, self.index, by, self.order),
+            np.arange(m),
+            naming=Naming(columns, self.index, by, self.order, self.labels),
         )
         counts = np.diff(self.offsets)
         key = times.key
