@@ -64,8 +64,9 @@ __all__ = [
 ]
 
 # Optional submodules that need an extra, imported on first use: ``osculate.dask`` needs
-# ``pip install 'osculate[dask]'``, ``osculate.plot`` needs ``pip install 'osculate[plot]'``.
-_LAZY_SUBMODULES = ("dask", "plot")
+# ``pip install 'osculate[dask]'``, ``osculate.plot`` needs ``pip install 'osculate[plot]'``,
+# ``osculate.accessor`` (imported by itself once pandas is) needs ``'osculate[pandas]'``.
+_LAZY_SUBMODULES = ("accessor", "dask", "plot")
 
 
 def __getattr__(name: str) -> object:
