@@ -182,8 +182,7 @@ def _half(k: Kinematics) -> int:
 
 
 def _caller_rows(k: Kinematics, rows: np.ndarray) -> npt.NDArray[np.int64]:
-    order = k._grouping.order
-    return np.asarray(rows if order is None else order[rows], dtype=np.int64)
+    return k._grouping.caller_rows(rows)
 
 
 def find_turns(
