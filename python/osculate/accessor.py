@@ -20,6 +20,7 @@ except ImportError as exc:  # pragma: no cover - depends on the environment
     ) from exc
 
 from . import _core
+from ._columns import column_values, input_error
 from ._validate import EXACT_SPAN, Grouping, Naming, plain, track_time_order
 from .geodesy import enu_and_origins
 from .intrinsic import OUTPUTS, Kinematics
@@ -31,29 +32,6 @@ __all__ = ["OscAccessor", "result_columns", "track_time_order"]
 F64 = npt.NDArray[np.float64]
 CRS = ("cartesian", "geodetic")
 _SKIP = ("t", "position")  # the caller's own input
-
-
-def _input_error(message: str, argument: str, row: Optional[int] = None, label: Any = None) -> Any:
-    err = _core.InputError(message)
-    err.argument, err.track, err.row, err.detail = argument, None, row, message
-    setattr(err, "label", label)  # noqa: B010  (InputError has no declared `label`)
-    return err
-
-
-def _values(df: pd.DataFrame, name: Hashable, role: str) -> Any:
-    """Return column ``name`` of ``df``, or the index level of that name (errors name the role)."""
-    if name in df.columns:
-        col = df[name]
-        if isinstance(col, pd.DataFrame):
-            raise _input_error(f"{role}: column {name!r} appears {col.shape[1]} times", str(name))
-        return col
-    if name is not None and name in df.index.names:
-        return pd.Series(df.index.get_level_values(name), index=df.index)
-    shown = ", ".join(repr(c) for c in list(df.columns)[:20])
-    more = ", ..." if len(df.columns) > 20 else ""
-    raise _input_error(
-        f"{role}: column {name!r} not found (columns: {shown}{more})", str(name), None
-    )
 
 
 def _numbers(s: pd.Series, role: str) -> F64:
@@ -115,19 +93,19 @@ class _Prepared:
         origin: Any,
     ) -> None:
         if crs not in CRS:
-            raise _input_error(f"crs: expected one of {CRS}, got {crs!r}", "crs")
+            raise input_error(f"crs: expected one of {CRS}, got {crs!r}", "crs")
         if isinstance(position, (str, bytes)) or len(position) not in (2, 3):
-            raise _input_error(
+            raise input_error(
                 f"position: expected 2 or 3 column names, got {position!r}", "position"
             )
         if crs == "cartesian" and origin is not None:
-            raise _input_error("origin: only used with crs='geodetic'", "origin")
+            raise input_error("origin: only used with crs='geodetic'", "origin")
         self.index = df.index
         self.n = n = len(df)
         self.time, self.position, self.by, self.crs = time, tuple(position), by, crs
-        self.time_values = _values(df, time, "time")
+        self.time_values = column_values(df, time, "time")
         times = _times(self.time_values)
-        coords = [_numbers(_values(df, c, "position"), "position") for c in self.position]
+        coords = [_numbers(column_values(df, c, "position"), "position") for c in self.position]
         if by is None:
             codes = np.zeros(n, dtype=np.intp)
             self.labels: pd.Index = pd.Index([0], name="track")
@@ -137,7 +115,7 @@ class _Prepared:
                     f"by: expected the name of one column or index level, got {type(by).__name__}"
                     f" {list(by)!r:.80}; to group by several columns, build one key column first"
                 )
-            ids = _values(df, by, "by")
+            ids = column_values(df, by, "by")
             try:
                 c, uniques = pd.factorize(ids, sort=True)
             except TypeError:  # labels of mixed types cannot be sorted: first-seen order
@@ -209,7 +187,7 @@ class _Prepared:
         where = f"column {column!r}, row {label!r}"
         if track is not None:
             where += f" (track {plain(track)!r})"
-        return _input_error(f"{where}: {detail}", str(column), pos, label)
+        return input_error(f"{where}: {detail}", str(column), pos, label)
 
     def run(self, options: dict[str, Any]) -> Kinematics:
         """One call of :func:`osculate.kinematics` on all tracks."""
@@ -289,7 +267,7 @@ def _select(
         if w == "position":
             hits = list(enu)
         if not hits:
-            raise _input_error(
+            raise input_error(
                 f"columns: unknown result {w!r}; choose from {', '.join(quantities)} "
                 f"or one of their components",
                 "columns",
@@ -414,7 +392,7 @@ def _from_results(prep: _Prepared, df: pd.DataFrame) -> Any:
     first, last, code = find_stops(prep.t, prep.x, flags, prep.offsets, np.full(m, np.nan))
     stops = stop_table(prep.t, prep.x, first, last, code, np.arange(m), None)
     return SimpleNamespace(
-        _grouping=Grouping(prep.offsets, None, np.arange(m)),
+        grouping=Grouping(prep.offsets, None, np.arange(m)),
         t=prep.t,
         flags=flags,
         jerk=jerk,

@@ -192,6 +192,11 @@ class Kinematics:
         )
 
     @property
+    def grouping(self) -> Grouping:
+        """How the rows split into tracks (kernel order ↔ the caller's rows), for table builders."""
+        return self._grouping
+
+    @property
     def dim(self) -> int:
         """2 for planar paths, 3 for space curves."""
         return int(self.position.shape[1])

@@ -10,6 +10,7 @@ from typing import Any, Optional
 
 import numpy as np
 
+from .._validate import Grouping
 from ._files import (
     UsageError,
     check_input,
@@ -129,9 +130,9 @@ def _in_chunks(df: Any, by: Any, call: Any, args: argparse.Namespace) -> list[tu
         return [(None, result)]
     counts = np.bincount(codes, minlength=n_tracks)
     chunk_of_track = (np.cumsum(counts) - 1) // ROWS_PER_CALL
-    chunk_of_row = chunk_of_track[codes]
-    order = np.argsort(chunk_of_row, kind="stable")
-    bounds = np.searchsorted(chunk_of_row[order], np.arange(int(chunk_of_track[-1]) + 2))
+    chunks = Grouping.from_codes(chunk_of_track[codes], np.arange(int(chunk_of_track[-1]) + 1))
+    order = np.arange(n) if chunks.order is None else chunks.order
+    bounds = chunks.offsets
     tracks_per_chunk = np.bincount(chunk_of_track)
     out = []
     with bar:

@@ -9,6 +9,7 @@ import numpy as np
 import numpy.typing as npt
 
 from .. import _core
+from .._validate import Grouping, group_rows
 from ..intrinsic import Kinematics
 
 __all__ = ["Samples"]
@@ -61,18 +62,16 @@ class Samples:
         if pos.shape[1] not in (2, 3):
             raise _core.InputError(f"position: expected 2 or 3 columns, got {pos.shape[1]}")
         self.dim = int(pos.shape[1])
-        if tracks is None:
-            self.labels = np.array([0])
-            codes = np.zeros(self.n, dtype=np.intp)
-        else:
-            ids = np.asarray(tracks)
-            ids = ids.astype(str) if ids.dtype.kind == "O" else ids
-            self.labels, codes = np.unique(ids, return_inverse=True)
-            codes = codes.reshape(-1)
+        ids = None if tracks is None else np.asarray(tracks)
+        if ids is not None and ids.dtype.kind == "O":
+            ids = ids.astype(str)
         self.grouped = tracks is not None
         key = np.arange(self.n) if t is None else np.where(np.isfinite(t), t, np.inf)
-        self.order = np.lexsort((np.arange(self.n), key, codes))
-        self.codes = codes[self.order]
+        g = group_rows(self.n, tracks=ids)  # labels and codes of the ids
+        g = Grouping.from_codes(g.row_codes(), g.labels, key)  # each track in time order
+        self.labels = g.labels
+        self.order = np.arange(self.n) if g.order is None else g.order
+        self.codes = g.row_codes()[self.order]
         self.position = pos[self.order]
         self.t = None if t is None else t[self.order]
         same = self.codes[1:] == self.codes[:-1]
