@@ -366,14 +366,14 @@ mod tests {
     }
 }
 
+/// Widest band [`BandQr`] handles (half-bandwidth + 1).
+pub const MAX_BAND: usize = 8;
+
 /// Least squares with banded rows by Givens rotations (the approach of P. Dierckx, *Curve and
 /// Surface Fitting with Splines*, Oxford 1993, ch. 4): rows with `b + 1` consecutive non-zeros,
 /// added in order of their first column, are rotated into an upper-triangular band R, so that
 /// RᵀR equals the normal matrix without ever forming it. The error grows with the square root of
 /// the normal matrix's condition number instead of the condition number itself.
-/// Widest band [`BandQr`] handles (half-bandwidth + 1).
-pub const MAX_BAND: usize = 8;
-
 #[derive(Debug, Clone)]
 pub struct BandQr {
     nb: usize,
@@ -432,6 +432,12 @@ impl BandQr {
                 *h = c * *h - s * z;
             }
         }
+    }
+
+    /// Row `j` of R from its diagonal on: R[j][j..=j + b] (entries past the last column are 0).
+    pub fn row(&self, j: usize) -> &[f64] {
+        let w = self.b + 1;
+        &self.r[j * w..(j + 1) * w]
     }
 
     /// Solve R x = z by back substitution; `None` if a diagonal entry of R vanishes.
