@@ -156,7 +156,6 @@ impl PiecewisePoly {
         }
         IntervalSpeed {
             x0: self.x[i],
-            dim,
             terms: k.saturating_sub(1).max(1),
             dc,
         }
@@ -172,7 +171,6 @@ const MAX_ORDER: usize = 8;
 #[derive(Debug, Clone, Copy)]
 pub struct IntervalSpeed {
     x0: f64,
-    dim: usize,
     terms: usize,
     dc: [[f64; MAX_ORDER]; 3],
 }
@@ -182,16 +180,25 @@ impl IntervalSpeed {
     #[inline]
     pub fn at(&self, t: f64) -> f64 {
         let u = t - self.x0;
-        let mut v = [0.0; 3];
-        for (d, vd) in v.iter_mut().enumerate().take(self.dim) {
-            let c = &self.dc[d];
-            let mut acc = c[self.terms - 1];
-            for p in (0..self.terms - 1).rev() {
-                acc = acc * u + c[p];
+        // Three coordinates always (a missing one has zero coefficients), unrolled for the
+        // cubic and quintic pieces.
+        let horner = |c: &[f64; MAX_ORDER]| match self.terms {
+            3 => (c[2] * u + c[1]) * u + c[0],
+            5 => (((c[4] * u + c[3]) * u + c[2]) * u + c[1]) * u + c[0],
+            n => {
+                let mut acc = c[n - 1];
+                for p in (0..n - 1).rev() {
+                    acc = acc * u + c[p];
+                }
+                acc
             }
-            *vd = acc;
-        }
-        crate::arclength::distance(&v[..self.dim], &[0.0; 3][..self.dim])
+        };
+        let v = [
+            horner(&self.dc[0]),
+            horner(&self.dc[1]),
+            horner(&self.dc[2]),
+        ];
+        crate::arclength::distance(&v, &[0.0; 3])
     }
 
     /// ∫ₐᵇ |r′| dt by `q`-point Gauss–Legendre quadrature.

@@ -29,7 +29,7 @@ use crate::error::{try_collect, try_filled, KernelError, Result};
 use crate::piecewise::PiecewisePoly;
 use crate::uncertainty::Gram;
 use derivative::derivative_factor;
-use problem::Problem;
+use problem::{Pool, Problem};
 use search::LOG_LAMBDA_MAX;
 
 /// How λ is set.
@@ -180,7 +180,7 @@ pub fn smooth_with(
             // The search's own fit when QR made it; the normal equations' fits are redone by QR.
             let pilot_fit = match found.fit {
                 Some(e) => Some(e),
-                None => prob.eval(pilot, true)?,
+                None => prob.eval(pilot, true, &Pool::default())?,
             };
             if let Some(e) = pilot_fit {
                 if how == Smoothing::Gcv {
@@ -205,7 +205,9 @@ pub fn smooth_with(
     };
     let fit = match reuse {
         Some(e) => e,
-        None => prob.eval(lambda, true)?.ok_or_else(|| singular(lambda))?,
+        None => prob
+            .eval(lambda, true, &Pool::default())?
+            .ok_or_else(|| singular(lambda))?,
     };
     // The fit reproduces the m polynomials of the penalty's null space, so tr A ≥ m; a smaller
     // trace at a given λ* means the factorization lost its accuracy (the fit is not the
@@ -228,7 +230,7 @@ pub fn smooth_with(
     }
     let (path, gram) = prob.finish(&fit, t, hbar, &centre, covariance)?;
     let jerk = if jerk_lambda > lambda * (1.0 + 1e-9) {
-        match prob.eval(jerk_lambda, covariance.is_some())? {
+        match prob.eval(jerk_lambda, covariance.is_some(), &Pool::default())? {
             Some(e) => {
                 let (path, gram) = prob.finish(&e, t, hbar, &centre, covariance)?;
                 Some(JerkFit {

@@ -3,11 +3,13 @@
 //! for the scan at moderate λ*), the residuals and the trace of the influence matrix.
 
 use super::Covariance;
-use crate::banded::{BandQr, SymBand};
+use crate::banded::{zeroed, BandQr, SymBand};
+use crate::batch::CHUNK;
 use crate::bspline::{basis_derivatives, clamped_knots, span_of_interval, to_piecewise};
 use crate::error::{try_copy, try_filled, KernelError, Result};
 use crate::piecewise::{gauss_legendre, PiecewisePoly};
 use crate::uncertainty::{at, Gram};
+use rayon::prelude::*;
 
 pub(super) struct Problem {
     pub(super) n: usize,
@@ -30,6 +32,46 @@ pub(super) struct Problem {
     normal: std::sync::OnceLock<Result<(SymBand, SymBand, Vec<f64>)>>,
 }
 
+/// Storage of finished evaluations, reused by the next ones: at 10⁶ samples an evaluation needs
+/// about 200 MB of band arrays, and fresh pages cost more than the arithmetic on them.
+#[derive(Default)]
+pub(super) struct Pool(std::sync::Mutex<Vec<Vec<f64>>>);
+
+impl Pool {
+    /// `len` zeros, in the smallest stored vector that holds them (else the largest).
+    fn take(&self, len: usize) -> Result<Vec<f64>> {
+        let mut v = match self.0.lock() {
+            Ok(mut p) => {
+                let fit = (0..p.len())
+                    .filter(|&i| p[i].capacity() >= len)
+                    .min_by_key(|&i| p[i].capacity());
+                let any = (0..p.len()).max_by_key(|&i| p[i].capacity());
+                fit.or(any).map(|i| p.swap_remove(i)).unwrap_or_default()
+            }
+            Err(_) => Vec::new(),
+        };
+        zeroed(&mut v, len)?;
+        Ok(v)
+    }
+
+    fn give(&self, v: Vec<f64>) {
+        if let Ok(mut p) = self.0.lock() {
+            if p.len() < 16 {
+                p.push(v);
+            }
+        }
+    }
+
+    /// Hand an evaluation's arrays back.
+    pub(super) fn recycle(&self, e: Eval) {
+        self.give(e.coef);
+        if let Some((l, s)) = e.factor {
+            self.give(l.a);
+            self.give(s.a);
+        }
+    }
+}
+
 pub(super) struct Eval {
     pub(super) coef: Vec<f64>,
     pub(super) rss: f64,
@@ -45,30 +87,44 @@ impl Problem {
         let nb = n + k - 1;
         let knots = clamped_knots(u, k)?;
         let oom = |rows: usize| KernelError::OutOfMemory { bytes: rows * 56 };
-        let mut rows = Vec::new();
-        rows.try_reserve_exact(n).map_err(|_| oom(n))?;
-        for (i, &ui) in u.iter().enumerate() {
-            let span = span_of_interval(i.min(n - 2), k);
-            let d = basis_derivatives(&knots, span, ui, k, 0);
-            let mut b = [0.0; 6];
-            b[..=k].copy_from_slice(&d[0][..=k]);
-            rows.push((span - k, b));
-        }
-        let mut qr = BandQr::new(nb, k, 0)?;
+        // Basis values at the samples and the penalty rows at the Gauss nodes of every interval
+        // are independent: computed in parallel, rotated into R_P in order.
+        let mut rows = try_filled(n, (0usize, [0.0; 6]))?;
+        rows.par_chunks_mut(CHUNK).enumerate().for_each(|(c, out)| {
+            for (q, row) in out.iter_mut().enumerate() {
+                let i = c * CHUNK + q;
+                let span = span_of_interval(i.min(n - 2), k);
+                let d = basis_derivatives(&knots, span, u[i], k, 0);
+                row.0 = span - k;
+                row.1[..=k].copy_from_slice(&d[0][..=k]);
+            }
+        });
+        let mut penalty = try_filled((n - 1) * m, [0.0; 6])?;
         let (gx, gw) = gauss_legendre(m);
-        for iv in 0..n - 1 {
-            let span = span_of_interval(iv, k);
-            let (mid, half) = (0.5 * (u[iv] + u[iv + 1]), 0.5 * (u[iv + 1] - u[iv]));
-            for (&xq, &wq) in gx.iter().zip(gw) {
-                let d = basis_derivatives(&knots, span, mid + half * xq, k, m);
-                let s = (wq * half).sqrt();
-                let mut row = [0.0; 6];
-                for r in 0..=k {
-                    row[r] = s * d[m][r];
+        penalty
+            .par_chunks_mut(CHUNK * m)
+            .enumerate()
+            .for_each(|(c, out)| {
+                for (q, rows_iv) in out.chunks_mut(m).enumerate() {
+                    let iv = c * CHUNK + q;
+                    let span = span_of_interval(iv, k);
+                    let (mid, half) = (0.5 * (u[iv] + u[iv + 1]), 0.5 * (u[iv + 1] - u[iv]));
+                    for ((&xq, &wq), row) in gx.iter().zip(gw).zip(rows_iv.iter_mut()) {
+                        let d = basis_derivatives(&knots, span, mid + half * xq, k, m);
+                        let s = (wq * half).sqrt();
+                        for r in 0..=k {
+                            row[r] = s * d[m][r];
+                        }
+                    }
                 }
-                qr.add_row(span - k, &row[..=k], &mut []);
+            });
+        let mut qr = BandQr::new(nb, k, 0)?;
+        for (iv, rows_iv) in penalty.chunks(m).enumerate() {
+            for row in rows_iv {
+                qr.add_row(iv, &row[..=k], &mut []);
             }
         }
+        drop(penalty);
         let mut root = Vec::new();
         root.try_reserve_exact(nb).map_err(|_| oom(nb))?;
         for j in 0..nb {
@@ -127,10 +183,11 @@ impl Problem {
 
     /// Fit at λ* by Givens QR of the data rows and √λ R_P, in order of their first column; `None`
     /// when the system is numerically singular.
-    pub(super) fn eval(&self, lambda: f64, want_trace: bool) -> Result<Option<Eval>> {
+    pub(super) fn eval(&self, lambda: f64, want_trace: bool, pool: &Pool) -> Result<Option<Eval>> {
         let (n, k, dim) = (self.n, self.k, self.dim);
         let nb = n + k - 1;
-        let mut qr = BandQr::new(nb, k, dim)?;
+        let w = k + 1;
+        let mut qr = BandQr::in_buffers(nb, k, dim, pool.take(nb * w)?, pool.take(nb * dim)?)?;
         let sl = lambda.sqrt();
         let mut vals = [0.0; 6];
         let mut rhs = [0.0; 3];
@@ -156,19 +213,33 @@ impl Problem {
                 next += 1;
             }
         }
-        let coef = match qr.solve() {
-            Some(c) => c,
-            None => return Ok(None),
-        };
-        let rss = self.rss(&coef);
-        let mut trace = f64::NAN;
+        let mut coef = pool.take(nb * dim)?;
+        let solved = qr.solve_into(&mut coef);
         let mut factor = None;
-        if want_trace {
-            let ldlt = qr.to_ldlt()?;
-            let sig = ldlt.inverse_band()?;
-            trace = self.trace(&sig);
+        if solved && want_trace {
+            let mut ldlt = SymBand {
+                n: nb,
+                b: k,
+                a: pool.take(nb * w)?,
+            };
+            qr.to_ldlt_into(&mut ldlt);
+            let mut sig = SymBand {
+                n: nb,
+                b: k,
+                a: pool.take(nb * w)?,
+            };
+            ldlt.inverse_band_into(&mut sig);
             factor = Some((ldlt, sig));
         }
+        let (r, z) = qr.into_buffers();
+        pool.give(r);
+        pool.give(z);
+        if !solved {
+            pool.give(coef);
+            return Ok(None);
+        }
+        let rss = self.rss(&coef);
+        let trace = factor.as_ref().map_or(f64::NAN, |(_, sig)| self.trace(sig));
         Ok(Some(Eval {
             coef,
             rss,
@@ -213,19 +284,30 @@ impl Problem {
     /// Fit at λ* from the band L D Lᵀ of the normal equations Bᵀ W B + λ R_Pᵀ R_P, with the
     /// trace. About a fifth of the work of [`Problem::eval`], but the normal matrix squares the
     /// condition number: used only where the search has checked it against QR.
-    pub(super) fn eval_normal(&self, lambda: f64) -> Result<Option<Eval>> {
+    pub(super) fn eval_normal(&self, lambda: f64, pool: &Pool) -> Result<Option<Eval>> {
         let (h, p, rhs) = self.normal_parts()?;
-        let mut m = h.clone();
-        for (a, b) in m.a.iter_mut().zip(&p.a) {
-            *a += lambda * b;
+        let mut m = SymBand {
+            n: h.n,
+            b: h.b,
+            a: pool.take(h.a.len())?,
+        };
+        for ((a, hv), pv) in m.a.iter_mut().zip(&h.a).zip(&p.a) {
+            *a = hv + lambda * pv;
         }
         if !m.ldlt_in_place() {
+            pool.give(m.a);
             return Ok(None);
         }
-        let mut coef = rhs.clone();
+        let mut coef = pool.take(rhs.len())?;
+        coef.copy_from_slice(rhs);
         m.ldlt_solve(&mut coef, self.dim);
         let rss = self.rss(&coef);
-        let sig = m.inverse_band()?;
+        let mut sig = SymBand {
+            n: h.n,
+            b: h.b,
+            a: pool.take(h.a.len())?,
+        };
+        m.inverse_band_into(&mut sig);
         let trace = self.trace(&sig);
         Ok(Some(Eval {
             coef,

@@ -13,7 +13,7 @@
 //! Evaluations at λ* ≤ 10^[`NORMAL_MAX`] use the band LDLᵀ of the normal equations, the others
 //! Givens QR (see [`NORMAL_MAX`] for the measured accuracy).
 
-use super::problem::{Eval, Problem};
+use super::problem::{Eval, Pool, Problem};
 use super::Smoothing;
 use crate::error::Result;
 
@@ -71,11 +71,12 @@ impl Problem {
         how: Smoothing,
         log_lambda: f64,
         solver: Solver,
+        pool: &Pool,
     ) -> Result<(f64, Option<Eval>)> {
         let lambda = 10f64.powf(log_lambda);
         let e = match solver {
-            Solver::Qr => self.eval(lambda, true)?,
-            Solver::Normal => self.eval_normal(lambda)?,
+            Solver::Qr => self.eval(lambda, true, pool)?,
+            Solver::Normal => self.eval_normal(lambda, pool)?,
         };
         Ok(match e {
             Some(e) => (self.score(how, &e), Some(e)),
@@ -110,16 +111,25 @@ struct Scan<'a> {
     how: Smoothing,
     points: Vec<(f64, f64)>,
     best: Found,
+    pool: Pool,
 }
 
 impl Scan<'_> {
     /// Evaluate two points at once (one per core) and record them.
     fn pair(&mut self, x1: f64, x2: f64) -> Result<()> {
-        let (prob, how) = (self.prob, self.how);
+        let (prob, how, pool) = (self.prob, self.how, &self.pool);
         let run = |x: f64| -> Result<(f64, f64, Option<Eval>)> {
             let solver = prob.solver(x);
-            let (c, e) = prob.criterion_with(how, x, solver)?;
-            Ok((x, c, if solver == Solver::Qr { e } else { None }))
+            let (c, e) = prob.criterion_with(how, x, solver, pool)?;
+            let keep = match e {
+                Some(e) if solver == Solver::Qr => Some(e),
+                Some(e) => {
+                    pool.recycle(e);
+                    None
+                }
+                None => None,
+            };
+            Ok((x, c, keep))
         };
         let (r1, r2) = if x1 == x2 {
             (run(x1)?, None)
@@ -133,11 +143,19 @@ impl Scan<'_> {
             let better =
                 c < self.best.criterion || (c == self.best.criterion && x < self.best.log_lambda);
             if better {
-                self.best = Found {
-                    log_lambda: x,
-                    criterion: c,
-                    fit: e,
-                };
+                let old = std::mem::replace(
+                    &mut self.best,
+                    Found {
+                        log_lambda: x,
+                        criterion: c,
+                        fit: e,
+                    },
+                );
+                if let Some(f) = old.fit {
+                    self.pool.recycle(f);
+                }
+            } else if let Some(f) = e {
+                self.pool.recycle(f);
             }
             let at = self.points.partition_point(|p| p.0 < x);
             if self.points.get(at).is_none_or(|p| p.0 != x) {
@@ -199,6 +217,7 @@ impl Problem {
                 criterion: f64::INFINITY,
                 fit: None,
             },
+            pool: Pool::default(),
         };
         // Coarse walk on the 2-decade grid: from START downhill, two grid points per round,
         // until the best point has an evaluated neighbour on each side (or is an end of the
@@ -271,6 +290,11 @@ impl Problem {
             if !scan.pair_on_lattice(step, wide)? {
                 break;
             }
+        }
+        if scan.best.log_lambda.is_nan() {
+            // No usable score anywhere (e.g. squares of the data overflow): the smallest λ*, as
+            // the full scan of the grid used to give.
+            scan.best.log_lambda = LOG_LAMBDA_MIN;
         }
         Ok(scan.best)
     }
@@ -346,8 +370,12 @@ mod tests {
             let p = Problem::new(&u, y, 3, vec![1.0; n], k).unwrap();
             let mut l = LOG_LAMBDA_MIN;
             while l <= NORMAL_MAX {
-                let (a, _) = p.criterion_with(Smoothing::Gcv, l, Solver::Qr).unwrap();
-                let (b, _) = p.criterion_with(Smoothing::Gcv, l, Solver::Normal).unwrap();
+                let (a, _) = p
+                    .criterion_with(Smoothing::Gcv, l, Solver::Qr, &Pool::default())
+                    .unwrap();
+                let (b, _) = p
+                    .criterion_with(Smoothing::Gcv, l, Solver::Normal, &Pool::default())
+                    .unwrap();
                 assert!(
                     (a - b).abs() <= 2e-8 * a,
                     "n {n} k {k} log λ* {l}: {a} vs {b}"
@@ -377,7 +405,10 @@ mod tests {
         let mut dense = (f64::INFINITY, 0.0);
         for j in 0..=560 {
             let l = LOG_LAMBDA_MIN + 0.05 * j as f64;
-            let c = p.criterion_with(Smoothing::Gcv, l, p.solver(l)).unwrap().0;
+            let c = p
+                .criterion_with(Smoothing::Gcv, l, p.solver(l), &Pool::default())
+                .unwrap()
+                .0;
             if c < dense.0 {
                 dense = (c, l);
             }
