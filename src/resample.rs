@@ -139,7 +139,8 @@ impl Cursor {
         }
         // Backwards only when a value comes out of order (a NaN, or two Newton solutions within
         // the tolerance of one another on either side of a break).
-        while self.0 > 0 && !(breaks[self.0] <= v) {
+        use std::cmp::Ordering::{Equal, Less};
+        while self.0 > 0 && !matches!(breaks[self.0].partial_cmp(&v), Some(Less | Equal)) {
             self.0 -= 1;
         }
         self.0

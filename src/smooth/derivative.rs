@@ -10,6 +10,7 @@
 //! u = hω; ω is estimated from the pilot fit as ω̂² = Σ|f″|²/Σ|f′|². The factor on λ is
 //! (u_ν/u_0)^{2m}, kept within [1, 100] so that a nearly straight track is not over-smoothed.
 
+/// R_ν = (1/2π)∫ w^{2ν}/(1+w^{2m})² dw for ν = 0..=3: closed forms for m = 2 and m = 3
 /// (checked against numerical quadrature with scipy.integrate.quad).
 fn kernel_roughness(m: usize) -> [f64; 4] {
     if m == 2 {

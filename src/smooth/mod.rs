@@ -95,8 +95,19 @@ pub fn min_samples(degree: usize) -> usize {
     degree.div_ceil(2) + 2
 }
 
-/// R_ν = (1/2π)∫ w^{2ν}/(1+w^{2m})² dw for ν = 0..=3: closed forms for m = 2 and m = 3
-
+/// Smoothing spline of `degree` (3 or 5) through one track. `t` strictly increasing, `x` row-major
+/// with `dim` columns, all finite; `w` optional positive weights.
+///
+/// # Examples
+///
+/// ```
+/// use osculate::smooth::{smooth, Smoothing};
+/// // A quadratic is in the null space of the quintic penalty: reproduced exactly at any λ.
+/// let t: Vec<f64> = (0..20).map(|i| i as f64 * 0.5).collect();
+/// let x: Vec<f64> = t.iter().map(|&u| 1.0 + u * u).collect();
+/// let fit = smooth(&t, &x, 1, None, 5, Smoothing::Fixed(1e6), 0).unwrap();
+/// let mut out = [0.0; 3];
+/// fit.path.eval(3.3, 2, &mut out);
 /// assert!((out[0] - (1.0 + 3.3 * 3.3)).abs() < 1e-8 && (out[2] - 2.0).abs() < 1e-8);
 /// ```
 pub fn smooth(

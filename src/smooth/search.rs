@@ -105,6 +105,9 @@ const LATTICE: f64 = 256.0;
 /// for the cubic spline), in the middle of the range where noisy logs put λ*.
 const START: f64 = 8.0;
 
+/// The best point (log10 λ*, criterion) with its neighbours in the scan (None at an end).
+type Around = (Option<(f64, f64)>, (f64, f64), Option<(f64, f64)>);
+
 /// The points evaluated so far, sorted by log10 λ*, and the best fit made by QR.
 struct Scan<'a> {
     prob: &'a Problem,
@@ -181,7 +184,7 @@ impl Scan<'_> {
     }
 
     /// The best point's index and its neighbours in the scan (None at an end).
-    fn around_best(&self) -> (Option<(f64, f64)>, (f64, f64), Option<(f64, f64)>) {
+    fn around_best(&self) -> Around {
         let i = self
             .points
             .iter()
@@ -207,7 +210,10 @@ impl Problem {
     pub(super) fn search(&self, how: Smoothing) -> Result<Found> {
         let hi =
             LOG_LAMBDA_MAX.min(2.0 * self.k.div_ceil(2) as f64 * (self.n as f64).log10() + 2.0);
-        let grid = |l: f64| l.clamp(LOG_LAMBDA_MIN, hi);
+        // The grid runs from LOG_LAMBDA_MIN to `hi`, and one step past either end, where the
+        // refinement of the full scan used to reach (±2 decades around its best point).
+        let (lo_end, hi_end) = (LOG_LAMBDA_MIN - COARSE_STEP, hi + COARSE_STEP);
+        let grid = |l: f64| l.clamp(lo_end, hi_end);
         let mut scan = Scan {
             prob: self,
             how,
@@ -230,17 +236,17 @@ impl Problem {
             if !scan.best.criterion.is_finite() {
                 // Nothing usable yet (singular or inaccurate everywhere tried): go down.
                 let lo = scan.points[0].0;
-                if lo <= LOG_LAMBDA_MIN {
+                if lo <= lo_end {
                     break;
                 }
                 scan.pair(grid(lo - COARSE_STEP), grid(lo - 2.0 * COARSE_STEP))?;
                 continue;
             }
             match (left, right) {
-                (None, _) if x > LOG_LAMBDA_MIN => {
+                (None, _) if x > lo_end => {
                     scan.pair(grid(x - COARSE_STEP), grid(x - 2.0 * COARSE_STEP))?
                 }
-                (_, None) if x < hi => {
+                (_, None) if x < hi_end => {
                     scan.pair(grid(x + COARSE_STEP), grid(x + 2.0 * COARSE_STEP))?
                 }
                 _ => break,
