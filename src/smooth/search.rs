@@ -6,9 +6,11 @@
 //! each side (or is an end of the range); successive parabolic interpolation (the parabolic step
 //! of R. P. Brent, *Algorithms for Minimization without Derivatives*, 1973, ch. 5) then refines
 //! the bracket, each round pairing the parabola's vertex with the midpoint of the wider side,
-//! until the best point's neighbours are within 0.02 decade. The walk assumes the criterion
-//! falls towards one minimum from 10⁸; the old full scan of the grid (every 2 decades from 10⁻⁴
-//! up) cost 15 evaluations where the walk costs 4 to 8.
+//! until the best point's neighbours are within 0.02 decade or the parabola's vertex falls on
+//! the best point (within 0.0025 decade), on a lattice of 1/1024 decade. The walk assumes the
+//! criterion falls towards one minimum from 10⁸ (a deeper minimum beyond a rise of the criterion
+//! would be missed); the old full scan of the grid (every 2 decades from 10⁻⁴ up, then golden
+//! sections) cost 15 + 13 evaluations, the walk and refinement about 6 rounds of two.
 //!
 //! Evaluations at λ* ≤ 10^[`NORMAL_MAX`] use the band LDLᵀ of the normal equations, the others
 //! Givens QR (see [`NORMAL_MAX`] for the measured accuracy).
@@ -96,10 +98,10 @@ pub(super) struct Found {
 /// Most rounds of the walk and of the refinement (each round evaluates two points at once).
 const MAX_ROUNDS: usize = 24;
 
-/// Points of the refinement lie on a lattice of this many per decade (λ* steps of 0.9 %): a
+/// Points of the refinement lie on a lattice of this many per decade (λ* steps of 0.22 %): a
 /// parabola's vertex moves with the rounding of the scores, and the same data in other units
 /// (whose scores differ by rounding) must give the same λ*.
-const LATTICE: f64 = 256.0;
+const LATTICE: f64 = 1024.0;
 
 /// Where the coarse walk starts: λ* = 10⁸ (bandwidths of about 20 samples for the quintic, 100
 /// for the cubic spline), in the middle of the range where noisy logs put λ*.
@@ -256,7 +258,7 @@ impl Problem {
         // proposes one point of each round; the other halves the wider side, so the bracket
         // shrinks even where the criterion is far from a parabola (it is steep above the
         // minimum and flat below). Ends when the neighbours are within FINE_STEP, or when the
-        // vertex falls on the best point (within FINE_STEP / 2) from neighbours at most
+        // vertex falls on the best point (within FINE_STEP / 8) from neighbours at most
         // 15 FINE_STEP away (the criterion is that close to a parabola there).
         for _ in 0..MAX_ROUNDS {
             let (left, mid, right) = scan.around_best();
@@ -269,7 +271,7 @@ impl Problem {
                 break;
             }
             let vertex = parabola_vertex(left.unwrap_or(mid), mid, right.unwrap_or(mid));
-            let on_best = vertex.is_finite() && (vertex - x).abs() <= 0.5 * FINE_STEP;
+            let on_best = vertex.is_finite() && (vertex - x).abs() <= 0.125 * FINE_STEP;
             if on_best && (x - a).max(c - x) <= 15.0 * FINE_STEP {
                 break;
             }
