@@ -6,7 +6,16 @@
 //! Σ = D⁻¹ L⁻¹ + (I − Lᵀ) Σ, evaluated from the last row upwards, touches only entries inside the
 //! band, so it costs O(n b²) like the factorization itself.
 
-use crate::error::{try_filled, Result};
+use crate::error::{try_filled, KernelError, Result};
+
+/// Resize `v` to `len` zeros, reusing its storage (fallible when it must grow).
+pub fn zeroed(v: &mut Vec<f64>, len: usize) -> Result<()> {
+    v.clear();
+    v.try_reserve_exact(len)
+        .map_err(|_| KernelError::OutOfMemory { bytes: len * 8 })?;
+    v.resize(len, 0.0);
+    Ok(())
+}
 
 /// Symmetric band matrix of order `n` and half-bandwidth `b`, lower band stored row by row:
 /// `a[i * (b + 1) + d]` holds M[i][i − d].
@@ -102,9 +111,16 @@ impl SymBand {
 
     /// The band of M⁻¹ (same layout), from the factor (Hutchinson & de Hoog 1985).
     pub fn inverse_band(&self) -> Result<SymBand> {
+        let mut s = SymBand::zeros(self.n, self.b)?;
+        self.inverse_band_into(&mut s);
+        Ok(s)
+    }
+
+    /// [`SymBand::inverse_band`] into `s` (of the same order and band; every band entry is
+    /// overwritten, so its contents do not matter).
+    pub fn inverse_band_into(&self, s: &mut SymBand) {
         let (n, b) = (self.n, self.b);
         let w = b + 1;
-        let mut s = SymBand::zeros(n, b)?;
         for i in (0..n).rev() {
             let hi = (i + b).min(n - 1);
             // Off-diagonal entries Σ[j][i], j > i, first; then the diagonal. Σ[k][j] for k, j > i
@@ -128,7 +144,6 @@ impl SymBand {
             }
             s.a[i * w] = v;
         }
-        Ok(s)
     }
 }
 
@@ -366,14 +381,14 @@ mod tests {
     }
 }
 
+/// Widest band [`BandQr`] handles (half-bandwidth + 1).
+pub const MAX_BAND: usize = 8;
+
 /// Least squares with banded rows by Givens rotations (the approach of P. Dierckx, *Curve and
 /// Surface Fitting with Splines*, Oxford 1993, ch. 4): rows with `b + 1` consecutive non-zeros,
 /// added in order of their first column, are rotated into an upper-triangular band R, so that
 /// RᵀR equals the normal matrix without ever forming it. The error grows with the square root of
 /// the normal matrix's condition number instead of the condition number itself.
-/// Widest band [`BandQr`] handles (half-bandwidth + 1).
-pub const MAX_BAND: usize = 8;
-
 #[derive(Debug, Clone)]
 pub struct BandQr {
     nb: usize,
@@ -389,14 +404,27 @@ impl BandQr {
     /// An empty system with `nb` unknowns, half-bandwidth `b` (< [`MAX_BAND`]), `nrhs`
     /// right-hand sides.
     pub fn new(nb: usize, b: usize, nrhs: usize) -> Result<Self> {
+        Self::in_buffers(nb, b, nrhs, Vec::new(), Vec::new())
+    }
+
+    /// [`BandQr::new`] in the storage of `r` and `z` (their contents are overwritten with
+    /// zeros), so that repeated systems of one size reuse their memory.
+    pub fn in_buffers(
+        nb: usize,
+        b: usize,
+        nrhs: usize,
+        mut r: Vec<f64>,
+        mut z: Vec<f64>,
+    ) -> Result<Self> {
         assert!(b < MAX_BAND, "band too wide");
-        Ok(BandQr {
-            nb,
-            b,
-            nrhs,
-            r: try_filled(nb * (b + 1), 0.0)?,
-            z: try_filled(nb * nrhs, 0.0)?,
-        })
+        zeroed(&mut r, nb * (b + 1))?;
+        zeroed(&mut z, nb * nrhs)?;
+        Ok(BandQr { nb, b, nrhs, r, z })
+    }
+
+    /// The storage of R and of the right-hand sides, for reuse.
+    pub fn into_buffers(self) -> (Vec<f64>, Vec<f64>) {
+        (self.r, self.z)
     }
 
     /// Rotate in the row whose non-zeros `vals` (b + 1 of them) start at column `first`, with
@@ -434,14 +462,29 @@ impl BandQr {
         }
     }
 
+    /// Row `j` of R from its diagonal on: R[j][j..=j + b] (entries past the last column are 0).
+    pub fn row(&self, j: usize) -> &[f64] {
+        let w = self.b + 1;
+        &self.r[j * w..(j + 1) * w]
+    }
+
     /// Solve R x = z by back substitution; `None` if a diagonal entry of R vanishes.
     pub fn solve(&self) -> Option<Vec<f64>> {
+        let mut x = Vec::new();
+        self.solve_into(&mut x).then_some(x)
+    }
+
+    /// [`BandQr::solve`] into `x` (resized; false if a diagonal entry of R vanishes). The
+    /// storage is taken as it comes: `x` must hold at least the capacity for nb × nrhs values,
+    /// or the resize allocates.
+    pub fn solve_into(&self, x: &mut Vec<f64>) -> bool {
         let (nb, w, nrhs) = (self.nb, self.b + 1, self.nrhs);
-        let mut x = self.z.clone();
+        x.clear();
+        x.extend_from_slice(&self.z);
         for j in (0..nb).rev() {
             let d = self.r[j * w];
             if d == 0.0 || !d.is_finite() {
-                return None;
+                return false;
             }
             for k in 0..nrhs {
                 let mut v = x[j * nrhs + k];
@@ -451,13 +494,20 @@ impl BandQr {
                 x[j * nrhs + k] = v / d;
             }
         }
-        Some(x)
+        true
     }
 
     /// The same normal matrix RᵀR as an L D Lᵀ factor (for [`SymBand::inverse_band`]).
     pub fn to_ldlt(&self) -> Result<SymBand> {
-        let (nb, b, w) = (self.nb, self.b, self.b + 1);
-        let mut f = SymBand::zeros(nb, b)?;
+        let mut f = SymBand::zeros(self.nb, self.b)?;
+        self.to_ldlt_into(&mut f);
+        Ok(f)
+    }
+
+    /// [`BandQr::to_ldlt`] into `f` (of order nb and band b; every entry inside the band is
+    /// overwritten).
+    pub fn to_ldlt_into(&self, f: &mut SymBand) {
+        let (nb, w) = (self.nb, self.b + 1);
         for j in 0..nb {
             let d = self.r[j * w];
             f.a[j * w] = d * d;
@@ -466,7 +516,6 @@ impl BandQr {
                 f.a[(j + c) * w + c] = self.r[j * w + c] / d;
             }
         }
-        Ok(f)
     }
 }
 

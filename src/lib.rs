@@ -17,6 +17,7 @@ pub mod elements;
 pub mod error;
 pub mod field;
 pub mod fit;
+pub mod fit_options;
 pub mod frame;
 pub mod fresnel;
 pub mod geodesy;

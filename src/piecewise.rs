@@ -140,15 +140,75 @@ impl PiecewisePoly {
     /// Length of the curve on interval i between local times `a` and `b` (absolute times inside
     /// the interval) by `q`-point Gauss–Legendre quadrature of |r′|.
     pub fn length_on(&self, i: usize, a: f64, b: f64, q: usize) -> f64 {
+        self.speed_on(i).length(a, b, q)
+    }
+
+    /// The speed |r′| on interval `i`, ready to evaluate many times (arc length, Newton steps).
+    #[inline]
+    pub fn speed_on(&self, i: usize) -> IntervalSpeed {
+        let (k, dim) = (self.order, self.dim);
+        let c = &self.coef[i * k * dim..(i + 1) * k * dim];
+        let mut dc = [[0.0; MAX_ORDER]; 3];
+        for (d, row) in dc.iter_mut().enumerate().take(dim) {
+            for p in 1..k {
+                row[p - 1] = p as f64 * c[p * dim + d];
+            }
+        }
+        IntervalSpeed {
+            x0: self.x[i],
+            terms: k.saturating_sub(1).max(1),
+            dc,
+        }
+    }
+}
+
+/// Highest polynomial order [`IntervalSpeed`] holds (quintic pieces have order 6).
+const MAX_ORDER: usize = 8;
+
+/// |r′| on one interval of a [`PiecewisePoly`]: the coefficients of r′ in powers of t − x[i],
+/// evaluated by Horner's rule (cheaper than [`PiecewisePoly::eval_on`], which carries the
+/// position along).
+#[derive(Debug, Clone, Copy)]
+pub struct IntervalSpeed {
+    x0: f64,
+    terms: usize,
+    dc: [[f64; MAX_ORDER]; 3],
+}
+
+impl IntervalSpeed {
+    /// |r′(t)|, scale-safe ([`crate::arclength::distance`]).
+    #[inline]
+    pub fn at(&self, t: f64) -> f64 {
+        let u = t - self.x0;
+        // Three coordinates always (a missing one has zero coefficients), unrolled for the
+        // cubic and quintic pieces.
+        let horner = |c: &[f64; MAX_ORDER]| match self.terms {
+            3 => (c[2] * u + c[1]) * u + c[0],
+            5 => (((c[4] * u + c[3]) * u + c[2]) * u + c[1]) * u + c[0],
+            n => {
+                let mut acc = c[n - 1];
+                for p in (0..n - 1).rev() {
+                    acc = acc * u + c[p];
+                }
+                acc
+            }
+        };
+        let v = [
+            horner(&self.dc[0]),
+            horner(&self.dc[1]),
+            horner(&self.dc[2]),
+        ];
+        crate::arclength::distance(&v, &[0.0; 3])
+    }
+
+    /// ∫ₐᵇ |r′| dt by `q`-point Gauss–Legendre quadrature.
+    #[inline]
+    pub fn length(&self, a: f64, b: f64, q: usize) -> f64 {
         let (xs, ws) = gauss_legendre(q);
         let (mid, half) = (0.5 * (a + b), 0.5 * (b - a));
-        let mut buf = [0.0; 8];
-        let dim = self.dim;
         let mut s = 0.0;
         for (&xq, &wq) in xs.iter().zip(ws) {
-            self.eval_on(i, mid + half * xq, 1, &mut buf[..2 * dim]);
-            let v = crate::arclength::distance(&buf[dim..2 * dim], &[0.0; 4][..dim]);
-            s += wq * v;
+            s += wq * self.at(mid + half * xq);
         }
         s * half
     }

@@ -113,14 +113,104 @@ fn targets(sp: &Spacing, len: f64, track: usize) -> Result<Vec<f64>> {
     })
 }
 
+/// A place on sorted breaks that steps to the interval holding each new value: the same interval
+/// as `breaks.partition_point(|b| b <= v) − 1` clamped to `[0, last]`, found by walking from the
+/// previous one. Values that arrive in order (sorted arc lengths and their times) cost O(1) each
+/// amortized instead of a binary search over the whole track.
+#[derive(Debug, Clone, Copy)]
+struct Cursor(usize);
+
+impl Cursor {
+    /// Start at the interval of `v` (one binary search).
+    fn at(breaks: &[f64], v: f64, last: usize) -> Self {
+        Cursor(
+            breaks
+                .partition_point(|&b| b <= v)
+                .saturating_sub(1)
+                .min(last),
+        )
+    }
+
+    /// Move to the interval of `v` and return it.
+    #[inline]
+    fn seek(&mut self, breaks: &[f64], v: f64, last: usize) -> usize {
+        while self.0 < last && breaks[self.0 + 1] <= v {
+            self.0 += 1;
+        }
+        // Backwards only when a value comes out of order (a NaN, or two Newton solutions within
+        // the tolerance of one another on either side of a break).
+        use std::cmp::Ordering::{Equal, Less};
+        while self.0 > 0 && !matches!(breaks[self.0].partial_cmp(&v), Some(Less | Equal)) {
+            self.0 -= 1;
+        }
+        self.0
+    }
+}
+
+/// The arc length S(t) of one track on the interval in hand, and its derivative |r′|, without
+/// any search: in place for splines and polylines, through [`TrackFit::length_to`] otherwise.
+enum Piece<'a> {
+    Poly(&'a crate::piecewise::PiecewisePoly),
+    Linear { x: &'a [f64], dim: usize },
+    Other(&'a TrackFit),
+}
+
+impl<'a> Piece<'a> {
+    fn of(fit: &'a TrackFit) -> Self {
+        match fit {
+            TrackFit::Poly { poly, .. } => Piece::Poly(poly),
+            TrackFit::Linear { x, dim, .. } => Piece::Linear { x, dim: *dim },
+            other => Piece::Other(other),
+        }
+    }
+
+    /// Velocity of segment `j` of a polyline (its constant r′), scale-safe norm.
+    #[inline]
+    fn chord_speed(x: &[f64], dim: usize, ts: &[f64], j: usize) -> f64 {
+        let h = ts[j + 1] - ts[j];
+        let mut v = [0.0; 3];
+        for k in 0..dim {
+            v[k] = (x[(j + 1) * dim + k] - x[j * dim + k]) / h;
+        }
+        crate::arclength::distance(&v[..dim], &[0.0; 3][..dim])
+    }
+}
+
+/// [`TrackFit::cumulative_length`] with the segments of a long track integrated in parallel (the
+/// running sum stays serial, so the values are the same to the last bit).
+fn cumulative_length(fit: &TrackFit) -> Result<Vec<f64>> {
+    let n = fit.times().len();
+    let mut cum = try_filled(n, 0.0)?;
+    if n < 2 {
+        return Ok(cum);
+    }
+    cum[1..]
+        .par_chunks_mut(CHUNK)
+        .enumerate()
+        .for_each(|(c, out)| {
+            for (q, o) in out.iter_mut().enumerate() {
+                *o = fit.segment(c * CHUNK + q + 1);
+            }
+        });
+    let mut acc = 0.0;
+    for v in cum.iter_mut() {
+        acc += *v;
+        *v = acc;
+    }
+    Ok(cum)
+}
+
 /// Time at which the fitted track reaches arc length `s` (`cum` its cumulative lengths).
 pub fn time_at_length(fit: &TrackFit, cum: &[f64], s: f64) -> f64 {
+    let n = fit.times().len();
+    let j = Cursor::at(cum, s, n - 2).0;
+    time_on(fit, &Piece::of(fit), cum, s, j)
+}
+
+/// [`time_at_length`] on interval `j`, the one whose cumulative lengths bracket `s`.
+fn time_on(fit: &TrackFit, piece: &Piece, cum: &[f64], s: f64, j: usize) -> f64 {
     let ts = fit.times();
     let n = ts.len();
-    let j = cum
-        .partition_point(|&c| c <= s)
-        .saturating_sub(1)
-        .min(n - 2);
     let (mut a, mut b) = (ts[j], ts[j + 1]);
     let seg = cum[j + 1] - cum[j];
     if seg <= 0.0 {
@@ -130,15 +220,21 @@ pub fn time_at_length(fit: &TrackFit, cum: &[f64], s: f64) -> f64 {
     let mut t = a + (b - a) * ((s - cum[j]) / seg).clamp(0.0, 1.0);
     let mut buf = [0.0; 12];
     let d = fit.dim();
-    // On splines the residual g(t) = S(t) − s is updated by the integral over each Newton step
-    // (short steps need few nodes), on interval j without any search; other fits evaluate S(t).
-    let poly = match fit {
-        TrackFit::Poly { poly, .. } => Some(poly),
+    // The residual g(t) = S(t) − s: on splines it is updated by the integral over each Newton
+    // step (short steps need few nodes), on polylines it is linear in t; other fits evaluate
+    // S(t). All on interval j, without any search.
+    let linear_speed = match piece {
+        Piece::Linear { x, dim } => Piece::chord_speed(x, *dim, ts, j),
+        _ => f64::NAN,
+    };
+    let speed = match piece {
+        Piece::Poly(p) => Some(p.speed_on(j)),
         _ => None,
     };
-    let mut g = match poly {
-        Some(p) => cum[j] + p.length_on(j, ts[j], t, LENGTH_NODES) - s,
-        None => fit.length_to(cum, t) - s,
+    let mut g = match (piece, &speed) {
+        (_, Some(sp)) => cum[j] + sp.length(ts[j], t, LENGTH_NODES) - s,
+        (Piece::Linear { .. }, _) => cum[j] + linear_speed * (t - ts[j]) - s,
+        (_, None) => fit.length_to(cum, t) - s,
     };
     for _ in 0..MAX_ITER {
         if g.abs() <= tol {
@@ -149,27 +245,31 @@ pub fn time_at_length(fit: &TrackFit, cum: &[f64], s: f64) -> f64 {
         } else {
             a = t;
         }
-        match poly {
-            Some(p) => p.eval_on(j, t, 1, &mut buf[..2 * d]),
-            None => fit.at_time(t, &mut buf[..4 * d]),
-        }
-        let v = buf[d..2 * d].iter().map(|x| x * x).sum::<f64>().sqrt();
+        let v = match (piece, &speed) {
+            (_, Some(sp)) => sp.at(t),
+            (Piece::Linear { .. }, _) => linear_speed,
+            (_, None) => {
+                fit.at_time(t, &mut buf[..4 * d]);
+                buf[d..2 * d].iter().map(|x| x * x).sum::<f64>().sqrt()
+            }
+        };
         let newton = t - g / v;
         let next = if v > 0.0 && newton > a && newton < b {
             newton
         } else {
             0.5 * (a + b)
         };
-        g = match poly {
-            Some(p) => {
+        g = match (piece, &speed) {
+            (_, Some(sp)) => {
                 let nodes = if (next - t).abs() < 1e-3 * (ts[j + 1] - ts[j]) {
                     3
                 } else {
                     LENGTH_NODES
                 };
-                g + p.length_on(j, t, next, nodes)
+                g + sp.length(t, next, nodes)
             }
-            None => fit.length_to(cum, next) - s,
+            (Piece::Linear { .. }, _) => cum[j] + linear_speed * (next - ts[j]) - s,
+            (_, None) => fit.length_to(cum, next) - s,
         };
         t = next;
         if b - a <= 4.0 * f64::EPSILON * b.abs().max(a.abs()) {
@@ -179,14 +279,35 @@ pub fn time_at_length(fit: &TrackFit, cum: &[f64], s: f64) -> f64 {
     t
 }
 
-/// Linear interpolation in time of `cols` columns of `y` (rows at times `ts`) at `t`.
-fn interp_rows(ts: &[f64], y: &[f64], cols: usize, t: f64, out: &mut [f64]) {
-    let n = ts.len();
-    let i = ts
-        .partition_point(|&v| v <= t)
-        .saturating_sub(1)
-        .min(n.saturating_sub(2));
-    if n < 2 {
+/// Position at time `t` on interval `i` (the interval [`TrackFit::at_time`] would find), written
+/// to `out` (`dim` values).
+#[inline]
+fn position_on(fit: &TrackFit, piece: &Piece, i: usize, t: f64, out: &mut [f64]) {
+    match piece {
+        Piece::Poly(p) => p.eval_on(i, t, 0, out),
+        Piece::Linear { x, dim } => {
+            // The formula of TrackFit::at_time for polylines.
+            let ts = fit.times();
+            let h = ts[i + 1] - ts[i];
+            for k in 0..*dim {
+                let (a, b) = (x[i * dim + k], x[(i + 1) * dim + k]);
+                out[k] = a + (b - a) / h * (t - ts[i]);
+            }
+        }
+        Piece::Other(f) => {
+            let mut buf = [0.0; 12];
+            let d = out.len();
+            f.at_time(t, &mut buf[..4 * d]);
+            out.copy_from_slice(&buf[..d]);
+        }
+    }
+}
+
+/// Linear interpolation in time of `cols` columns of `y` (rows at times `ts`) at `t` on interval
+/// `i` (the last row ≤ t, clamped); a single row is copied.
+#[inline]
+fn interp_on(ts: &[f64], y: &[f64], cols: usize, i: usize, t: f64, out: &mut [f64]) {
+    if ts.len() < 2 {
         out.copy_from_slice(&y[..cols]);
         return;
     }
@@ -223,7 +344,7 @@ pub fn resample(
             if matches!(fit, TrackFit::Invalid) {
                 return Ok((Vec::new(), Vec::new(), f64::NAN));
             }
-            let cum = fit.cumulative_length()?;
+            let cum = cumulative_length(fit)?;
             let len = *cum.last().unwrap_or(&0.0);
             let s = targets(spacing, len, k)?;
             Ok((s, cum, len))
@@ -278,14 +399,34 @@ pub fn resample(
                 &t[rows.clone()],
                 &extra[rows.start * ncols..rows.end * ncols],
             );
-            let mut buf = [0.0; 12];
-            for (j, &sj) in s[range.clone()].iter().enumerate() {
-                let tj = time_at_length(fit, cum, sj);
+            let targets = &s[range.clone()];
+            if targets.is_empty() {
+                return;
+            }
+            // Walk forward through the sorted targets: one binary search per job for each cursor,
+            // then every interval is found by stepping from the previous one.
+            let piece = Piece::of(fit);
+            let times = fit.times();
+            let last = times.len() - 2;
+            let elast = tk.len().saturating_sub(2);
+            let mut on_cum = Cursor::at(cum, targets[0], last);
+            let mut on_time = Cursor(0);
+            let mut on_rows = Cursor(0);
+            let mut first = true;
+            for (j, &sj) in targets.iter().enumerate() {
+                let seg = on_cum.seek(cum, sj, last);
+                let tj = time_on(fit, &piece, cum, sj, seg);
+                if first {
+                    on_time = Cursor::at(times, tj, last);
+                    on_rows = Cursor::at(tk, tj, elast);
+                    first = false;
+                }
                 so[j] = sj;
                 to[j] = tj;
-                fit.at_time(tj, &mut buf[..4 * d]);
-                xo[j * d..(j + 1) * d].copy_from_slice(&buf[..d]);
-                interp_rows(tk, ek, ncols, tj, &mut eo[j * ncols..(j + 1) * ncols]);
+                let i = on_time.seek(times, tj, last);
+                position_on(fit, &piece, i, tj, &mut xo[j * d..(j + 1) * d]);
+                let r = on_rows.seek(tk, tj, elast);
+                interp_on(tk, ek, ncols, r, tj, &mut eo[j * ncols..(j + 1) * ncols]);
             }
         });
     Ok(out)

@@ -3,12 +3,9 @@
 use super::error::{contiguous, detached, rows};
 use super::kinematics::{options, significance, to_dict};
 use crate::diff::FdOrder;
-use crate::fit::{fit_batch, Fits, Method};
+use crate::fit::{fit_batch, Fits, Method, MethodOptions};
 use crate::kinematics::{of_fits, of_fits_at, Options};
-use crate::local::Window;
 use crate::resample::{resample, Spacing};
-use crate::smooth::{Covariance, Smoothing};
-use crate::spline::EndCondition;
 use crate::KernelError;
 use numpy::{
     IntoPyArray, PyArray1, PyArray2, PyReadonlyArray1, PyReadonlyArray2, PyUntypedArrayMethods,
@@ -24,102 +21,6 @@ pub struct FittedPaths {
 
 fn bad(argument: &'static str, detail: String) -> KernelError {
     KernelError::Option { argument, detail }
-}
-
-#[allow(clippy::too_many_arguments)]
-fn method(
-    name: &str,
-    bc: &str,
-    bc_start: Option<Vec<f64>>,
-    bc_end: Option<Vec<f64>>,
-    degree: usize,
-    smoothing: Option<f64>,
-    noise: Option<f64>,
-    window: Option<usize>,
-    window_span: Option<f64>,
-    derivative: usize,
-    uncertainty: Option<&str>,
-) -> crate::Result<Method> {
-    let covariance = match uncertainty {
-        None => None,
-        Some("sampling") => Some(Covariance::Sampling),
-        Some("posterior") => Some(Covariance::Posterior),
-        Some(other) => {
-            return Err(bad(
-                "uncertainty",
-                format!("expected \"sampling\" or \"posterior\", got {other:?}"),
-            ))
-        }
-    };
-    Ok(match name {
-        "spline" => Method::Spline(match bc {
-            "not-a-knot" => EndCondition::NotAKnot,
-            "natural" => EndCondition::Natural,
-            "clamped" => match (bc_start, bc_end) {
-                (Some(start), Some(end)) => EndCondition::Clamped { start, end },
-                _ => {
-                    return Err(bad(
-                        "bc",
-                        "\"clamped\" needs the start and end velocities".into(),
-                    ))
-                }
-            },
-            other => {
-                return Err(bad(
-                    "bc",
-                    format!("expected \"not-a-knot\", \"natural\" or \"clamped\", got {other:?}"),
-                ))
-            }
-        }),
-        "smooth" => {
-            if derivative > 3 {
-                return Err(bad(
-                    "derivative",
-                    format!("must be 0, 1, 2 or 3, got {derivative}"),
-                ));
-            }
-            let smoothing = match (smoothing, noise) {
-                (Some(_), Some(_)) => {
-                    return Err(bad("smoothing", "give smoothing or noise, not both".into()))
-                }
-                (Some(l), None) if l.is_nan() || l < 0.0 || l.is_infinite() => {
-                    return Err(bad(
-                        "smoothing",
-                        format!("must be finite and >= 0, got {l}"),
-                    ))
-                }
-                (Some(l), None) => Smoothing::Fixed(l),
-                (None, Some(s)) if s.is_nan() || s <= 0.0 || s.is_infinite() => {
-                    return Err(bad("noise", format!("must be finite and > 0, got {s}")))
-                }
-                (None, Some(s)) => Smoothing::Noise(s),
-                (None, None) => Smoothing::Gcv,
-            };
-            Method::Smooth {
-                degree,
-                smoothing,
-                derivative,
-                covariance,
-            }
-        }
-        "local" => Method::Local {
-            degree,
-            window: match (window, window_span) {
-                (Some(_), Some(_)) => {
-                    return Err(bad(
-                        "window",
-                        "give a sample count or a time span, not both".into(),
-                    ))
-                }
-                (Some(w), None) => Window::Samples(w),
-                (None, Some(s)) => Window::Span(s),
-                (None, None) => Window::Auto,
-            },
-            uncertainty: covariance.is_some(),
-        },
-        "linear" => Method::Linear,
-        other => return Err(bad("method", format!("unknown method {other:?}"))),
-    })
 }
 
 /// Fit every track of a batch (arrays validated by the Python layer).
@@ -154,22 +55,21 @@ pub fn fit_paths<'py>(
         Some(w) => Some(contiguous("weights", w.as_slice())?),
         None => None,
     };
-    let name = method.to_owned();
-    let bc = bc.to_owned();
+    let options = MethodOptions {
+        name: method,
+        bc,
+        bc_start,
+        bc_end,
+        degree,
+        smoothing,
+        noise,
+        window,
+        window_span,
+        derivative,
+        uncertainty: uncertainty.as_deref(),
+    };
     let fits = detached(py, move || {
-        let m = self::method(
-            &name,
-            &bc,
-            bc_start,
-            bc_end,
-            degree,
-            smoothing,
-            noise,
-            window,
-            window_span,
-            derivative,
-            uncertainty.as_deref(),
-        )?;
+        let m = Method::from_options(options)?;
         fit_batch(t, x, dim, off, w, &m)
     })?;
     Ok(FittedPaths { fits })
