@@ -11,7 +11,18 @@ from typing import Any, Optional
 
 from . import _core
 
-__all__ = ["column_values", "input_error"]
+__all__ = ["column_values", "input_error", "require_pandas"]
+
+
+def require_pandas() -> Any:
+    """Return the pandas module, or raise ImportError saying how to install it."""
+    try:
+        import pandas as pd
+    except ImportError as exc:  # pragma: no cover - depends on the environment
+        raise ImportError(
+            "this needs pandas; install it with: pip install 'osculate[pandas]'"
+        ) from exc
+    return pd
 
 
 def input_error(message: str, argument: str, row: Optional[int] = None, label: Any = None) -> Any:

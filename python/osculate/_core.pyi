@@ -48,16 +48,7 @@ def fd_kinematics(
     offsets: npt.NDArray[np.int64],
     *,
     order: int,
-    min_speed: float,
-    min_curvature: float,
-    gap_factor: float,
-    up: tuple[float, float, float] | None = None,
-    uncertainty: bool = False,
-    auto_speed: bool = False,
-    auto_curvature: bool = False,
-    significance: float = 3.0,
-    max_relative_se: float = 0.25,
-    outputs: list[str] | None = None,
+    options: dict[str, Any] | None = None,
 ) -> dict[str, Any]: ...
 def track_stats(
     t: npt.NDArray[np.float64],
@@ -163,29 +154,13 @@ class FittedPaths:
     def __len__(self) -> int: ...
     @property
     def dim(self) -> int: ...
-    def kinematics(
-        self,
-        *,
-        min_speed: float,
-        min_curvature: float,
-        gap_factor: float,
-        up: tuple[float, float, float] | None = None,
-        uncertainty: bool = False,
-        auto_speed: bool = False,
-        auto_curvature: bool = False,
-        significance: float = 3.0,
-        max_relative_se: float = 0.25,
-        outputs: list[str] | None = None,
-    ) -> dict[str, Any]: ...
+    def kinematics(self, *, options: dict[str, Any] | None = None) -> dict[str, Any]: ...
     def kinematics_at(
         self,
         t: npt.NDArray[np.float64],
         query_offsets: npt.NDArray[np.int64],
         *,
-        min_speed: float,
-        min_curvature: float,
-        up: tuple[float, float, float] | None = None,
-        outputs: list[str] | None = None,
+        options: dict[str, Any] | None = None,
     ) -> dict[str, Any]: ...
     def evaluate(
         self, t: npt.NDArray[np.float64], query_offsets: npt.NDArray[np.int64], nu: int

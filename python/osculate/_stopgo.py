@@ -88,7 +88,7 @@ def refit_moving(
         sub_opts = copy.copy(opts)
         sub_opts.weights = g.to_kernel(np.asarray(opts.weights, dtype=np.float64))[rows]
     fitted = fit_core(sub_opts, sub, t[rows], x[rows], uncertainty=kind)
-    part = call_kernel(sub, fitted.kinematics, **options)
+    part = call_kernel(sub, fitted.kinematics, options=options)
     s_before = raw["arclength"].copy() if "arclength" in raw else None
     for name, a in part.items():
         if name == "se":

@@ -11,6 +11,7 @@ import numpy as np
 import numpy.typing as npt
 
 from . import _core
+from ._columns import require_pandas
 from ._estimators import EstimatorOptions, fit_core
 from ._stopgo import hold_stops, refit_moving, stop_rows
 from ._validate import (
@@ -214,7 +215,7 @@ class Kinematics:
         Vector components are suffixed ``_x``, ``_y`` (and ``_z``); ``index`` defaults to the row
         number.
         """
-        pd = _require_pandas()
+        pd = require_pandas()
         cols: dict[str, Any] = {}
         if self.tracks is not None:
             cols["track"] = self.tracks
@@ -249,7 +250,7 @@ class Kinematics:
         measured positions; whether a road, rail, ride or vehicle is acceptable is decided by
         local codes and licensed engineers.
         """
-        pd = _require_pandas()
+        pd = require_pandas()
         data = self.summary_arrays()
         labels = data.pop("track")
         return pd.DataFrame(data, index=pd.Index(labels, name="track"))
@@ -468,16 +469,6 @@ class Derivatives(NamedTuple):
     acceleration: F64
     jerk: F64
     flags: npt.NDArray[np.uint8]
-
-
-def _require_pandas() -> Any:
-    try:
-        import pandas as pd
-    except ImportError as exc:  # pragma: no cover - depends on the environment
-        raise ImportError(
-            "this needs pandas; install it with: pip install 'osculate[pandas]'"
-        ) from exc
-    return pd
 
 
 def up_vector(up: Any, dim: int) -> tuple[float, float, float] | None:
@@ -778,11 +769,13 @@ def kinematics(
     }
     tk, xk = kernel_times(t, tt, g)[0], g.to_kernel(x)
     if method == "fd":
-        raw = call_kernel(g, _core.fd_kinematics, tk, xk, g.offsets, order=opts.order, **options)
+        raw = call_kernel(
+            g, _core.fd_kinematics, tk, xk, g.offsets, order=opts.order, options=options
+        )
         info = {"noise": raw["noise"]}
     else:
         fitted = fit_core(opts, g, tk, xk, uncertainty=kind)
-        raw = call_kernel(g, fitted.kinematics, **options)
+        raw = call_kernel(g, fitted.kinematics, options=options)
         info = fitted.info()
     check_tracks(tk, xk, g.offsets, g.labels, raw["flags"], raw["noise"], method)
     first, last, code = _find_stops(raw, tk, xk, g, min_stop)

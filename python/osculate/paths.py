@@ -147,10 +147,12 @@ class Path:
             self._fitted.kinematics_at,
             tk,
             g.offsets,
-            min_speed=as_real("min_speed", min_speed),
-            min_curvature=as_real("min_curvature", min_curvature),
-            up=up_vector(up, self.dim),
-            outputs=[*OUTPUTS, "position"],
+            options={
+                "min_speed": as_real("min_speed", min_speed),
+                "min_curvature": as_real("min_curvature", min_curvature),
+                "up": up_vector(up, self.dim),
+                "outputs": [*OUTPUTS, "position"],
+            },
         )
         pos = g.to_caller(raw.pop("position"))
         return assemble(tq, pos, g, raw, self._opts, self.fit_info, grouped=track is not None)

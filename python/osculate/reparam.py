@@ -66,9 +66,9 @@ class Resampled:
         Columns ``track`` (several tracks only), ``s``, ``t``, ``x``, ``y`` (and ``z``), then the
         extra columns.
         """
-        from .intrinsic import _require_pandas
+        from ._columns import require_pandas
 
-        pd = _require_pandas()
+        pd = require_pandas()
         cols: dict[str, Any] = {}
         if self.tracks is not None:
             cols["track"] = self.tracks

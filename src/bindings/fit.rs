@@ -1,7 +1,7 @@
 //! Bindings of fitted paths: spline, smoothing spline and local-polynomial estimators.
 
 use super::error::{contiguous, detached, rows};
-use super::kinematics::{options, significance, to_dict};
+use super::kinematics::{kinematics_options, to_dict};
 use crate::diff::FdOrder;
 use crate::fit::{fit_batch, Fits, Method, MethodOptions};
 use crate::kinematics::{of_fits, of_fits_at, Options};
@@ -88,63 +88,36 @@ impl FittedPaths {
         self.fits.dim
     }
 
-    /// Kinematics at the fitted samples, on the rows of the fit.
-    #[pyo3(signature = (*, min_speed, min_curvature, gap_factor, up=None, uncertainty=false,
-        auto_speed=false, auto_curvature=false, significance=3.0, max_relative_se=0.25,
-        outputs=None))]
-    #[allow(clippy::too_many_arguments)]
+    /// Kinematics at the fitted samples, on the rows of the fit (`options` as in
+    /// `kinematics_options`).
+    #[pyo3(signature = (*, options=None))]
     fn kinematics<'py>(
         &self,
         py: Python<'py>,
-        min_speed: f64,
-        min_curvature: f64,
-        gap_factor: f64,
-        up: Option<[f64; 3]>,
-        uncertainty: bool,
-        auto_speed: bool,
-        auto_curvature: bool,
-        significance: f64,
-        max_relative_se: f64,
-        outputs: Option<Vec<String>>,
+        options: Option<Bound<'py, PyDict>>,
     ) -> PyResult<Bound<'py, PyDict>> {
-        let want = detached(py, || super::kinematics::outputs(outputs))?;
-        let opts = Options {
-            uncertainty,
-            outputs: want,
-            significance: self::significance(
-                auto_speed,
-                auto_curvature,
-                significance,
-                max_relative_se,
-            ),
-            ..options(FdOrder::Two, min_speed, min_curvature, gap_factor, up)
-        };
+        let opts = kinematics_options(py, options.as_ref(), FdOrder::Two)?;
         let k = detached(py, || of_fits(&self.fits, &opts))?;
-        to_dict(py, k, want)
+        to_dict(py, k, opts.outputs)
     }
 
-    /// Kinematics at times `t` grouped by track with `query_offsets`.
-    #[pyo3(signature = (t, query_offsets, *, min_speed, min_curvature, up=None, outputs=None))]
-    #[allow(clippy::too_many_arguments)]
+    /// Kinematics at times `t` grouped by track with `query_offsets` (no gap flags).
+    #[pyo3(signature = (t, query_offsets, *, options=None))]
     fn kinematics_at<'py>(
         &self,
         py: Python<'py>,
         t: PyReadonlyArray1<'py, f64>,
         query_offsets: PyReadonlyArray1<'py, i64>,
-        min_speed: f64,
-        min_curvature: f64,
-        up: Option<[f64; 3]>,
-        outputs: Option<Vec<String>>,
+        options: Option<Bound<'py, PyDict>>,
     ) -> PyResult<Bound<'py, PyDict>> {
         let t = contiguous("t", t.as_slice())?;
         let q = contiguous("query_offsets", query_offsets.as_slice())?;
-        let want = detached(py, || super::kinematics::outputs(outputs))?;
         let opts = Options {
-            outputs: want,
-            ..options(FdOrder::Two, min_speed, min_curvature, f64::INFINITY, up)
+            gap_factor: f64::INFINITY,
+            ..kinematics_options(py, options.as_ref(), FdOrder::Two)?
         };
         let k = detached(py, || of_fits_at(&self.fits, t, q, &opts))?;
-        to_dict(py, k, want)
+        to_dict(py, k, opts.outputs)
     }
 
     /// Derivative `nu` (0 to 3) of every track at times `t` grouped with `query_offsets`.

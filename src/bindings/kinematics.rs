@@ -2,11 +2,10 @@
 
 use super::error::{contiguous, detached, rows};
 use crate::diff::FdOrder;
-use crate::frame::Thresholds;
 use crate::kinematics::{kinematics, Kinematics, Options, Outputs};
-use crate::uncertainty::Significance;
 use crate::KernelError;
 use numpy::{IntoPyArray, PyArray1, PyReadonlyArray1, PyReadonlyArray2, PyUntypedArrayMethods};
+use pyo3::exceptions::PyTypeError;
 use pyo3::prelude::*;
 use pyo3::types::PyDict;
 
@@ -90,72 +89,62 @@ pub(crate) fn to_dict(
     Ok(out)
 }
 
-/// The set of outputs named by the caller (None: every quantity).
-pub(crate) fn outputs(names: Option<Vec<String>>) -> crate::Result<Outputs> {
-    match names {
-        None => Ok(Outputs::ALL),
-        Some(v) => Outputs::from_names(v.iter().map(String::as_str)),
-    }
-}
-
-/// Kinematics options from the keyword arguments every kinematics binding takes (no standard
-/// errors, absolute thresholds only).
-pub(crate) fn options(
+/// The kinematics options from the dictionary every kinematics binding takes (`options=`): the
+/// one place where they are converted from Python objects. Missing keys keep the kernel's
+/// defaults; an unknown key is a TypeError (a misspelt option must not pass silently). Ranges
+/// are the kernel's to check.
+pub(crate) fn kinematics_options(
+    py: Python<'_>,
+    options: Option<&Bound<'_, PyDict>>,
     order: FdOrder,
-    min_speed: f64,
-    min_curvature: f64,
-    gap_factor: f64,
-    up: Option<[f64; 3]>,
-) -> Options {
-    Options {
+) -> PyResult<Options> {
+    let mut o = Options {
         order,
-        thresholds: Thresholds {
-            min_speed,
-            min_curvature,
-        },
-        gap_factor,
-        up,
         ..Options::default()
+    };
+    let Some(d) = options else {
+        return Ok(o);
+    };
+    for (key, value) in d.iter() {
+        let key: String = key.extract()?;
+        match key.as_str() {
+            "min_speed" => o.thresholds.min_speed = value.extract()?,
+            "min_curvature" => o.thresholds.min_curvature = value.extract()?,
+            "gap_factor" => o.gap_factor = value.extract()?,
+            "up" => o.up = value.extract()?,
+            "uncertainty" => o.uncertainty = value.extract()?,
+            "auto_speed" => o.significance.speed = value.extract()?,
+            "auto_curvature" => o.significance.curvature = value.extract()?,
+            "significance" => o.significance.z = value.extract()?,
+            "max_relative_se" => o.significance.max_relative = value.extract()?,
+            "outputs" => {
+                let names: Option<Vec<String>> = value.extract()?;
+                o.outputs = match names {
+                    None => Outputs::ALL,
+                    Some(v) => detached(py, || Outputs::from_names(v.iter().map(String::as_str)))?,
+                };
+            }
+            other => {
+                return Err(PyTypeError::new_err(format!(
+                    "unknown kinematics option {other:?}"
+                )))
+            }
+        }
     }
+    Ok(o)
 }
 
-/// The noise-aware flag options from their keyword arguments.
-pub(crate) fn significance(
-    speed: bool,
-    curvature: bool,
-    z: f64,
-    max_relative: f64,
-) -> Significance {
-    Significance {
-        speed,
-        curvature,
-        z,
-        max_relative,
-    }
-}
-
-/// Finite-difference kinematics of concatenated tracks (validated arrays from the Python layer).
+/// Finite-difference kinematics of concatenated tracks (validated arrays from the Python layer;
+/// `options` as in [`kinematics_options`]).
 #[pyfunction]
-#[pyo3(signature = (t, positions, offsets, *, order, min_speed, min_curvature, gap_factor, up=None,
-    uncertainty=false, auto_speed=false, auto_curvature=false, significance=3.0,
-    max_relative_se=0.25, outputs=None))]
-#[allow(clippy::too_many_arguments)]
+#[pyo3(signature = (t, positions, offsets, *, order, options=None))]
 pub fn fd_kinematics<'py>(
     py: Python<'py>,
     t: PyReadonlyArray1<'py, f64>,
     positions: PyReadonlyArray2<'py, f64>,
     offsets: PyReadonlyArray1<'py, i64>,
     order: i64,
-    min_speed: f64,
-    min_curvature: f64,
-    gap_factor: f64,
-    up: Option<[f64; 3]>,
-    uncertainty: bool,
-    auto_speed: bool,
-    auto_curvature: bool,
-    significance: f64,
-    max_relative_se: f64,
-    outputs: Option<Vec<String>>,
+    options: Option<Bound<'py, PyDict>>,
 ) -> PyResult<Bound<'py, PyDict>> {
     let dim = positions.shape()[1];
     let (t, x, off) = (
@@ -163,26 +152,15 @@ pub fn fd_kinematics<'py>(
         contiguous("positions", positions.as_slice())?,
         contiguous("offsets", offsets.as_slice())?,
     );
-    let want = detached(py, || self::outputs(outputs))?;
-    let result = detached(py, || {
-        let order = FdOrder::from_int(order).ok_or_else(|| KernelError::Option {
+    let order = detached(py, || {
+        FdOrder::from_int(order).ok_or_else(|| KernelError::Option {
             argument: "order",
             detail: format!("must be 2 or 4, got {order}"),
-        })?;
-        let opts = Options {
-            uncertainty,
-            outputs: want,
-            significance: self::significance(
-                auto_speed,
-                auto_curvature,
-                significance,
-                max_relative_se,
-            ),
-            ..options(order, min_speed, min_curvature, gap_factor, up)
-        };
-        kinematics(t, x, dim, off, &opts)
+        })
     })?;
-    to_dict(py, result, want)
+    let opts = kinematics_options(py, options.as_ref(), order)?;
+    let result = detached(py, || kinematics(t, x, dim, off, &opts))?;
+    to_dict(py, result, opts.outputs)
 }
 
 /// Cumulative polyline length per track, after checking the times.
