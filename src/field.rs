@@ -32,7 +32,7 @@ impl Outside {
             "clamp" => Ok(Outside::Clamp),
             other => Err(KernelError::Option {
                 argument: "outside",
-                detail: format!("expected \"error\", \"nan\" or \"clamp\", got {other:?}"),
+                detail: format!("expected one of ('error', 'nan', 'clamp'), got '{other}'"),
             }),
         }
     }

@@ -20,7 +20,8 @@ from .intrinsic import (
     frames,
     kinematics,
 )
-from .lineint import GridField, LineIntegral, line_integral, power, work
+from .field import GridField
+from .lineint import LineIntegral, line_integral, power, work
 from .paths import Path, fit
 from .reparam import Resampled, resample
 from .stops import Stops

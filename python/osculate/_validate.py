@@ -18,6 +18,7 @@ __all__ = [
     "as_int",
     "as_positions",
     "as_real",
+    "as_real_array",
     "as_times",
     "call_kernel",
     "group_rows",
@@ -67,6 +68,11 @@ def _real(name: str, value: Any) -> F64:
         }.get(kind, str(arr.dtype))
         raise TypeError(f"{name}: expected real numbers, got {what} array (dtype {arr.dtype})")
     return np.ascontiguousarray(arr, dtype=np.float64)
+
+
+def as_real_array(name: str, value: Any) -> F64:
+    """Return ``value`` as a contiguous float64 array; TypeError naming it unless real."""
+    return _real(name, value)
 
 
 def as_real(name: str, value: Any) -> float:
@@ -332,17 +338,27 @@ def _factorize_objects(ids: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     return labels, np.asarray(codes, dtype=np.intp)
 
 
-def call_kernel(grouping: Grouping, fn: Callable[..., T], *args: Any, **kwargs: Any) -> T:
-    """Call a kernel; re-word its errors with the caller's track labels and rows."""
+def call_kernel(
+    grouping: Grouping | None, fn: Callable[..., T], *args: Any, **kwargs: Any
+) -> T:
+    """Call a kernel; re-word its errors with the caller's track labels and rows.
+
+    With ``grouping`` None the kernel's rows are the caller's and there are no tracks: a row
+    error is worded ``"argument: row R: ..."``.
+    """
     try:
         return fn(*args, **kwargs)
     except InputError as err:
         track = getattr(err, "track", None)
-        if track is None:
+        row = getattr(err, "row", None)
+        if grouping is None and row is not None:
+            new = InputError(f"{err.argument}: row {row}: {err.detail}")
+            new.argument, new.track, new.row, new.detail = err.argument, None, row, err.detail
+            raise new from None
+        if track is None or grouping is None:
             raise
         label = plain(grouping.labels[track]) if track < len(grouping.labels) else track
         where = f"track {label!r}"
-        row = getattr(err, "row", None)
         if row is not None:
             where += f", row {grouping.caller_row(row)}"
         new = InputError(f"{err.argument}: {where}: {err.detail}")
