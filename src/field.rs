@@ -200,7 +200,11 @@ impl<'a> GridField<'a> {
     /// time), so that the loops unroll. The cell of each axis is the floor of the clamped
     /// coordinate (`u as usize` for u ≥ 0), the last cell on the upper face.
     #[inline(always)]
-    fn eval_in<const N: usize, const C: usize>(&self, p: &[f64], out: &mut [f64]) -> bool {
+    pub(crate) fn eval_in<const N: usize, const C: usize>(
+        &self,
+        p: &[f64],
+        out: &mut [f64],
+    ) -> bool {
         let (mut index, mut frac) = ([0usize; N], [0.0; N]);
         for a in 0..N {
             let top = (self.shape[a] - 1) as f64;

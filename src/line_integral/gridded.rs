@@ -4,7 +4,7 @@
 use super::driver::{
     check_positions, checked_offsets, finite_row, integrate, Integral, Pair, Segments,
 };
-use super::options::{Kind, NodeRule, Options};
+use super::options::{Kind, NodeRule, Options, MAX_NODES};
 use crate::error::{KernelError, Result};
 use crate::field::GridField;
 use std::ops::Range;
@@ -68,10 +68,83 @@ struct Gridded<'a> {
     argument: &'static str,
 }
 
+impl Gridded<'_> {
+    /// The sums of [`Segments::segment`] over the segments between consecutive rows of
+    /// `first..end`, monomorphized on `N` coordinates and `C` values per node (1: a scalar
+    /// integral), with the same arithmetic in the same order. None at the first node that cannot
+    /// be evaluated (a non-finite row, or a point outside under "error"): the row-by-row loop
+    /// then skips or reports it. So a result proves every row usable.
+    fn sweep<const N: usize, const C: usize>(&self, first: usize, end: usize) -> Option<Pair> {
+        let rule = self.line.rule;
+        let q = rule.len();
+        let has_comp = !rule.companion.is_empty();
+        let (mut a, mut wm, mut wc) = (
+            [0.0; 2 * MAX_NODES],
+            [0.0; 2 * MAX_NODES],
+            [0.0; 2 * MAX_NODES],
+        );
+        for j in 0..q {
+            a[j] = 0.5 * (1.0 + rule.xi[j]);
+            wm[j] = 0.5 * rule.main[j];
+            if has_comp {
+                wc[j] = 0.5 * rule.companion[j];
+            }
+        }
+        let x = self.line.x;
+        let (mut main, mut comp) = (0.0, 0.0);
+        let (mut pt, mut v) = ([0.0; N], [0.0; C]);
+        for i in first..end - 1 {
+            let (xp, xr) = (&x[i * N..(i + 1) * N], &x[(i + 1) * N..(i + 2) * N]);
+            let mut dx = [0.0; N];
+            for c in 0..N {
+                dx[c] = xr[c] - xp[c];
+            }
+            let len = if C == 1 {
+                dx.iter().map(|v| v * v).sum::<f64>().sqrt()
+            } else {
+                0.0
+            };
+            let (mut sm, mut sc) = (0.0, 0.0);
+            for j in 0..q {
+                for c in 0..N {
+                    pt[c] = xp[c] + a[j] * (xr[c] - xp[c]);
+                }
+                if !self.field.eval_in::<N, C>(&pt, &mut v) {
+                    return None;
+                }
+                let g = if C == 1 {
+                    v[0] * len
+                } else {
+                    (0..N).map(|c| v[c] * dx[c]).sum::<f64>()
+                };
+                sm += wm[j] * g;
+                if has_comp {
+                    sc += wc[j] * g;
+                }
+            }
+            main += sm;
+            comp += sc;
+        }
+        Some((main, comp))
+    }
+}
+
 impl Segments for Gridded<'_> {
     #[inline]
     fn usable(&self, row: usize) -> bool {
         finite_row(self.line.x, self.line.dim, row)
+    }
+
+    fn run(&self, _rows: &Range<usize>, first: usize, end: usize) -> Option<Pair> {
+        if end - first < 2 {
+            return None; // no segment shows whether the row is usable
+        }
+        match (self.line.dim, self.line.kind) {
+            (3, Kind::Work) => self.sweep::<3, 3>(first, end),
+            (3, Kind::Scalar) => self.sweep::<3, 1>(first, end),
+            (_, Kind::Work) => self.sweep::<2, 2>(first, end),
+            (_, Kind::Scalar) => self.sweep::<2, 1>(first, end),
+        }
     }
 
     fn segment(

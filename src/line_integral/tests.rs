@@ -385,6 +385,24 @@ fn fast_path_is_bitwise_the_generic_sum() {
                 }
             }
         }
+        // The gridded sweep against its row-by-row loop too.
+        let v: Vec<f64> = (0..4 * 4 * 4 * 3)
+            .map(|i| (0.37 * i as f64).sin())
+            .collect();
+        let grid = GridField::new(&v, &[4, 4, 4], 3, &[-300.0; 3], &[200.0; 3], Outside::Error);
+        let grid = grid.unwrap();
+        for estimate in [false, true] {
+            let o = |cumulative| Options {
+                estimate,
+                nodes: 3,
+                ..opts(Kind::Work, false, cumulative)
+            };
+            let fast = gridded(&x, 3, &off, None, &grid, &o(false)).unwrap();
+            let slow = gridded(&x, 3, &off, None, &grid, &o(true)).unwrap();
+            let bits = |v: &[f64]| v.iter().map(|e| e.to_bits()).collect::<Vec<_>>();
+            assert_eq!(bits(&fast.total), bits(&slow.total));
+            assert_eq!(bits(&fast.error), bits(&slow.error));
+        }
         if round == 0 {
             x[3 * (batch::CHUNK + 5)] = f64::NAN; // a job with a skipped row
         } else {
