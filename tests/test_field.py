@@ -25,7 +25,9 @@ def test_one_class_under_three_names():
 
 def test_point_errors_name_the_callers_row_and_no_track():
     g = osc.GridField(np.zeros((3, 3)), origin=(0, 0), spacing=1.0)
-    with pytest.raises(osc.InputError, match=r"^points: row 2: point \[5\.0, 0\.0\] is outside") as e:
+    with pytest.raises(
+        osc.InputError, match=r"^points: row 2: point \[5\.0, 0\.0\] is outside"
+    ) as e:
         g([[0.5, 0.5], [1.0, 1.0], [5.0, 0.0]])
     assert (e.value.argument, e.value.track, e.value.row) == ("points", None, 2)
 
@@ -33,7 +35,11 @@ def test_point_errors_name_the_callers_row_and_no_track():
 @pytest.mark.parametrize(
     "outside, exc, msg",
     [
-        ("wrap", osc.InputError, r"outside: expected one of \('error', 'nan', 'clamp'\), got 'wrap'"),
+        (
+            "wrap",
+            osc.InputError,
+            r"outside: expected one of \('error', 'nan', 'clamp'\), got 'wrap'",
+        ),
         (None, TypeError, r"outside: expected a string"),
     ],
 )

@@ -746,9 +746,7 @@ def gill_miller_numpy(x, f):
             others = [m for m in range(4) if m != j]
             den = np.prod([U[:, j] - U[:, m] for m in others], axis=0)
             lj = np.prod([e[:, m] for m in others], axis=0) / den
-            dlj = sum(
-                np.prod([e[:, k] for k in others if k != m], axis=0) for m in others
-            ) / den
+            dlj = sum(np.prod([e[:, k] for k in others if k != m], axis=0) for m in others) / den
             value += lj[:, None] * f[idx[:, j]]
             slope += dlj[:, None] * x[idx[:, j]]
         total += w * float(np.sum(h * np.einsum("ij,ij->i", value, slope)))

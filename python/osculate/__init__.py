@@ -9,6 +9,7 @@ from __future__ import annotations
 from ._core import InputError, __version__
 from .diagnose import SuspectDataWarning
 from .elements import Elements, elements
+from .field import GridField
 from .flags import Flag
 from .geodesy import enu_to_geodetic, geodetic_to_enu
 from .intrinsic import (
@@ -20,7 +21,6 @@ from .intrinsic import (
     frames,
     kinematics,
 )
-from .field import GridField
 from .lineint import LineIntegral, line_integral, power, work
 from .paths import Path, fit
 from .reparam import Resampled, resample

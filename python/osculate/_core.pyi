@@ -21,6 +21,7 @@ __all__ = [
     "line_integral_grid",
     "line_integral_sampled",
     "line_integral_values",
+    "line_power",
     "polyline_arclength",
     "rotation_minimizing",
     "segment_nodes",

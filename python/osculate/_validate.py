@@ -338,9 +338,7 @@ def _factorize_objects(ids: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     return labels, np.asarray(codes, dtype=np.intp)
 
 
-def call_kernel(
-    grouping: Grouping | None, fn: Callable[..., T], *args: Any, **kwargs: Any
-) -> T:
+def call_kernel(grouping: Grouping | None, fn: Callable[..., T], *args: Any, **kwargs: Any) -> T:
     """Call a kernel; re-word its errors with the caller's track labels and rows.
 
     With ``grouping`` None the kernel's rows are the caller's and there are no tracks: a row
