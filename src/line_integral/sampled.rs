@@ -273,14 +273,27 @@ fn trapezoid_term<const D: usize>(x: &[f64], f: &[f64]) -> f64 {
         .sum::<f64>()
 }
 
+/// a·b in coordinate order.
+#[inline(always)]
+fn dot<const D: usize>(a: &[f64; D], b: &[f64; D]) -> f64 {
+    let mut s = a[0] * b[0];
+    for c in 1..D {
+        s += a[c] * b[c];
+    }
+    s
+}
+
+/// dⱼ·eₖ − dₖ·eⱼ of two steps (the cⱼₖ of the module docs).
+#[inline(always)]
+fn wedge<const D: usize>(dj: &[f64; D], ej: &[f64; D], dk: &[f64; D], ek: &[f64; D]) -> f64 {
+    dot(dj, ek) - dot(dk, ej)
+}
+
 /// The cubic rule minus the trapezoid rule on the middle step of a centred stencil of three
-/// steps (parameter steps `h`, divided differences `d` of the values and `e` of the path): the
+/// steps (parameter steps `h`, and the wedges c₀₁, c₁₂, c₀₂ of their divided differences): the
 /// correction of the module docs; work integrals only.
 #[inline(always)]
-fn centred<const D: usize>(h: [f64; 3], d: [&[f64; D]; 3], e: [&[f64; D]; 3]) -> f64 {
-    let dot = |a: &[f64; D], b: &[f64; D]| (0..D).map(|c| a[c] * b[c]).sum::<f64>();
-    let wedge = |j: usize, k: usize| dot(d[j], e[k]) - dot(d[k], e[j]);
-    let (c01, c12, c02) = (wedge(0, 1), wedge(1, 2), wedge(0, 2));
+fn centred(h: [f64; 3], c01: f64, c12: f64, c02: f64) -> f64 {
     let (h0, h1, h2) = (h[0], h[1], h[2]);
     let (s01, s12) = (h0 + h1, h1 + h2);
     let big = s01 + h2;
@@ -324,8 +337,9 @@ impl Sampled<'_> {
     fn centred_at<const D: usize>(&self, nodes: [usize; 4]) -> f64 {
         let [a, p, r, b] = nodes;
         let s = [self.slope::<D>(a, p), self.slope(p, r), self.slope(r, b)];
+        let w = |j: usize, k: usize| wedge(&s[j].d, &s[j].e, &s[k].d, &s[k].e);
         let h = [s[0].h, s[1].h, s[2].h];
-        self.trapezoid(p, r) + centred(h, [&s[0].d, &s[1].d, &s[2].d], [&s[0].e, &s[1].e, &s[2].e])
+        self.trapezoid(p, r) + centred(h, w(0, 1), w(1, 2), w(0, 2))
     }
 
     /// Σ trapezoid and Σ cubic over the segments between consecutive rows of `first..end` (work
@@ -345,6 +359,7 @@ impl Sampled<'_> {
         let mut e = [[0.0; D]; BLOCK + 2];
         let mut tr = [0.0; BLOCK];
         let mut corr = [0.0; BLOCK];
+        let mut cw = [0.0; BLOCK + 1];
         let mut i0 = first;
         while i0 + 1 < end {
             let nb = (end - 1 - i0).min(BLOCK);
@@ -384,29 +399,44 @@ impl Sampled<'_> {
                     e[k][c] *= inv;
                 }
             }
+            // The wedge of each pair of consecutive steps serves two segments.
+            for k in 0..nb + 1 {
+                cw[k] = wedge(&d[k], &e[k], &d[k + 1], &e[k + 1]);
+            }
             for k in 0..nb {
                 let i = i0 + k;
                 tr[k] =
                     trapezoid_term::<D>(&self.x[i * D..(i + 2) * D], &self.f[i * D..(i + 2) * D]);
-                corr[k] = centred(
-                    [h[k], h[k + 1], h[k + 2]],
-                    [&d[k], &d[k + 1], &d[k + 2]],
-                    [&e[k], &e[k + 1], &e[k + 2]],
-                );
+                let c02 = wedge(&d[k], &e[k], &d[k + 2], &e[k + 2]);
+                corr[k] = centred([h[k], h[k + 1], h[k + 2]], cw[k], cw[k + 1], c02);
             }
-            for k in 0..nb {
-                let i = i0 + k;
-                let centred_ok = i > lo
-                    && i + 2 < hi
-                    && (i > first || self.usable(i - 1))
-                    && (i + 2 < end || self.usable(i + 2))
-                    && !(chord && (h[k] == 0.0 || h[k + 1] == 0.0 || h[k + 2] == 0.0));
-                trap += tr[k];
-                cub += if centred_ok {
-                    tr[k] + corr[k]
-                } else {
-                    self.cubic(rows, i, i + 1)
-                };
+            let nonzero = !chord || h[..nb + 2].iter().all(|&v| v != 0.0);
+            if nonzero
+                && i0 > lo
+                && i0 + nb + 1 < hi
+                && self.usable(i0 - 1)
+                && (i0 + nb + 1 < end || self.usable(i0 + nb + 1))
+            {
+                // Every segment of the block has its centred stencil.
+                for k in 0..nb {
+                    trap += tr[k];
+                    cub += tr[k] + corr[k];
+                }
+            } else {
+                for k in 0..nb {
+                    let i = i0 + k;
+                    let centred_ok = i > lo
+                        && i + 2 < hi
+                        && (i > first || self.usable(i - 1))
+                        && (i + 2 < end || self.usable(i + 2))
+                        && !(chord && (h[k] == 0.0 || h[k + 1] == 0.0 || h[k + 2] == 0.0));
+                    trap += tr[k];
+                    cub += if centred_ok {
+                        tr[k] + corr[k]
+                    } else {
+                        self.cubic(rows, i, i + 1)
+                    };
+                }
             }
             i0 += nb;
         }
