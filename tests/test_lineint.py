@@ -562,6 +562,7 @@ BAD = [
     ),
     ("nodes 0", lambda: osc.work(X5, GRID3, nodes=0), osc.InputError, r"nodes: must be 1 to 5"),
     ("nodes 6", lambda: osc.work(X5, np.sin, nodes=6), osc.InputError, r"nodes: must be 1 to 5"),
+    ("nodes 1e30", lambda: osc.work(X5, np.sin, nodes=10**30), osc.InputError, r"nodes: 10+ is"),
     (
         "nodes float",
         lambda: osc.work(X5, GRID3, nodes=2.0),

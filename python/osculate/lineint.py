@@ -134,6 +134,8 @@ def _integrate(
         isinstance(nodes, (bool, np.bool_)) or not isinstance(nodes, (int, np.integer))
     ):
         raise TypeError(f"nodes: expected an integer, got {nodes!r}")
+    if nodes is not None and not -(2**63) <= int(nodes) < 2**63:  # beyond the kernel's int64
+        raise _core.InputError(f"nodes: {int(nodes)} is out of range")
     opts = {
         "rule": rule,
         "nodes": None if nodes is None else int(nodes),
