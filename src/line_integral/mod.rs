@@ -22,8 +22,9 @@
 //! run in parallel; cumulative sums are stitched per track afterwards.
 //!
 //! Files: `options` (kinds, rules, the checked options, the node rule), `driver` (jobs, sums,
-//! stitching), `sampled` (trapezoid and cubic rules), `gridded` (grid fields on straight
-//! segments), `nodes` (the callable protocol), `power` (F·v).
+//! stitching), `sampled` (trapezoid and cubic rules, the streaming sweep of both; its internal
+//! tests in `sampled_tests`), `gridded` (grid fields on straight segments), `nodes` (the
+//! callable protocol), `power` (F·v), `tests`.
 
 mod driver;
 mod gridded;

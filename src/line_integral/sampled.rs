@@ -264,15 +264,6 @@ fn norm2<const D: usize>(v: &[f64; D]) -> f64 {
     s
 }
 
-/// The trapezoid term (F₀ + F₁)/2 · (r₁ − r₀) of the two rows starting at `x` and `f`, in the
-/// arithmetic of [`Sampled::trapezoid`].
-#[inline(always)]
-fn trapezoid_term<const D: usize>(x: &[f64], f: &[f64]) -> f64 {
-    (0..D)
-        .map(|c| 0.5 * (f[c] + f[D + c]) * (x[D + c] - x[c]))
-        .sum::<f64>()
-}
-
 /// a·b in coordinate order.
 #[inline(always)]
 fn dot<const D: usize>(a: &[f64; D], b: &[f64; D]) -> f64 {
@@ -344,74 +335,95 @@ impl Sampled<'_> {
 
     /// Σ trapezoid and Σ cubic over the segments between consecutive rows of `first..end` (work
     /// integrals, every row assumed usable: a non-finite row makes the trapezoid sum non-finite).
-    /// Blocks of [`BLOCK`] segments: the steps' divided differences, then the trapezoid terms and
-    /// centred corrections, in loops over arrays (which the compiler vectorizes), then the sums
+    /// Blocks of [`BLOCK`] segments: the block's rows are copied coordinate by coordinate, then
+    /// the steps' divided differences, the wedges, the trapezoid terms and the centred
+    /// corrections are loops over arrays (which the compiler vectorizes), then the sums follow
     /// in row order. Segments whose stencil is not the centred one of consecutive rows (track
     /// ends, a skipped neighbour, a repeated point under the chord-length parameter) take
     /// [`Sampled::cubic`]. Bitwise the same sums as the row-by-row loop: the same operations on
     /// the same values.
     #[inline(always)]
     fn streamed<const D: usize>(&self, rows: &Range<usize>, first: usize, end: usize) -> Pair {
+        const R: usize = BLOCK + 3; // rows i0 − 1 ..= i0 + nb + 1
+        const S: usize = BLOCK + 2; // steps between them
         let (lo, hi) = (rows.start, rows.end);
         let chord = self.t.is_none();
         let (mut trap, mut cub) = (0.0, 0.0);
-        let mut h = [0.0; BLOCK + 2];
-        let mut d = [[0.0; D]; BLOCK + 2];
-        let mut e = [[0.0; D]; BLOCK + 2];
-        let mut tr = [0.0; BLOCK];
-        let mut corr = [0.0; BLOCK];
-        let mut cw = [0.0; BLOCK + 1];
+        let (mut xs, mut fs, mut ts) = ([[0.0; R]; D], [[0.0; R]; D], [0.0; R]);
+        let (mut d, mut e, mut h) = ([[0.0; S]; D], [[0.0; S]; D], [0.0; S]);
+        let (mut cw, mut c02) = ([0.0; S], [0.0; BLOCK]);
+        let (mut tr, mut corr) = ([0.0; BLOCK], [0.0; BLOCK]);
         let mut i0 = first;
         while i0 + 1 < end {
             let nb = (end - 1 - i0).min(BLOCK);
-            // Steps j = i0 − 1 + k (NaN where the track has no such step).
-            for k in 0..nb + 2 {
-                let j = (i0 + k).wrapping_sub(1);
-                if j >= lo && j < hi - 1 {
-                    let (xa, xb) = (
-                        &self.x[j * D..(j + 1) * D],
-                        &self.x[(j + 1) * D..(j + 2) * D],
-                    );
-                    let (fa, fb) = (
-                        &self.f[j * D..(j + 1) * D],
-                        &self.f[(j + 1) * D..(j + 2) * D],
-                    );
-                    for c in 0..D {
-                        e[k][c] = xb[c] - xa[c];
-                        d[k][c] = fb[c] - fa[c];
-                    }
-                    h[k] = match self.t {
-                        Some(t) => t[j + 1] - t[j],
-                        None => norm2(&e[k]),
+            let (nr, ns) = (nb + 3, nb + 2);
+            // Rows i0 − 1 + m, NaN outside the track (so are the steps that touch them).
+            for m in 0..nr {
+                let row = (i0 + m).wrapping_sub(1);
+                let inside = row >= lo && row < hi;
+                for c in 0..D {
+                    xs[c][m] = if inside {
+                        self.x[row * D + c]
+                    } else {
+                        f64::NAN
                     };
-                } else {
-                    (h[k], d[k], e[k]) = (f64::NAN, [f64::NAN; D], [f64::NAN; D]);
+                    fs[c][m] = if inside {
+                        self.f[row * D + c]
+                    } else {
+                        f64::NAN
+                    };
+                }
+                if let Some(t) = self.t {
+                    ts[m] = if inside { t[row] } else { f64::NAN };
+                }
+            }
+            for c in 0..D {
+                for k in 0..ns {
+                    e[c][k] = xs[c][k + 1] - xs[c][k];
+                    d[c][k] = fs[c][k + 1] - fs[c][k];
                 }
             }
             if chord {
-                for v in &mut h[..nb + 2] {
-                    *v = v.sqrt();
+                // norm2 of Sampled::slope, in the same order.
+                for k in 0..ns {
+                    let mut q = e[0][k] * e[0][k];
+                    for ec in e.iter().skip(1) {
+                        q += ec[k] * ec[k];
+                    }
+                    h[k] = q.sqrt();
+                }
+            } else {
+                for k in 0..ns {
+                    h[k] = ts[k + 1] - ts[k];
                 }
             }
-            for k in 0..nb + 2 {
+            for k in 0..ns {
                 let inv = 1.0 / h[k];
                 for c in 0..D {
-                    d[k][c] *= inv;
-                    e[k][c] *= inv;
+                    d[c][k] *= inv;
+                    e[c][k] *= inv;
                 }
             }
+            // dot() of two steps, in the same order.
+            let dot = |a: &[[f64; S]; D], j: usize, b: &[[f64; S]; D], k: usize| {
+                let mut q = a[0][j] * b[0][k];
+                for c in 1..D {
+                    q += a[c][j] * b[c][k];
+                }
+                q
+            };
             // The wedge of each pair of consecutive steps serves two segments.
-            for k in 0..nb + 1 {
-                cw[k] = wedge(&d[k], &e[k], &d[k + 1], &e[k + 1]);
+            for k in 0..ns - 1 {
+                cw[k] = dot(&d, k, &e, k + 1) - dot(&d, k + 1, &e, k);
             }
             for k in 0..nb {
-                let i = i0 + k;
-                tr[k] =
-                    trapezoid_term::<D>(&self.x[i * D..(i + 2) * D], &self.f[i * D..(i + 2) * D]);
-                let c02 = wedge(&d[k], &e[k], &d[k + 2], &e[k + 2]);
-                corr[k] = centred([h[k], h[k + 1], h[k + 2]], cw[k], cw[k + 1], c02);
+                c02[k] = dot(&d, k, &e, k + 2) - dot(&d, k + 2, &e, k);
+                tr[k] = (0..D)
+                    .map(|c| 0.5 * (fs[c][k + 1] + fs[c][k + 2]) * (xs[c][k + 2] - xs[c][k + 1]))
+                    .sum::<f64>();
+                corr[k] = centred([h[k], h[k + 1], h[k + 2]], cw[k], cw[k + 1], c02[k]);
             }
-            let nonzero = !chord || h[..nb + 2].iter().all(|&v| v != 0.0);
+            let nonzero = !chord || h[..ns].iter().all(|&v| v != 0.0);
             if nonzero
                 && i0 > lo
                 && i0 + nb + 1 < hi
@@ -603,99 +615,6 @@ pub fn sampled(
     integrate(&s, n, &off, opts)
 }
 
-/// Σ over the segments of one open track (`n` rows of 3-D work, chord-length parameter) of the
-/// cubic rule in its Lagrange form, segment by segment: the reference of the tests.
 #[cfg(test)]
-pub(super) fn lagrange_cubic_total(x: &[f64], f: &[f64], n: usize) -> f64 {
-    let smp = Sampled {
-        x,
-        f,
-        dim: 3,
-        comps: 3,
-        t: None,
-        rule: Rule::Cubic,
-        kind: Kind::Scalar, // anything but Work: keeps `cubic` on the Lagrange form
-        closed: false,
-        estimate: false,
-    };
-    let rows = 0..n;
-    let mut sum = 0.0;
-    for i in 0..n - 1 {
-        // `cubic` picks the stencil; with kind Scalar it integrates F₀ |r′|, so rebuild the
-        // stencil here and integrate F·r′ with the same nodes.
-        let (k, nodes, at) = smp.stencil_rows(&rows, i, i + 1).expect("4 rows or more");
-        let mut u = [0.0; 4];
-        for j in (0..at).rev() {
-            u[j] = u[j + 1] - smp.du(nodes[j], nodes[j + 1]);
-        }
-        for j in at + 1..k {
-            u[j] = u[j - 1] + smp.du(nodes[j - 1], nodes[j]);
-        }
-        let work = Sampled {
-            kind: Kind::Work,
-            ..smp
-        };
-        sum += match k {
-            4 => work.stencil::<4, 3, 3>(&nodes, &u, at),
-            _ => work.stencil::<3, 3, 3>(&nodes, &u, at),
-        };
-    }
-    sum
-}
-
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn centred_closed_form_is_the_gauss_legendre_lagrange_integral() {
-        // The correction of the module docs plus the trapezoid term against 3-point
-        // Gauss–Legendre on the product of the Lagrange interpolants (exact for degree 5), on
-        // random uneven stencils, chord-length and time parameters: equal to 1e-13 of the
-        // scale |F|·|Δx| of the segment (rounding of a few dozen operations).
-        let mut s = 0x9e37_79b9_7f4a_7c15_u64;
-        let mut next = || {
-            s ^= s << 13;
-            s ^= s >> 7;
-            s ^= s << 17;
-            (s >> 11) as f64 / (1u64 << 53) as f64
-        };
-        for case in 0..200 {
-            let x: Vec<f64> = (0..12).map(|_| 4.0 * next() - 2.0).collect();
-            let f: Vec<f64> = (0..12).map(|_| 10.0 * next() - 5.0).collect();
-            let t: Vec<f64> = (0..4)
-                .scan(0.0, |acc, _| {
-                    *acc += 0.05 + next();
-                    Some(*acc)
-                })
-                .collect();
-            let times = (case % 2 == 0).then_some(&t[..]);
-            let smp = Sampled {
-                x: &x,
-                f: &f,
-                dim: 3,
-                comps: 3,
-                t: times,
-                rule: Rule::Cubic,
-                kind: Kind::Work,
-                closed: false,
-                estimate: true,
-            };
-            let nodes = [0, 1, 2, 3];
-            let mut u = [0.0; 4];
-            u[0] = -smp.du(0, 1);
-            u[2] = smp.du(1, 2);
-            u[3] = u[2] + smp.du(2, 3);
-            let lagrange = smp.stencil::<4, 3, 3>(&nodes, &u, 1);
-            let closed = smp.centred_at::<3>([0, 1, 2, 3]);
-            let scale = 5.0 * 3.0 * dist(smp.xr(1), smp.xr(2)) + 1e-300;
-            assert!(
-                (lagrange - closed).abs() <= 1e-13 * scale,
-                "case {case}: {lagrange} vs {closed}"
-            );
-            // The row-by-row rule takes the closed form on a centred stencil.
-            let rows = 0..4;
-            assert_eq!(smp.cubic(&rows, 1, 2), closed);
-        }
-    }
-}
+#[path = "sampled_tests.rs"]
+pub(super) mod tests;

@@ -436,7 +436,7 @@ fn streaming_estimate_matches_the_lagrange_rule() {
             dx * (0..3).map(|c| f[3 * i + c].abs()).sum::<f64>()
         })
         .sum();
-    let lagrange = super::sampled::lagrange_cubic_total(&x, &f, n);
+    let lagrange = super::sampled::tests::lagrange_cubic_total(&x, &f, n);
     let trap = w.total[0];
     assert!(
         ((trap - lagrange).abs() - w.error[0]).abs() <= 1e-12 * scale,
