@@ -7,6 +7,15 @@ use rayon::prelude::*;
 /// Euclidean length of the difference of two points without spurious over- or underflow: the
 /// plain sum of squares unless it leaves the comfortable range, then rescaled by the largest
 /// component.
+///
+/// # Examples
+///
+/// ```
+/// use osculate::arclength::distance;
+/// assert_eq!(distance(&[0.0, 0.0], &[3.0, 4.0]), 5.0);
+/// // Squares of 3e200 would overflow; the scaled sum does not (closed form 5e200).
+/// assert!((distance(&[0.0, 0.0], &[3e200, 4e200]) / 5e200 - 1.0).abs() < 1e-15);
+/// ```
 #[inline]
 pub fn distance(p: &[f64], q: &[f64]) -> f64 {
     let s2: f64 = p.iter().zip(q).map(|(a, b)| (a - b) * (a - b)).sum();

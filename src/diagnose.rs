@@ -28,7 +28,8 @@ pub struct TrackStats {
     pub speed: Vec<f64>,
     /// Median time step.
     pub dt: Vec<f64>,
-    /// Median |r″| of the estimated accelerations.
+    /// Median |r″| by the 3-point second difference of the positions (what finite differences
+    /// of order 2 estimate in the interior).
     pub accel: Vec<f64>,
 }
 
@@ -37,7 +38,7 @@ fn distance(x: &[f64], dim: usize, i: usize, j: usize) -> f64 {
     crate::arclength::distance(&x[i * dim..(i + 1) * dim], &x[j * dim..(j + 1) * dim])
 }
 
-fn one_track(t: &[f64], x: &[f64], dim: usize, accel: &[f64]) -> Result<[f64; 5]> {
+fn one_track(t: &[f64], x: &[f64], dim: usize) -> Result<[f64; 5]> {
     let n = t.len();
     let stride = n.div_ceil(MAX_ROWS).max(1);
     let finite = |i: usize| x[i * dim..(i + 1) * dim].iter().all(|v| v.is_finite());
@@ -75,19 +76,32 @@ fn one_track(t: &[f64], x: &[f64], dim: usize, accel: &[f64]) -> Result<[f64; 5]
     });
     let dt = fill(&mut |b| b.extend((1..n).step_by(stride).map(|i| t[i] - t[i - 1])));
     let accel = fill(&mut |b| {
-        b.extend(accel.chunks_exact(dim).step_by(stride).map(|a| {
-            let big = a.iter().fold(0.0f64, |m, v| m.max(v.abs()));
-            if big > 0.0 && big.is_finite() {
-                big * a.iter().map(|v| (v / big) * (v / big)).sum::<f64>().sqrt()
-            } else {
-                big
-            }
-        }))
+        b.extend(
+            (1..n.saturating_sub(1))
+                .step_by(stride)
+                .filter(|&i| finite(i - 1) && finite(i) && finite(i + 1))
+                .map(|i| {
+                    let (h1, h2) = (t[i] - t[i - 1], t[i + 1] - t[i]);
+                    let mut a = [0.0; 3];
+                    for c in 0..dim {
+                        let (p, q, r) =
+                            (x[(i - 1) * dim + c], x[i * dim + c], x[(i + 1) * dim + c]);
+                        a[c] = 2.0 * ((r - q) / h2 - (q - p) / h1) / (h1 + h2);
+                    }
+                    let a = &a[..dim];
+                    let big = a.iter().fold(0.0f64, |m, v| m.max(v.abs()));
+                    if big > 0.0 && big.is_finite() {
+                        big * a.iter().map(|v| (v / big) * (v / big)).sum::<f64>().sqrt()
+                    } else {
+                        big
+                    }
+                }),
+        )
     });
     Ok([step, back, speed, dt, accel])
 }
 
-/// The statistics of every track of a batch (`x` and `accel` row-major with `dim` columns).
+/// The statistics of every track of a batch (`x` row-major with `dim` columns).
 ///
 /// # Examples
 ///
@@ -97,21 +111,15 @@ fn one_track(t: &[f64], x: &[f64], dim: usize, accel: &[f64]) -> Result<[f64; 5]
 /// // neighbour two rows ahead is 2 m away, the next row 30 m.
 /// let t: Vec<f64> = (0..40).map(|i| i as f64 * 0.1).collect();
 /// let x: Vec<f64> = (0..40).flat_map(|i| [t[i] * 10.0, if i % 2 == 0 { 0.0 } else { 30.0 }]).collect();
-/// let s = track_stats(&t, &x, 2, &[0, 40], &vec![0.0; 80]).unwrap();
+/// let s = track_stats(&t, &x, 2, &[0, 40]).unwrap();
 /// assert!(s.back[0] < 0.2 * s.step[0]);
 /// ```
-pub fn track_stats(
-    t: &[f64],
-    x: &[f64],
-    dim: usize,
-    offsets: &[i64],
-    accel: &[f64],
-) -> Result<TrackStats> {
+pub fn track_stats(t: &[f64], x: &[f64], dim: usize, offsets: &[i64]) -> Result<TrackStats> {
     let n = t.len();
-    if x.len() != n * dim || accel.len() != n * dim {
+    if x.len() != n * dim {
         return Err(KernelError::Shape {
             argument: "positions",
-            detail: format!("expected {n} rows of {dim} positions and accelerations"),
+            detail: format!("expected {n} rows of {dim} positions"),
         });
     }
     let offsets = check_offsets(offsets, n)?;
@@ -120,12 +128,7 @@ pub fn track_stats(
         .into_par_iter()
         .map(|k| {
             let r = track_rows(&offsets, k);
-            one_track(
-                &t[r.clone()],
-                &x[r.start * dim..r.end * dim],
-                dim,
-                &accel[r.start * dim..r.end * dim],
-            )
+            one_track(&t[r.clone()], &x[r.start * dim..r.end * dim], dim)
         })
         .collect();
     let mut cols: [Vec<f64>; 5] = Default::default();
@@ -157,7 +160,7 @@ mod tests {
         // 10 m/s, no noise (closed forms).
         let t: Vec<f64> = (0..50).map(|i| i as f64 * 0.1).collect();
         let x: Vec<f64> = t.iter().flat_map(|&s| [10.0 * s, 0.0]).collect();
-        let s = track_stats(&t, &x, 2, &[0, 50], &vec![0.0; 100]).unwrap();
+        let s = track_stats(&t, &x, 2, &[0, 50]).unwrap();
         assert!((s.step[0] - 1.0).abs() < 1e-12 && (s.back[0] - 2.0).abs() < 1e-12);
         assert!((s.speed[0] - 10.0).abs() < 1e-9 && (s.dt[0] - 0.1).abs() < 1e-12);
     }

@@ -151,6 +151,20 @@ impl LocalFrame {
     }
 
     /// ENU components of an ECEF point.
+    ///
+    /// # Examples
+    ///
+    /// ```
+    /// use osculate::geodesy::{Ellipsoid, LocalFrame};
+    /// // 100 m straight up from an origin on the equator at longitude 0 is ECEF x + 100
+    /// // (closed form: there the up axis is the ECEF x axis).
+    /// let f = LocalFrame::new(&Ellipsoid::WGS84, [0.0, 0.0, 0.0]);
+    /// let o = f.origin_ecef;
+    /// let enu = f.enu_of_ecef([o[0] + 100.0, o[1], o[2]]);
+    /// assert!(enu[0].abs() < 1e-9 && enu[1].abs() < 1e-9 && (enu[2] - 100.0).abs() < 1e-9);
+    /// let back = f.ecef_of_enu(enu);
+    /// assert!((back[0] - o[0] - 100.0).abs() < 1e-6);
+    /// ```
     pub fn enu_of_ecef(&self, p: [f64; 3]) -> [f64; 3] {
         let o = self.origin_ecef;
         let d = [p[0] - o[0], p[1] - o[1], p[2] - o[2]];

@@ -20,6 +20,7 @@ pub mod fit;
 pub mod frame;
 pub mod fresnel;
 pub mod geodesy;
+pub mod grouping;
 pub mod kinematics;
 pub mod line_integral;
 pub mod local;

@@ -43,6 +43,17 @@ fn reflect(r: &Vector3<f64>, v: &Vector3<f64>, c: f64) -> Vector3<f64> {
 
 /// Carry the normal `r` from (x0, t0) to (x1, t1) by double reflection, then re-orthonormalize
 /// against t1 so that rounding cannot accumulate.
+///
+/// # Examples
+///
+/// ```
+/// use nalgebra::Vector3;
+/// use osculate::rmf::double_reflection;
+/// // Along a straight line the frame does not turn (closed form).
+/// let (x0, x1, t) = (Vector3::zeros(), Vector3::new(1.0, 0.0, 0.0), Vector3::x());
+/// let r = double_reflection(&x0, &t, &Vector3::y(), &x1, &t);
+/// assert!((r - Vector3::y()).norm() < 1e-15);
+/// ```
 #[inline]
 pub fn double_reflection(
     x0: &Vector3<f64>,
@@ -80,6 +91,21 @@ fn any_normal<const D: usize>(t: &Vector3<f64>) -> Vector3<f64> {
 /// The frame starts from the Frenet normal at the first sample that has one, or from `initial`
 /// (projected on the normal plane of the first sample with a tangent), or, on a track that is
 /// straight throughout, from an arbitrary normal.
+///
+/// # Examples
+///
+/// ```
+/// use osculate::rmf::rotation_minimizing;
+/// // A planar path: the rotation-minimizing normal of a plane curve is the left normal of the
+/// // tangent throughout (closed form), also where the Frenet normal is undefined (NaN).
+/// let x = [0.0, 0.0, 1.0, 0.0, 2.0, 0.1, 3.0, 0.3];
+/// let s = 0.1f64.hypot(1.0);
+/// let tangent = [1.0, 0.0, 1.0, 0.0, 1.0 / s, 0.1 / s, 1.0 / s, 0.1 / s];
+/// let frenet = [f64::NAN, f64::NAN, f64::NAN, f64::NAN, -0.1 / s, 1.0 / s, -0.1 / s, 1.0 / s];
+/// let f = rotation_minimizing(&x, &tangent, &frenet, 2, &[0, 4], None).unwrap();
+/// assert!((f.normal[1] - 1.0).abs() < 1e-12 && f.normal[0].abs() < 1e-12);
+/// assert!((f.normal[6] + 0.1 / s).abs() < 1e-12 && (f.normal[7] - 1.0 / s).abs() < 1e-12);
+/// ```
 pub fn rotation_minimizing(
     x: &[f64],
     tangent: &[f64],

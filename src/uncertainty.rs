@@ -21,11 +21,22 @@
 
 use nalgebra::Vector3;
 
+mod noise;
+pub use noise::{difference_noise, NOISE_SAMPLES};
+
 /// Symmetric 4 × 4 Gram matrix of the smoother rows of derivatives 0..=3 at one sample, upper
 /// triangle row by row: (0,0) (0,1) (0,2) (0,3) (1,1) (1,2) (1,3) (2,2) (2,3) (3,3).
 pub type Gram = [f64; 10];
 
 /// Position of entry (a, b) of a [`Gram`].
+///
+/// # Examples
+///
+/// ```
+/// use osculate::uncertainty::at;
+/// assert_eq!((at(0, 0), at(0, 3), at(1, 1), at(2, 3), at(3, 3)), (0, 3, 4, 8, 9));
+/// assert_eq!(at(3, 1), at(1, 3)); // symmetric
+/// ```
 #[inline]
 pub const fn at(a: usize, b: usize) -> usize {
     let (a, b) = if a <= b { (a, b) } else { (b, a) };
@@ -35,6 +46,19 @@ pub const fn at(a: usize, b: usize) -> usize {
 
 /// G from the smoother rows `l[a][j]` (derivative a, node j) and node weights `w` (1/w is the
 /// relative noise variance of a node).
+///
+/// # Examples
+///
+/// ```
+/// use osculate::uncertainty::{at, gram_of_rows};
+/// // Rows of the central differences on a unit grid: r = x₀, r′ = (x₊ − x₋)/2,
+/// // r″ = x₊ − 2x₀ + x₋; G = LLᵀ gives G₁₁ = 1/2, G₂₂ = 6, G₀₂ = −2 (closed form).
+/// let rows = [[0.0, -0.5, 1.0, 0.0], [1.0, 0.0, -2.0, 0.0], [0.0, 0.5, 1.0, 0.0]];
+/// let g = gram_of_rows(&rows, None);
+/// assert_eq!((g[at(1, 1)], g[at(2, 2)], g[at(0, 2)], g[at(0, 1)]), (0.5, 6.0, -2.0, 0.0));
+/// // Node weights 2 halve every entry.
+/// assert_eq!(gram_of_rows(&rows, Some(&[2.0; 3]))[at(2, 2)], 3.0);
+/// ```
 pub fn gram_of_rows(l: &[[f64; 4]], w: Option<&[f64]>) -> Gram {
     let mut g = [0.0; 10];
     for (j, r) in l.iter().enumerate() {
@@ -136,6 +160,20 @@ fn spread(g: &[Vector3<f64>; 4], gram: &Gram, dim: usize, sigma: f64) -> f64 {
 
 /// Standard errors of the speed and of κ only (what the significance tests need), as in
 /// [`propagate`] but without the other quantities.
+///
+/// # Examples
+///
+/// ```
+/// use nalgebra::Vector3;
+/// use osculate::uncertainty::{speed_and_curvature, Gram};
+/// // Straight motion at speed 2 along x: se of the speed is σ·√G₁₁ (closed form); with no
+/// // velocity there is no curvature and its se is NaN.
+/// let g: Gram = [1.0, 0.0, -2.0, 0.0, 0.5, 0.0, -1.0, 6.0, 0.0, 2.5];
+/// let (se_v, se_k) = speed_and_curvature(&Vector3::new(2.0, 0.0, 0.0), &Vector3::zeros(), 3, &g, 0.1);
+/// assert!((se_v - 0.1 * 0.5f64.sqrt()).abs() < 1e-15 && se_k > 0.0);
+/// let (_, se_k) = speed_and_curvature(&Vector3::zeros(), &Vector3::zeros(), 3, &g, 0.1);
+/// assert!(se_k.is_nan());
+/// ```
 #[inline]
 pub fn speed_and_curvature(
     d1: &Vector3<f64>,
@@ -274,100 +312,16 @@ pub fn propagate(
     e
 }
 
-/// Noise standard deviation of the positions of one track (`x` row-major, `dim` columns) from
-/// pseudo-residuals, the construction of T. Gasser, L. Sroka and C. Jennen-Steinmetz (1986) with
-/// cubic instead of linear interpolation: ε̃ᵢ = Σⱼ wⱼ xⱼ − xᵢ with w the Lagrange weights of the
-/// cubic through the two samples on each side, cᵢ² = 1/(1 + Σ wⱼ²), so that cᵢ ε̃ᵢ has the
-/// variance σ² of the noise. The scale is robust: σ̂ = 1.4826 × median |cᵢ ε̃ᵢ| over samples and
-/// coordinates (the median absolute deviation of a normal sample, P. J. Huber, *Robust
-/// Statistics*, 1981), so corners of an exact path and the odd outlier do not count. A path that
-/// is locally cubic gives 0 (the linear version sees h²|r″| there). Rows with a non-finite
-/// coordinate are skipped. Tracks of 3 or 4 finite rows use the linear (three-point) version; NaN
-/// with fewer.
+/// Median of the finite values of `v` (NaN if none), by selection; reorders `v`.
 ///
 /// # Examples
 ///
 /// ```
-/// use osculate::uncertainty::difference_noise;
-/// // A cubic in t is no noise at all; alternating ±0.1 on uniform times gives the closed form
-/// // 1.4826 · (8/3) · 0.1 / √(70/36) (weights −1/6, 2/3, 2/3, −1/6 and |ε̃| = 8/3 · 0.1).
-/// let t: Vec<f64> = (0..30).map(|i| i as f64 * 0.5).collect();
-/// let cubic: Vec<f64> = t.iter().map(|&s| s * s * s - 2.0 * s).collect();
-/// assert!(difference_noise(&t, &cubic, 1).unwrap() < 1e-9);
-/// let x: Vec<f64> = (0..30).map(|i| if i % 2 == 0 { 0.1 } else { -0.1 }).collect();
-/// let expected = 1.4826 * (8.0 / 3.0) * 0.1 / (70.0f64 / 36.0).sqrt();
-/// assert!((difference_noise(&t, &x, 1).unwrap() - expected).abs() < 1e-12);
+/// use osculate::uncertainty::median;
+/// assert_eq!(median(&mut vec![3.0, f64::NAN, 1.0, 2.0]), 2.0);
+/// assert_eq!(median(&mut vec![4.0, 1.0, 2.0, 3.0]), 2.5); // mean of the middle two
+/// assert!(median(&mut vec![f64::NAN]).is_nan());
 /// ```
-pub fn difference_noise(t: &[f64], x: &[f64], dim: usize) -> crate::Result<f64> {
-    let finite = |i: &usize| x[i * dim..(i + 1) * dim].iter().all(|v| v.is_finite());
-    let n = t.len();
-    let m = (0..n).filter(finite).count();
-    if m < 3 {
-        return Ok(f64::NAN);
-    }
-    let half = if m >= 5 { 2 } else { 1 };
-    let width = 2 * half + 1;
-    // Long tracks: every stride-th sample (a median of 8192 values is within ~1.5 % of the
-    // track's; rows are still read in order so that skipped NaN rows stay skipped).
-    let stride = (m - 2 * half).div_ceil(NOISE_SAMPLES).max(1);
-    let mut scaled = Vec::new();
-    let cap = (m - 2 * half).div_ceil(stride) * dim;
-    scaled
-        .try_reserve_exact(cap)
-        .map_err(|_| crate::KernelError::OutOfMemory { bytes: cap * 8 })?;
-    // The last `width` finite rows, oldest first; the middle one is the sample tested.
-    let mut win = [0usize; 5];
-    let mut seen = 0;
-    for r in (0..n).filter(finite) {
-        win.copy_within(1.., 0);
-        win[4] = r;
-        seen += 1;
-        if seen < width || (seen - width) % stride != 0 {
-            continue;
-        }
-        let rows = &win[5 - width..];
-        let i = rows[half];
-        let mut nodes = [0usize; 4];
-        for (slot, &j) in nodes.iter_mut().zip(rows.iter().filter(|&&j| j != i)) {
-            *slot = j;
-        }
-        let nodes = &nodes[..width - 1];
-        let w = lagrange_weights(t, nodes, t[i]);
-        let c = 1.0 / (1.0 + w[..nodes.len()].iter().map(|v| v * v).sum::<f64>()).sqrt();
-        for d in 0..dim {
-            let e: f64 = nodes
-                .iter()
-                .zip(&w)
-                .map(|(&j, wj)| wj * x[j * dim + d])
-                .sum::<f64>()
-                - x[i * dim + d];
-            scaled.push((c * e).abs());
-        }
-    }
-    Ok(1.4826 * median(&mut scaled))
-}
-
-/// Pseudo-residuals used at most per track by [`difference_noise`].
-pub const NOISE_SAMPLES: usize = 8192;
-
-/// Lagrange weights at `s` of the polynomial through the times of rows `nodes` (2 or 4 of them):
-/// one division per weight.
-#[inline]
-fn lagrange_weights(t: &[f64], nodes: &[usize], s: f64) -> [f64; 4] {
-    let mut w = [0.0; 4];
-    let k = nodes.len();
-    for a in 0..k {
-        let (mut num, mut den) = (1.0, 1.0);
-        for b in (0..k).filter(|&b| b != a) {
-            num *= s - t[nodes[b]];
-            den *= t[nodes[a]] - t[nodes[b]];
-        }
-        w[a] = num / den;
-    }
-    w
-}
-
-/// Median of the finite values of `v` (NaN if none), by selection; reorders `v`.
 pub fn median(v: &mut Vec<f64>) -> f64 {
     v.retain(|x| x.is_finite());
     if v.is_empty() {
@@ -468,47 +422,5 @@ mod tests {
         let e = propagate(&d1, &d2, &d3, 3, &g, 0.7);
         let (sv, sk) = speed_and_curvature(&d1, &d2, 3, &g, 0.7);
         assert_eq!((sv, sk), (e.speed, e.curvature));
-    }
-
-    #[test]
-    fn difference_noise_is_zero_on_lines_and_unbiased_on_noise() {
-        let t: Vec<f64> = (0..50).map(|i| (i as f64).powf(1.3)).collect();
-        let x: Vec<f64> = t
-            .iter()
-            .flat_map(|&s| [2.0 * s + 1.0, -s * s * s])
-            .collect();
-        assert!(difference_noise(&t, &x, 2).unwrap() < 1e-9 * 50f64.powf(3.9));
-        // A fixed pseudo-random sequence with sample standard deviation s: the estimate is
-        // within 20 % of s (n = 4000; its relative standard error is about 2 %).
-        let n = 4000;
-        let t: Vec<f64> = (0..n)
-            .map(|i| i as f64 + 0.3 * ((i * 37) % 7) as f64 / 7.0)
-            .collect();
-        let mut state = 12345u64;
-        let x: Vec<f64> = (0..n)
-            .map(|_| {
-                state = state
-                    .wrapping_mul(6364136223846793005)
-                    .wrapping_add(1442695040888963407);
-                (state >> 11) as f64 / (1u64 << 53) as f64 - 0.5
-            })
-            .collect();
-        let mean = x.iter().sum::<f64>() / n as f64;
-        let s = (x.iter().map(|v| (v - mean).powi(2)).sum::<f64>() / n as f64).sqrt();
-        assert_relative_eq!(difference_noise(&t, &x, 1).unwrap(), s, max_relative = 0.2);
-        // A NaN row is skipped: the same as the compacted track.
-        let mut holed = x.clone();
-        holed[100] = f64::NAN;
-        let (tc, xc): (Vec<f64>, Vec<f64>) = t
-            .iter()
-            .zip(&x)
-            .enumerate()
-            .filter(|&(i, _)| i != 100)
-            .map(|(_, (a, b))| (*a, *b))
-            .unzip();
-        assert_eq!(
-            difference_noise(&t, &holed, 1),
-            difference_noise(&tc, &xc, 1)
-        );
     }
 }

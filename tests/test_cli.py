@@ -10,6 +10,7 @@ import osculate as osc
 import pandas as pd
 import pytest
 from osculate import cli
+from osculate.cli import _commands as cli_commands
 
 pa = pytest.importorskip("pyarrow")
 pacsv = pytest.importorskip("pyarrow.csv")
@@ -202,7 +203,7 @@ def test_progress_bar_on_a_terminal_and_chunks_change_nothing(tmp_path, monkeypa
     df.to_parquet(src)
     args = ["analyze", str(src), "--time", "t", "--position", "x,y", "--track", "id"]
     assert cli.main([*args, "-o", str(tmp_path / "one.parquet"), "-q"]) == 0
-    monkeypatch.setattr(cli, "ROWS_PER_CALL", 200)
+    monkeypatch.setattr(cli_commands, "ROWS_PER_CALL", 200)
     term = FakeTerminal()
     monkeypatch.setattr(sys, "stderr", term)
     assert cli.main([*args, "-o", str(tmp_path / "chunks.parquet")]) == 0

@@ -1,7 +1,7 @@
 """Faults of `osculate analyze` and `osculate summary`: nothing lost, nothing aborted.
 
 Kills in the middle of a write, unreadable inputs, outputs that cannot be written, interrupts, and
-the lines the commands print about them. Message wording is the CLI's own (python/osculate/cli.py);
+the lines the commands print about them. Message wording is the CLI's own (python/osculate/cli/);
 where a test checks a message, the comment says which argument, path or cell it must name.
 """
 
@@ -22,6 +22,8 @@ import pyarrow  # noqa: F401  (Parquet outputs; part of the test extra)
 import pytest
 from osculate import cli
 from osculate._estimators import METHODS
+from osculate.cli import _commands as cli_commands
+from osculate.cli import _files as cli_files
 
 BIG_TRACKS, BIG_PER_TRACK = 80, 10_000  # 800 000 rows: a CSV write of ~2 s, Parquet ~1 s
 SMALL = ("--time", "t", "--position", "x,y", "--track", "id")
@@ -144,7 +146,7 @@ def test_keyboard_interrupt_exits_130_with_one_line(tmp_path, capsys, monkeypatc
     def interrupted(*args, **kwargs):
         raise KeyboardInterrupt
 
-    monkeypatch.setattr(cli, "_in_chunks", interrupted)  # Ctrl-C while computing
+    monkeypatch.setattr(cli_commands, "_in_chunks", interrupted)  # Ctrl-C while computing
     dest = tmp_path / "out.csv"
     code, stdout, stderr = main(capsys, "analyze", small_log, *SMALL, "-o", dest, "-q")
     assert code == 130  # 128 + SIGINT, the shell's convention
@@ -160,7 +162,7 @@ def test_interrupt_after_the_bytes_are_written_keeps_the_earlier_file(
     dest = tmp_path / "out.parquet"
     assert main(capsys, "analyze", small_log, *SMALL, "-o", dest, "-q") == (0, "", "")
     before = dest.read_bytes()
-    write = cli._write_table
+    write = cli_files.write_table
     written = []
 
     def write_then_interrupt(df, tmp, kind, codec):
@@ -168,7 +170,7 @@ def test_interrupt_after_the_bytes_are_written_keeps_the_earlier_file(
         written.append(tmp.stat().st_size)
         raise KeyboardInterrupt
 
-    monkeypatch.setattr(cli, "_write_table", write_then_interrupt)
+    monkeypatch.setattr(cli_files, "write_table", write_then_interrupt)
     bigger = circles(5, 80, seed=6)  # a different input: a different output
     src = tmp_path / "other.csv"
     bigger.to_csv(src, index=False)
@@ -229,7 +231,7 @@ def test_unwritable_output_folder_exits_2(tmp_path, capsys, monkeypatch, small_l
             return False
         return real_access(path, mode, **kwargs)
 
-    monkeypatch.setattr(cli.os, "access", access)
+    monkeypatch.setattr(cli_files.os, "access", access)
     code, _, stderr = main(capsys, "analyze", small_log, *SMALL, "-o", folder / "o.csv")
     assert code == 2
     assert stderr.count("\n") == 1

@@ -2,6 +2,7 @@
 
 import doctest
 import importlib
+import pkgutil
 import subprocess
 import sys
 
@@ -24,11 +25,21 @@ MODULES = [
 ]
 
 
+def with_submodules(name):
+    """The module and, for a package (plot, demo, report), each of its modules."""
+    module = importlib.import_module(name)
+    found = [module]
+    for info in pkgutil.iter_modules(getattr(module, "__path__", [])):
+        if info.name != "__main__":  # runs the program when imported
+            found.append(importlib.import_module(f"{name}.{info.name}"))
+    return found
+
+
 @pytest.mark.parametrize("name", MODULES)
 def test_docstring_examples(name):
-    result = doctest.testmod(importlib.import_module(name), optionflags=doctest.ELLIPSIS)
-    assert result.attempted > 0
-    assert result.failed == 0
+    results = [doctest.testmod(m, optionflags=doctest.ELLIPSIS) for m in with_submodules(name)]
+    assert sum(r.attempted for r in results) > 0
+    assert sum(r.failed for r in results) == 0
 
 
 def test_demo_command_is_wired():

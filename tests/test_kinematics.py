@@ -225,3 +225,39 @@ def test_other_real_dtypes_and_layouts(dtype):
     for variant in (x, np.asfortranarray(x), np.repeat(x, 2, axis=0)[::2]):
         got = osc.kinematics(t.astype(dtype), variant)
         np.testing.assert_array_equal(got.curvature, ref.curvature)
+
+
+def test_outputs_select_the_computed_quantities():
+    # Same kernel, fewer columns written: every asked value is bit-identical to the full run
+    # (exact equality: the same arithmetic), the others raise AttributeError naming outputs=.
+    t = np.linspace(0.0, 6.0, 301)
+    x = np.column_stack([2 * np.cos(t), 2 * np.sin(t), 0.5 * t])
+    for method in ("fd", "smooth"):
+        full = osc.kinematics(t, x, method=method)
+        part = osc.kinematics(t, x, method=method, outputs=["curvature", "accel_normal"])
+        assert part.outputs == ("curvature", "accel_normal")
+        np.testing.assert_array_equal(part.curvature, full.curvature)
+        np.testing.assert_array_equal(part.accel_normal, full.accel_normal)
+        np.testing.assert_array_equal(part.flags, full.flags)
+        with pytest.raises(AttributeError, match="outputs="):
+            _ = part.speed
+        if method == "smooth":
+            np.testing.assert_array_equal(part.se["curvature"], full.se["curvature"])
+            assert "speed" not in part.se
+    rmf = osc.kinematics(t, x, frame="rotation-minimizing", outputs=["speed"])
+    assert rmf.outputs == ("speed",) and rmf.twist is not None
+    with pytest.raises(osc.InputError, match="outputs: unknown quantity 'sped'"):
+        osc.kinematics(t, x, outputs=["sped"])
+    with pytest.raises(TypeError, match="outputs"):
+        osc.kinematics(t, x, outputs=[1])
+
+
+def test_accessor_columns_ask_the_kernel_for_their_quantities():
+    pd = pytest.importorskip("pandas")
+    t = np.linspace(0.0, 6.0, 61)
+    df = pd.DataFrame({"t": t, "x": np.cos(t), "y": np.sin(t)})
+    res = df.osc.kinematics(time="t", position=["x", "y"], columns=["speed", "tangent_x"])
+    full = df.osc.kinematics(time="t", position=["x", "y"])
+    assert list(res.columns) == ["speed", "tangent_x"]
+    # Same kernel arithmetic: exact equality with the full run.
+    np.testing.assert_array_equal(res["tangent_x"], full["tangent_x"])

@@ -125,10 +125,13 @@ def test_the_grep_passes_what_is_no_colour(snippet):
 
 
 def test_no_colour_literals_outside_the_palette():
-    files = sorted(p for p in PACKAGE.glob("*.py") if p.name != "_palette.py")
-    assert any(p.name == "plot.py" for p in files)  # the module that draws is checked
+    # Every module, subpackages included (plot/, report/, ...).
+    files = sorted(p for p in PACKAGE.rglob("*.py") if p.name != "_palette.py")
+    # The modules that draw are checked: every plot's module and the shared layers.
+    drawing = {p.name for p in files if p.parent.name == "plot"}
+    assert {"_path.py", "_profile.py", "_gg.py", "_layers.py"} <= drawing
     offenders = [
-        f"{p.name}:{line}: {text}"
+        f"{p.relative_to(PACKAGE)}:{line}: {text}"
         for p in files
         for line, text in colour_literals(p.read_text(encoding="utf-8"))
     ]

@@ -6,6 +6,7 @@ acceleration and turn rate of measured trajectories, one track or thousands, wit
 
 from __future__ import annotations
 
+from . import _pandas_hook
 from ._core import InputError, __version__
 from .diagnose import SuspectDataWarning
 from .elements import Elements, elements
@@ -28,10 +29,9 @@ from .stops import Stops
 from .summary import COLUMNS as SUMMARY_COLUMNS
 from .turns import SpeedChanges, Turns
 
-try:  # the DataFrame.osc accessor registers itself when pandas is importable
-    from . import accessor as _accessor  # noqa: F401
-except ImportError:  # pragma: no cover - numpy-only installs
-    pass
+# The DataFrame.osc accessor: registered now if pandas is imported, else as soon as it is;
+# ``import osculate`` itself does not import pandas (see _pandas_hook).
+_pandas_hook.install()
 
 __all__ = [
     "SUMMARY_COLUMNS",
@@ -65,8 +65,9 @@ __all__ = [
 ]
 
 # Optional submodules that need an extra, imported on first use: ``osculate.dask`` needs
-# ``pip install 'osculate[dask]'``, ``osculate.plot`` needs ``pip install 'osculate[plot]'``.
-_LAZY_SUBMODULES = ("dask", "plot")
+# ``pip install 'osculate[dask]'``, ``osculate.plot`` needs ``pip install 'osculate[plot]'``,
+# ``osculate.accessor`` (imported by itself once pandas is) needs ``'osculate[pandas]'``.
+_LAZY_SUBMODULES = ("accessor", "dask", "plot")
 
 
 def __getattr__(name: str) -> object:

@@ -18,6 +18,7 @@ __all__ = [
     "fresnel",
     "geodetic_to_enu",
     "grid_eval",
+    "group_rows",
     "line_integral_grid",
     "line_integral_sampled",
     "line_integral_values",
@@ -26,6 +27,7 @@ __all__ = [
     "rotation_minimizing",
     "segment_nodes",
     "summarize",
+    "take_rows",
     "track_stats",
 ]
 
@@ -35,6 +37,12 @@ class InputError(ValueError):
     row: int | None
     detail: str
 
+def group_rows(
+    codes: npt.NDArray[np.int64],
+    n_tracks: int,
+    key: npt.NDArray[np.float64] | npt.NDArray[np.int64] | None = None,
+) -> tuple[npt.NDArray[np.uintp] | None, npt.NDArray[np.uintp] | None, npt.NDArray[np.uintp]]: ...
+def take_rows(a: npt.NDArray[Any], index: npt.NDArray[np.uintp]) -> npt.NDArray[Any]: ...
 def fd_kinematics(
     t: npt.NDArray[np.float64],
     positions: npt.NDArray[np.float64],
@@ -50,12 +58,12 @@ def fd_kinematics(
     auto_curvature: bool = False,
     significance: float = 3.0,
     max_relative_se: float = 0.25,
+    outputs: list[str] | None = None,
 ) -> dict[str, Any]: ...
 def track_stats(
     t: npt.NDArray[np.float64],
     positions: npt.NDArray[np.float64],
     offsets: npt.NDArray[np.int64],
-    acceleration: npt.NDArray[np.float64],
 ) -> dict[str, npt.NDArray[np.float64]]: ...
 def find_turns(
     t: npt.NDArray[np.float64],
@@ -168,6 +176,7 @@ class FittedPaths:
         auto_curvature: bool = False,
         significance: float = 3.0,
         max_relative_se: float = 0.25,
+        outputs: list[str] | None = None,
     ) -> dict[str, Any]: ...
     def kinematics_at(
         self,
@@ -177,6 +186,7 @@ class FittedPaths:
         min_speed: float,
         min_curvature: float,
         up: tuple[float, float, float] | None = None,
+        outputs: list[str] | None = None,
     ) -> dict[str, Any]: ...
     def evaluate(
         self, t: npt.NDArray[np.float64], query_offsets: npt.NDArray[np.int64], nu: int

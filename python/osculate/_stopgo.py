@@ -55,7 +55,7 @@ def refit_moving(
     raw: dict[str, Any],
     info: dict[str, np.ndarray],
     held: npt.NDArray[np.bool_],
-) -> tuple[npt.NDArray[np.intp], Any, npt.NDArray[np.int64]] | None:
+) -> None:
     """Fit the moving stretches between stops again, each on its own, and write them into ``raw``.
 
     A stop is a position held, not a curve: fitted together with the moving parts, its jitter
@@ -63,17 +63,11 @@ def refit_moving(
     invented stop-and-go log, λ* 9 for the whole track against 150–1700 for its moving
     stretches), which leaves curvature mostly noise. Stretches of tracks without stops, and
     stretches shorter than :data:`MIN_STRETCH` samples, keep the whole-track fit.
-
-    Returns
-    -------
-    (rows, fitted, offsets) or None
-        The refitted kernel rows, the fit of the stretches and its row offsets, for evaluating
-        the fitted positions; None when nothing was refitted.
     """
     code = _track_codes(g.offsets)
     n = len(t)
     if n == 0 or not held.any():
-        return None
+        return
     has_stop = np.bincount(code[held], minlength=g.n_tracks) > 0
     new = np.ones(n, bool)
     new[1:] = (code[1:] != code[:-1]) | (held[1:] != held[:-1])
@@ -84,7 +78,7 @@ def refit_moving(
     if opts.method == "local" and opts.window is not None:
         moving &= length >= opts.window
     if not moving.any():
-        return None
+        return
     chosen = moving[stretch]
     rows = np.flatnonzero(chosen)
     offsets = np.concatenate([[0], np.cumsum(length[moving])]).astype(np.int64)
@@ -95,14 +89,15 @@ def refit_moving(
         sub_opts.weights = g.to_kernel(np.asarray(opts.weights, dtype=np.float64))[rows]
     fitted = fit_core(sub_opts, sub, t[rows], x[rows], uncertainty=kind)
     part = call_kernel(sub, fitted.kinematics, **options)
-    s_before = raw["arclength"].copy()
+    s_before = raw["arclength"].copy() if "arclength" in raw else None
     for name, a in part.items():
         if name == "se":
             for q, v in a.items():
                 raw["se"][q][rows] = v
         elif isinstance(a, np.ndarray) and len(a) == len(rows) and name in raw:
             raw[name][rows] = a
-    raw["arclength"] = _joined_arclength(s_before, raw["arclength"], rows, new, held, code)
+    if s_before is not None:
+        raw["arclength"] = _joined_arclength(s_before, raw["arclength"], rows, new, held, code)
     # Per track, the choices of its longest refitted stretch.
     sub_info = fitted.info()
     track_of = code[starts[moving]]
@@ -112,7 +107,6 @@ def refit_moving(
         if name in info:
             info[name] = info[name].copy()
             info[name][track_of[pick][last]] = sub_info[name][pick][last]
-    return rows, fitted, offsets
 
 
 def _joined_arclength(
@@ -156,7 +150,8 @@ def hold_stops(raw: dict[str, Any], held: npt.NDArray[np.bool_]) -> None:
     if len(rows) == 0:
         return
     for name in _HELD:
-        raw[name][rows] = 0.0
+        if name in raw:
+            raw[name][rows] = 0.0
     for name in _UNDEFINED_WHEN_STOPPED:
         if name in raw:
             raw[name][rows] = np.nan

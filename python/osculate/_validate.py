@@ -5,16 +5,17 @@ Messages name the argument, and where relevant the track and the caller's row.
 
 from __future__ import annotations
 
-import dataclasses
 from typing import Any, Callable, TypeVar
 
 import numpy as np
 import numpy.typing as npt
 
+from . import _core
 from ._core import InputError
 
 __all__ = [
     "Grouping",
+    "Naming",
     "as_int",
     "as_positions",
     "as_real",
@@ -22,6 +23,7 @@ __all__ = [
     "as_times",
     "call_kernel",
     "group_rows",
+    "relabel",
 ]
 
 F64 = npt.NDArray[np.float64]
@@ -206,73 +208,40 @@ def as_positions(x: Any, n: int, name: str = "positions") -> F64:
     return arr
 
 
-@dataclasses.dataclass(frozen=True)
 class Grouping:
-    """How the caller's rows split into tracks.
+    """How the caller's rows split into tracks: the one grouping every layer uses.
 
-    ``order`` maps kernel rows (grouped by track) to caller rows, or is None when the caller's rows
-    are already grouped. ``labels`` holds one label per track.
+    The kernels see each track's rows together and in time order ("kernel rows"); the caller
+    keeps its own row order. ``order[i]`` is the caller row of kernel row ``i`` and ``inverse``
+    the reverse map; both are None when the caller's rows already are grouped and in time order.
+    Both directions are parallel gathers in Rust (:func:`osculate._core.take_rows`).
+
+    Build one with :meth:`from_offsets`, :meth:`from_codes` or :func:`group_rows` (from ids).
+    ``naming`` (for DataFrame callers) tells :func:`relabel` the columns and row labels.
     """
 
-    offsets: npt.NDArray[np.int64]
-    order: npt.NDArray[np.intp] | None
-    labels: np.ndarray
+    __slots__ = ("inverse", "labels", "naming", "offsets", "order")
 
-    @property
-    def n_tracks(self) -> int:
-        """Number of tracks."""
-        return len(self.offsets) - 1
+    def __init__(
+        self,
+        offsets: npt.NDArray[np.int64],
+        order: np.ndarray | None,
+        labels: np.ndarray,
+        inverse: np.ndarray | None = None,
+        naming: Naming | None = None,
+    ) -> None:
+        self.offsets = offsets
+        self.order = None if order is None else _as_rows(order)
+        if self.order is not None and inverse is None:
+            inverse = np.empty_like(self.order)
+            inverse[self.order] = np.arange(len(self.order))
+        self.inverse = None if inverse is None else _as_rows(inverse)
+        self.labels = labels
+        self.naming = naming
 
-    def to_kernel(self, a: np.ndarray) -> np.ndarray:
-        """Caller rows → kernel rows."""
-        return a if self.order is None else np.ascontiguousarray(a[self.order])
-
-    def to_caller(self, a: np.ndarray) -> np.ndarray:
-        """Kernel rows → caller rows."""
-        if self.order is None:
-            return a
-        out = np.empty_like(a)
-        out[self.order] = a
-        return out
-
-    def caller_row(self, row: int) -> int:
-        """Return the caller's row of kernel row ``row``."""
-        return row if self.order is None else int(self.order[row])
-
-
-def track_time_order(
-    codes: npt.NDArray[np.intp], key: np.ndarray, n_tracks: int
-) -> npt.NDArray[np.intp] | None:
-    """Permutation that sorts rows stably by (track code, time key); None if they already are.
-
-    Equal to ``numpy.lexsort((key, codes))``, computed faster: rows already time-ordered within
-    each track (the usual log, tracks interleaved) need one stable sort of the small-integer codes
-    (a radix sort); otherwise a stable sort by time comes first, then the stable sort by track.
-    """
-    if len(codes) < 2:
-        return None
-    same = codes[1:] == codes[:-1]
-    if np.all((codes[1:] > codes[:-1]) | (same & (key[1:] >= key[:-1]))):
-        return None
-    small = codes.astype(np.uint16 if n_tracks <= 1 << 16 else np.int64)
-    order = np.argsort(small, kind="stable")
-    c, k = codes[order], key[order]
-    if np.all((c[1:] != c[:-1]) | (k[1:] >= k[:-1])):
-        return order
-    by_time = np.argsort(key, kind="stable")
-    return by_time[np.argsort(small[by_time], kind="stable")]
-
-
-def group_rows(n: int, tracks: Any = None, offsets: Any = None, t: Any = None) -> Grouping:
-    """Split ``n`` rows into tracks given per-row ids (any order) or row offsets.
-
-    With ids and times ``t``, the rows of each track are put in time order (stable), as the
-    DataFrame accessor does: a log's rows may come in any order. With offsets the caller states
-    the layout, and times must already increase within each track.
-    """
-    if tracks is not None and offsets is not None:
-        raise InputError("tracks, offsets: give one of them, not both")
-    if offsets is not None:
+    @classmethod
+    def from_offsets(cls, offsets: Any, labels: np.ndarray | None = None) -> Grouping:
+        """Rows already grouped: track k is rows ``offsets[k]:offsets[k + 1]``."""
         off = np.asarray(offsets)
         if off.dtype.kind not in "iu":
             raise TypeError(f"offsets: expected integers, got dtype {off.dtype}")
@@ -281,7 +250,109 @@ def group_rows(n: int, tracks: Any = None, offsets: Any = None, t: Any = None) -
         if off.dtype.kind == "u" and off.size and off.max() > np.iinfo(np.int64).max:
             raise InputError(f"offsets: {int(off.max())} is beyond any row count")
         off = np.ascontiguousarray(off, dtype=np.int64)
-        return Grouping(off, None, np.arange(max(len(off) - 1, 0)))
+        return cls(off, None, np.arange(max(len(off) - 1, 0)) if labels is None else labels)
+
+    @classmethod
+    def from_codes(cls, codes: np.ndarray, labels: np.ndarray, key: Any = None) -> Grouping:
+        """Rows with track codes ``0 <= code < len(labels)``, put in ``key`` (time) order per track.
+
+        Equal to a stable sort by (code, key); O(n) when each track's rows are in time order.
+        """
+        key_arr = None
+        if key is not None:
+            key_arr = np.asarray(key)
+            kind = key_arr.dtype.kind
+            key_arr = np.ascontiguousarray(key_arr, np.int64 if kind in "iuMm" else np.float64)
+        order, inverse, off = _core.group_rows(
+            np.ascontiguousarray(codes, dtype=np.int64), len(labels), key_arr
+        )
+        return cls(off.astype(np.int64), order, labels, inverse)
+
+    @property
+    def n_tracks(self) -> int:
+        """Number of tracks."""
+        return len(self.offsets) - 1
+
+    @property
+    def names(self) -> np.ndarray:
+        """Track labels as messages show them (the caller's, also when ``labels`` are codes)."""
+        named = None if self.naming is None else self.naming.labels
+        return self.labels if named is None else np.asarray(named, dtype=object)
+
+    def to_kernel(self, a: np.ndarray) -> np.ndarray:
+        """Caller rows → kernel rows."""
+        return a if self.order is None else _take(a, self.order)
+
+    def to_caller(self, a: np.ndarray) -> np.ndarray:
+        """Kernel rows → caller rows."""
+        return a if self.inverse is None else _take(a, self.inverse)
+
+    def caller_row(self, row: int) -> int:
+        """Return the caller's row of kernel row ``row``."""
+        return row if self.order is None else int(self.order[row])
+
+    def caller_rows(self, rows: np.ndarray) -> npt.NDArray[np.int64]:
+        """Return the caller's rows of kernel rows ``rows`` (an integer array)."""
+        rows = np.asarray(rows, dtype=np.int64)
+        return rows if self.order is None else self.order[rows].astype(np.int64)
+
+    def row_codes(self) -> npt.NDArray[np.intp]:
+        """Track position (0 .. n_tracks - 1) of every caller row."""
+        codes = np.repeat(np.arange(self.n_tracks), np.diff(self.offsets))
+        return self.to_caller(codes)
+
+
+def _as_rows(index: np.ndarray) -> npt.NDArray[np.intp]:
+    """Row numbers as intp (Rust hands out usize; same bits, no copy)."""
+    index = np.ascontiguousarray(index)
+    if index.dtype == np.uintp:
+        return index.view(np.intp)
+    return np.ascontiguousarray(index, dtype=np.intp)
+
+
+def _take(a: np.ndarray, index: npt.NDArray[np.intp]) -> np.ndarray:
+    """``a[index]`` along the first axis: a parallel gather in Rust where the dtype allows."""
+    if (
+        isinstance(a, np.ndarray)
+        and a.dtype.kind in "fiub"
+        and a.dtype.itemsize in (1, 4, 8)
+        and a.dtype.isnative
+        and a.ndim >= 1
+        and a.size > 0
+        and a.flags.c_contiguous
+        and not (a.dtype.kind == "u" and a.dtype.itemsize != 1)
+        and not (a.dtype.kind == "i" and a.dtype.itemsize == 1)
+    ):
+        return _core.take_rows(a, index.view(np.uintp))
+    return np.ascontiguousarray(np.asarray(a)[index])
+
+
+def track_time_order(
+    codes: npt.NDArray[np.intp], key: np.ndarray, n_tracks: int
+) -> npt.NDArray[np.intp] | None:
+    """Permutation that sorts rows stably by (track code, time key); None if they already are.
+
+    Equal to ``numpy.lexsort((key, codes))``; see :meth:`Grouping.from_codes`.
+    """
+    return Grouping.from_codes(codes, np.arange(n_tracks), key).order
+
+
+def group_rows(n: int, tracks: Any = None, offsets: Any = None, t: Any = None) -> Grouping:
+    """Split ``n`` rows into tracks given per-row ids (any order) or row offsets.
+
+    With ids and times ``t``, the rows of each track are put in time order (stable), as the
+    DataFrame accessor does: a log's rows may come in any order. With offsets the caller states
+    the layout, and times must already increase within each track. ``tracks`` may also be a
+    :class:`Grouping` made by a caller that grouped its rows itself.
+    """
+    if tracks is not None and offsets is not None:
+        raise InputError("tracks, offsets: give one of them, not both")
+    if isinstance(tracks, Grouping):  # made by a caller that already grouped (the accessor)
+        if tracks.offsets[-1] != n:
+            raise InputError(f"tracks: the grouping holds {tracks.offsets[-1]} rows, not {n}")
+        return tracks
+    if offsets is not None:
+        return Grouping.from_offsets(offsets)
     if tracks is None:
         return Grouping(np.array([0, n], dtype=np.int64), None, np.array([0]))
     try:
@@ -301,17 +372,29 @@ def group_rows(n: int, tracks: Any = None, offsets: Any = None, t: Any = None) -
     if ids.dtype.kind == "O":
         labels, codes = _factorize_objects(ids)
     else:
-        labels, codes = np.unique(ids, return_inverse=True)
-        codes = codes.reshape(-1)
-    if t is None:
-        grouped = bool(np.all(codes[1:] >= codes[:-1]))
-        order = None if grouped else np.argsort(codes, kind="stable")
-    else:
-        order = track_time_order(codes, np.asarray(t), len(labels))
-    counts = np.bincount(codes, minlength=len(labels))
-    off = np.zeros(len(labels) + 1, dtype=np.int64)
-    np.cumsum(counts, out=off[1:])
-    return Grouping(off, order, labels)
+        labels, codes = _integer_codes(ids) if ids.dtype.kind in "iu" else (None, None)
+        if labels is None:
+            labels, codes = np.unique(ids, return_inverse=True)
+            codes = codes.reshape(-1)
+    return Grouping.from_codes(codes, labels, None if t is None else t)
+
+
+def _integer_codes(ids: np.ndarray) -> tuple[np.ndarray | None, np.ndarray | None]:
+    """Return sorted labels and codes of integer ids in O(n), or (None, None).
+
+    A presence table instead of the sort of :func:`numpy.unique`, for ids spanning a range up
+    to 4 times their count.
+    """
+    lo, hi = ids.min(), ids.max()
+    span = int(hi) - int(lo) + 1
+    if span > 4 * len(ids) + 1024:
+        return None, None
+    rel = (ids - lo).astype(np.intp)
+    present = np.zeros(span, dtype=bool)
+    present[rel] = True
+    code_of = np.cumsum(present, dtype=np.intp) - 1
+    labels = (np.flatnonzero(present) + lo).astype(ids.dtype)
+    return labels, code_of[rel]
 
 
 def _factorize_objects(ids: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
@@ -338,8 +421,74 @@ def _factorize_objects(ids: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     return labels, np.asarray(codes, dtype=np.intp)
 
 
+class Naming:
+    """How messages name a DataFrame caller's things: columns for arguments, index labels for rows.
+
+    Parameters
+    ----------
+    columns : mapping of str to label
+        The caller's column behind each kernel argument name (``"t"``, ``"positions"``, ...).
+    index : sequence
+        The caller's row labels (the DataFrame index), by position.
+    by : label
+        The column of the track ids.
+    order : ndarray of int, optional
+        The caller's row position of each kernel row, when the caller grouped its rows itself
+        and hands the kernels grouped arrays.
+    labels : sequence, optional
+        The caller's track labels, when the grouping's own labels are codes.
+    """
+
+    __slots__ = ("by", "columns", "index", "labels", "order")
+
+    def __init__(
+        self, columns: dict[str, Any], index: Any, by: Any, order: Any = None, labels: Any = None
+    ) -> None:
+        self.columns, self.index, self.by, self.order = columns, index, by, order
+        self.labels = labels
+
+    def position(self, row: int) -> int:
+        """Return the caller's row position of kernel row ``row``."""
+        return row if self.order is None else int(self.order[row])
+
+
+def relabel(err: Any, grouping: Grouping) -> Any:
+    """Return a kernel error re-worded once with the caller's track labels and rows.
+
+    The one place where kernel errors get the caller's names: the track label for the batch
+    position, the caller's row for the kernel row, and with :attr:`Grouping.naming` the column
+    and the index label. Errors without a track are returned as they are.
+    """
+    track = getattr(err, "track", None)
+    if track is None or not 0 <= track < len(grouping.labels):
+        return err
+    label = plain(grouping.names[track])
+    row = getattr(err, "row", None)
+    argument, detail = err.argument, err.detail
+    naming = grouping.naming
+    if naming is None:
+        caller = None if row is None else grouping.caller_row(row)
+        where = f"track {label!r}" + ("" if caller is None else f", row {caller}")
+        new = InputError(f"{argument}: {where}: {detail}")
+        new.argument, new.track, new.row, new.detail = argument, track, caller, detail
+        return new
+    if row is not None:
+        pos = naming.position(row)
+        column = naming.columns.get(argument, argument)
+        name = plain(naming.index[pos])
+        new = InputError(f"column {column!r}, row {name!r} (track {label!r}): {detail}")
+        new.argument, new.row = str(column), pos
+    else:
+        name = plain(naming.index[naming.position(int(grouping.offsets[track]))])
+        new = InputError(f"track {label!r} (column {naming.by!r}, first row {name!r}): {detail}")
+        new.argument, new.row = str(naming.by), None
+    new.track, new.detail = label, detail
+    setattr(new, "label", name)  # noqa: B010  (InputError has no declared `label`)
+    return new
+
+
 def call_kernel(grouping: Grouping | None, fn: Callable[..., T], *args: Any, **kwargs: Any) -> T:
-    """Call a kernel; re-word its errors with the caller's track labels and rows.
+    """Call a kernel; its errors are re-worded once by :func:`relabel`.
 
     With ``grouping`` None the kernel's rows are the caller's and there are no tracks: a row
     error is worded ``"argument: row R: ..."``.
@@ -347,23 +496,9 @@ def call_kernel(grouping: Grouping | None, fn: Callable[..., T], *args: Any, **k
     try:
         return fn(*args, **kwargs)
     except InputError as err:
-        track = getattr(err, "track", None)
         row = getattr(err, "row", None)
         if grouping is None and row is not None:
             new = InputError(f"{err.argument}: row {row}: {err.detail}")
             new.argument, new.track, new.row, new.detail = err.argument, None, row, err.detail
             raise new from None
-        if track is None or grouping is None:
-            raise
-        label = plain(grouping.labels[track]) if track < len(grouping.labels) else track
-        where = f"track {label!r}"
-        if row is not None:
-            where += f", row {grouping.caller_row(row)}"
-        new = InputError(f"{err.argument}: {where}: {err.detail}")
-        new.argument, new.track, new.row, new.detail = (
-            err.argument,
-            track,
-            None if row is None else grouping.caller_row(row),
-            err.detail,
-        )
-        raise new from None
+        raise err if grouping is None else relabel(err, grouping) from None

@@ -6,7 +6,6 @@ Importing :mod:`osculate` registers the accessor when pandas is importable.
 from __future__ import annotations
 
 import dataclasses
-import warnings
 from collections.abc import Hashable, Sequence
 from typing import Any, Optional
 
@@ -21,10 +20,10 @@ except ImportError as exc:  # pragma: no cover - depends on the environment
     ) from exc
 
 from . import _core
-from ._validate import EXACT_SPAN, Grouping, plain, track_time_order
-from .diagnose import SuspectDataWarning, track_names
+from ._columns import column_values, input_error
+from ._validate import EXACT_SPAN, Grouping, Naming, plain, track_time_order
 from .geodesy import enu_and_origins
-from .intrinsic import Kinematics
+from .intrinsic import OUTPUTS, Kinematics
 from .intrinsic import kinematics as _kinematics
 from .summary import summarize
 
@@ -33,29 +32,6 @@ __all__ = ["OscAccessor", "result_columns", "track_time_order"]
 F64 = npt.NDArray[np.float64]
 CRS = ("cartesian", "geodetic")
 _SKIP = ("t", "position")  # the caller's own input
-
-
-def _input_error(message: str, argument: str, row: Optional[int] = None, label: Any = None) -> Any:
-    err = _core.InputError(message)
-    err.argument, err.track, err.row, err.detail = argument, None, row, message
-    setattr(err, "label", label)  # noqa: B010  (InputError has no declared `label`)
-    return err
-
-
-def _values(df: pd.DataFrame, name: Hashable, role: str) -> Any:
-    """Return column ``name`` of ``df``, or the index level of that name (errors name the role)."""
-    if name in df.columns:
-        col = df[name]
-        if isinstance(col, pd.DataFrame):
-            raise _input_error(f"{role}: column {name!r} appears {col.shape[1]} times", str(name))
-        return col
-    if name is not None and name in df.index.names:
-        return pd.Series(df.index.get_level_values(name), index=df.index)
-    shown = ", ".join(repr(c) for c in list(df.columns)[:20])
-    more = ", ..." if len(df.columns) > 20 else ""
-    raise _input_error(
-        f"{role}: column {name!r} not found (columns: {shown}{more})", str(name), None
-    )
 
 
 def _numbers(s: pd.Series, role: str) -> F64:
@@ -117,19 +93,19 @@ class _Prepared:
         origin: Any,
     ) -> None:
         if crs not in CRS:
-            raise _input_error(f"crs: expected one of {CRS}, got {crs!r}", "crs")
+            raise input_error(f"crs: expected one of {CRS}, got {crs!r}", "crs")
         if isinstance(position, (str, bytes)) or len(position) not in (2, 3):
-            raise _input_error(
+            raise input_error(
                 f"position: expected 2 or 3 column names, got {position!r}", "position"
             )
         if crs == "cartesian" and origin is not None:
-            raise _input_error("origin: only used with crs='geodetic'", "origin")
+            raise input_error("origin: only used with crs='geodetic'", "origin")
         self.index = df.index
         self.n = n = len(df)
         self.time, self.position, self.by, self.crs = time, tuple(position), by, crs
-        self.time_values = _values(df, time, "time")
+        self.time_values = column_values(df, time, "time")
         times = _times(self.time_values)
-        coords = [_numbers(_values(df, c, "position"), "position") for c in self.position]
+        coords = [_numbers(column_values(df, c, "position"), "position") for c in self.position]
         if by is None:
             codes = np.zeros(n, dtype=np.intp)
             self.labels: pd.Index = pd.Index([0], name="track")
@@ -139,7 +115,7 @@ class _Prepared:
                     f"by: expected the name of one column or index level, got {type(by).__name__}"
                     f" {list(by)!r:.80}; to group by several columns, build one key column first"
                 )
-            ids = _values(df, by, "by")
+            ids = column_values(df, by, "by")
             try:
                 c, uniques = pd.factorize(ids, sort=True)
             except TypeError:  # labels of mixed types cannot be sorted: first-seen order
@@ -153,13 +129,21 @@ class _Prepared:
             pos = int(np.argmax(times.missing))
             raise self.row_error(time, pos, "the time is missing (NaN or NaT)")
         self.n_tracks = m = len(self.labels) if n else 0
+        self.grouping = Grouping.from_codes(codes, np.arange(m), times.key)
+        self.order: Optional[npt.NDArray[np.intp]] = self.grouping.order
+        self.offsets = self.grouping.offsets
+        columns = {"t": time, "lat": self.position[0]}
+        columns["positions"] = columns["llh"] = ", ".join(str(p) for p in self.position)
+        # The kernels see the rows grouped (arrays below are in kernel order); errors and
+        # warnings name the caller's labels, columns and index through this grouping.
+        self.kernel_grouping = Grouping(
+            self.offsets,
+            None,
+            np.arange(m),
+            naming=Naming(columns, self.index, by, self.order, self.labels),
+        )
+        counts = np.diff(self.offsets)
         key = times.key
-        self.order: Optional[npt.NDArray[np.intp]] = track_time_order(codes, key, m)
-        self._inverse: Optional[npt.NDArray[np.intp]] = None
-        counts = np.bincount(codes, minlength=m)
-        self.offsets = np.zeros(m + 1, dtype=np.int64)
-        np.cumsum(counts, out=self.offsets[1:])
-        self.grouping = Grouping(self.offsets, None, np.arange(m))
         key = self.to_kernel(key)
         self.datetimes = times.ticks_per_second is not None and not times.integer
         self.integer_times = times.integer
@@ -183,10 +167,7 @@ class _Prepared:
         self.enu: Optional[F64] = None
         if crs == "geodetic" and n:
             llh = x if x.shape[1] == 3 else np.column_stack([x, np.zeros(n)])
-            try:
-                enu, self.origins = enu_and_origins(llh, self.grouping, origin)
-            except _core.InputError as err:
-                raise self.relabel(err) from None
+            enu, self.origins = enu_and_origins(llh, self.kernel_grouping, origin)
             self.enu = enu
             x = enu if x.shape[1] == 3 else np.ascontiguousarray(enu[:, :2])
         self.x = np.ascontiguousarray(x, dtype=np.float64)
@@ -194,61 +175,19 @@ class _Prepared:
     # -- rows ------------------------------------------------------------------------------------
     def to_kernel(self, a: np.ndarray) -> np.ndarray:
         """Caller rows → kernel rows (grouped by track, sorted by time)."""
-        return a if self.order is None else a[self.order]
+        return self.grouping.to_kernel(a)
 
     def to_caller(self, a: np.ndarray) -> np.ndarray:
-        """Kernel rows → caller rows, for a 1-D array (a gather, faster than a scatter)."""
-        if self.order is None:
-            return a
-        if self._inverse is None:
-            inv = np.empty(self.n, dtype=np.intp)
-            inv[self.order] = np.arange(self.n)
-            self._inverse = inv
-        return np.take(a, self._inverse)
+        """Kernel rows → caller rows."""
+        return self.grouping.to_caller(a)
 
-    def caller_pos(self, kernel_row: int) -> int:
-        """Return the caller's positional row of a kernel row."""
-        return kernel_row if self.order is None else int(self.order[kernel_row])
-
-    # -- errors ----------------------------------------------------------------------------------
     def row_error(self, column: Hashable, pos: int, detail: str, track: Any = None) -> Any:
         """Make an InputError naming the column, the index label of caller row ``pos``, a track."""
         label = plain(self.index[pos])
         where = f"column {column!r}, row {label!r}"
         if track is not None:
             where += f" (track {plain(track)!r})"
-        return _input_error(f"{where}: {detail}", str(column), pos, label)
-
-    def column_of(self, argument: str) -> Hashable:
-        """Return the caller's column behind a kernel argument name."""
-        if argument == "t":
-            return self.time
-        if argument == "lat":
-            return self.position[0]
-        if argument in ("positions", "llh"):
-            return ", ".join(str(p) for p in self.position)
-        return argument
-
-    def relabel(self, err: Any) -> Any:
-        """Re-word a kernel error with the caller's column, index label and track label."""
-        track, row = getattr(err, "track", None), getattr(err, "row", None)
-        if track is None or track >= self.n_tracks:
-            return err
-        label = plain(self.labels[track])
-        column = self.column_of(getattr(err, "argument", ""))
-        detail = getattr(err, "detail", str(err))
-        if row is not None:
-            new = self.row_error(column, self.caller_pos(row), detail, label)
-        else:
-            first = self.index[self.caller_pos(int(self.offsets[track]))]
-            new = _input_error(
-                f"track {label!r} (column {self.by!r}, first row {first!r}): {detail}",
-                str(self.by),
-                None,
-                first,
-            )
-        new.track = label
-        return new
+        return input_error(f"{where}: {detail}", str(column), pos, label)
 
     def run(self, options: dict[str, Any]) -> Kinematics:
         """One call of :func:`osculate.kinematics` on all tracks."""
@@ -257,23 +196,7 @@ class _Prepared:
                 raise TypeError(f"{bad}: not an option of the accessor; name the column with by=")
         if self.enu is not None and self.x.shape[1] == 3:
             options = {"up": (0.0, 0.0, 1.0), **options}
-        try:
-            with warnings.catch_warnings(record=True) as caught:
-                warnings.simplefilter("always", SuspectDataWarning)
-                k = _kinematics(self.t, self.x, offsets=self.offsets, **options)
-        except _core.InputError as err:
-            raise self.relabel(err) from None
-        # The data checks name tracks by batch position here: say the caller's labels instead.
-        for w in caught:
-            tracks = getattr(w.message, "tracks", None)
-            if tracks is None:
-                warnings.warn_explicit(w.message, w.category, w.filename, w.lineno)
-                continue
-            bad = np.zeros(len(self.labels), dtype=bool)
-            bad[tracks] = True
-            names = track_names(np.asarray(self.labels), bad)
-            warnings.warn(f"track(s) {names}: {w.message.reason}", SuspectDataWarning, stacklevel=4)
-        return k
+        return _kinematics(self.t, self.x, tracks=self.kernel_grouping, **options)
 
 
 def _quantities(k: Kinematics) -> list[tuple[str, np.ndarray]]:
@@ -282,6 +205,8 @@ def _quantities(k: Kinematics) -> list[tuple[str, np.ndarray]]:
     out = []
     for f in dataclasses.fields(k):
         if f.name.startswith("_") or f.name in _SKIP:
+            continue
+        if f.name in OUTPUTS and f.name not in k.outputs:
             continue
         a = getattr(k, f.name)
         if isinstance(a, np.ndarray) and a.ndim in (1, 2) and a.shape[0] == n and a.dtype != object:
@@ -314,6 +239,22 @@ def result_columns(k: Kinematics) -> list[str]:
     return names
 
 
+def _outputs_for(columns: Any) -> list[str]:
+    """Return the quantities behind result column names (``speed``, ``tangent_x``, ``..._se``).
+
+    Names that match none (unknown ones, ``position``, ``flags``) ask for nothing here;
+    :func:`_select` reports the unknown ones.
+    """
+    wanted = [columns] if isinstance(columns, str) else list(columns)
+    out = []
+    for w in map(str, wanted):
+        base = w[:-3] if w.endswith("_se") else w.replace("_se_", "_")
+        for q in OUTPUTS:
+            if base == q or (base.startswith(f"{q}_") and base[len(q) + 1 :] in ("x", "y", "z")):
+                out.append(q)
+    return out
+
+
 def _select(
     available: list[str], quantities: list[str], enu: tuple[str, ...], columns: Any
 ) -> set[str]:
@@ -326,7 +267,7 @@ def _select(
         if w == "position":
             hits = list(enu)
         if not hits:
-            raise _input_error(
+            raise input_error(
                 f"columns: unknown result {w!r}; choose from {', '.join(quantities)} "
                 f"or one of their components",
                 "columns",
@@ -451,7 +392,7 @@ def _from_results(prep: _Prepared, df: pd.DataFrame) -> Any:
     first, last, code = find_stops(prep.t, prep.x, flags, prep.offsets, np.full(m, np.nan))
     stops = stop_table(prep.t, prep.x, first, last, code, np.arange(m), None)
     return SimpleNamespace(
-        _grouping=Grouping(prep.offsets, None, np.arange(m)),
+        grouping=Grouping(prep.offsets, None, np.arange(m)),
         t=prep.t,
         flags=flags,
         jerk=jerk,
@@ -569,9 +510,12 @@ def _frame(prep: _Prepared, k: Kinematics, columns: Any) -> pd.DataFrame:
             if name in chosen:
                 cols[name] = prep.to_caller(a)
             continue
-        for j, axis in enumerate("xyz"[: a.shape[1]]):
-            if f"{name}_{axis}" in chosen:
-                cols[f"{name}_{axis}"] = prep.to_caller(a[:, j])
+        axes = [(j, f"{name}_{axis}") for j, axis in enumerate("xyz"[: a.shape[1]])]
+        axes = [(j, c) for j, c in axes if c in chosen]
+        if axes:
+            whole = prep.to_caller(a)  # one gather of all components; the columns are views
+            for j, c in axes:
+                cols[c] = whole[:, j]
     return pd.DataFrame(cols, index=prep.index, copy=False)
 
 
@@ -709,6 +653,8 @@ class OscAccessor:
         """
         df = self._df
         prep = _Prepared(df, time, position, by, crs, origin)
+        if columns is not None and "outputs" not in options:
+            options = {**options, "outputs": _outputs_for(columns)}
         k = prep.run(options) if prep.n else _synthetic(prep, options)
         res = _frame(prep, k, columns)
         if not keep:

@@ -16,7 +16,8 @@ except ImportError as exc:  # pragma: no cover - depends on the environment
 
 import pandas as pd
 
-from . import accessor as _accessor  # also registers DataFrame.osc
+from . import accessor  # noqa: F401  (registers DataFrame.osc, which the partitions use)
+from ._columns import input_error
 
 __all__ = ["kinematics", "partition_by_track", "summary"]
 
@@ -64,7 +65,7 @@ def partition_by_track(
         if ddf.known_divisions and not shuffle:
             return ddf
         return ddf.shuffle(on_index=True)
-    raise _accessor._input_error(f"by: column {by!r} not found in the Dask frame", str(by))
+    raise input_error(f"by: column {by!r} not found in the Dask frame", str(by))
 
 
 def _kinematics_part(part: pd.DataFrame, spec: dict[str, Any]) -> pd.DataFrame:

@@ -50,7 +50,6 @@ def check_tracks(
     offsets: npt.NDArray[np.int64],
     labels: np.ndarray,
     flags: npt.NDArray[np.uint8],
-    acceleration: npt.NDArray[np.float64],
     noise: npt.NDArray[np.float64],
     method: str,
 ) -> None:
@@ -58,8 +57,8 @@ def check_tracks(
 
     Parameters
     ----------
-    t, x, flags, acceleration
-        Times, measured positions, flags and estimated r″ of every row, tracks contiguous.
+    t, x, flags
+        Times, measured positions and flags of every row, tracks contiguous.
     offsets : ndarray of int
         Row offsets of the tracks.
     labels : ndarray
@@ -73,7 +72,7 @@ def check_tracks(
     if m == 0 or len(t) < 3:
         return
     with np.errstate(all="ignore"):  # huge or tiny coordinates: the comparisons stay valid
-        findings = _findings(t, x, offsets, flags, acceleration, noise, method)
+        findings = _findings(t, x, offsets, flags, noise, method)
     for bad, message in findings:
         if bad.any():
             warning = SuspectDataWarning(f"track(s) {track_names(labels, bad)}: {message}")
@@ -87,12 +86,11 @@ def _findings(
     x: npt.NDArray[np.float64],
     offsets: npt.NDArray[np.int64],
     flags: npt.NDArray[np.uint8],
-    acceleration: npt.NDArray[np.float64],
     noise: npt.NDArray[np.float64],
     method: str,
 ) -> list[tuple[npt.NDArray[np.bool_], str]]:
     """Per check, the tracks that fail it and what to tell the caller."""
-    st = _core.track_stats(t, x, offsets, np.ascontiguousarray(acceleration))
+    st = _core.track_stats(t, x, offsets)
     m = len(offsets) - 1
     counts = np.diff(offsets)
     step = st["step"]

@@ -203,7 +203,7 @@ def elements_of(
     >>> len(elements_of(osc.kinematics([0.0, 1.0, 2.0], [[0, 0], [1, 0], [2, 0]])))
     0
     """
-    g = k._grouping
+    g = k.grouping
     kern = g.to_kernel
     m = g.n_tracks
     dim = k.dim

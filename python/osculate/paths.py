@@ -12,13 +12,14 @@ from ._estimators import FIT_METHODS, EstimatorOptions, fit_core
 from ._validate import (
     Grouping,
     as_positions,
+    as_real,
     as_times,
     call_kernel,
     group_rows,
     kernel_times,
     ticks_of,
 )
-from .intrinsic import Kinematics, _assemble, _threshold, _up
+from .intrinsic import OUTPUTS, Kinematics, assemble, up_vector
 
 __all__ = ["Path", "fit"]
 
@@ -85,11 +86,8 @@ class Path:
                 row = int(np.flatnonzero(bad)[0])
                 label = ids[row].item() if isinstance(ids[row], np.generic) else ids[row]
                 raise _core.InputError(f"track: row {row}: unknown track {label!r}")
-        order = np.argsort(codes, kind="stable")
-        counts = np.bincount(codes, minlength=len(self.tracks))
-        off = np.zeros(len(self.tracks) + 1, dtype=np.int64)
-        np.cumsum(counts, out=off[1:])
-        g = Grouping(off, order, self.tracks)
+        g = Grouping.from_codes(codes, self.tracks)
+        order = np.arange(len(tq)) if g.order is None else g.order
         if self._origin is None:
             return tq, g, np.ascontiguousarray(tq[order])
         first, per_unit = self._origin
@@ -149,12 +147,13 @@ class Path:
             self._fitted.kinematics_at,
             tk,
             g.offsets,
-            min_speed=_threshold("min_speed", min_speed),
-            min_curvature=_threshold("min_curvature", min_curvature),
-            up=_up(up, self.dim),
+            min_speed=as_real("min_speed", min_speed),
+            min_curvature=as_real("min_curvature", min_curvature),
+            up=up_vector(up, self.dim),
+            outputs=[*OUTPUTS, "position"],
         )
-        pos = g.to_caller(call_kernel(g, self._fitted.evaluate, tk, g.offsets, 0))
-        return _assemble(tq, pos, g, raw, self._opts, self.fit_info, grouped=track is not None)
+        pos = g.to_caller(raw.pop("position"))
+        return assemble(tq, pos, g, raw, self._opts, self.fit_info, grouped=track is not None)
 
     def arclength(self, t: npt.ArrayLike, *, track: Any = None) -> F64:
         """Arc length from the track's first sample to each time in ``t``."""

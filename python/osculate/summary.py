@@ -74,7 +74,7 @@ def summarize(k: Kinematics) -> dict[str, np.ndarray]:
 
 
 def _summarize(k: Kinematics) -> dict[str, np.ndarray]:
-    g = k._grouping
+    g = k.grouping
     kern = g.to_kernel
     m = g.n_tracks
     starts = g.offsets[:-1]

@@ -151,7 +151,7 @@ class SpeedChanges(_Table):
 
 def _plane(k: Kinematics, up: Any) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """Kernel-order signed curvature, positions and velocities in the plane of the turns."""
-    g = k._grouping
+    g = k.grouping
     kern = g.to_kernel
     c = np.ascontiguousarray
     if k.dim == 2:
@@ -182,8 +182,7 @@ def _half(k: Kinematics) -> int:
 
 
 def _caller_rows(k: Kinematics, rows: np.ndarray) -> npt.NDArray[np.int64]:
-    order = k._grouping.order
-    return np.asarray(rows if order is None else order[rows], dtype=np.int64)
+    return k.grouping.caller_rows(rows)
 
 
 def find_turns(
@@ -214,7 +213,7 @@ def find_turns(
     >>> str(t0.direction), round(float(t0.heading_change)), round(float(t0.min_radius), 2)
     ('right', -180, 15.0)
     """
-    g = k._grouping
+    g = k.grouping
     kern = g.to_kernel
     kappa, xy, vxy = _plane(k, up)
     se = (k.se or {}).get("curvature")
@@ -294,7 +293,7 @@ def find_speed_changes(
     >>> str(ch.kind[0]), round(float(ch.peak_accel[0]), 1), round(float(ch.speed_before[0]))
     ('slow-down', 4.0, 20)
     """
-    g = k._grouping
+    g = k.grouping
     kern = g.to_kernel
     on = as_real("threshold", threshold)
     off = on / 2 if release is None else as_real("release", release)

@@ -190,7 +190,8 @@ impl FittedPaths {
 
     /// Kinematics at the fitted samples, on the rows of the fit.
     #[pyo3(signature = (*, min_speed, min_curvature, gap_factor, up=None, uncertainty=false,
-        auto_speed=false, auto_curvature=false, significance=3.0, max_relative_se=0.25))]
+        auto_speed=false, auto_curvature=false, significance=3.0, max_relative_se=0.25,
+        outputs=None))]
     #[allow(clippy::too_many_arguments)]
     fn kinematics<'py>(
         &self,
@@ -204,9 +205,12 @@ impl FittedPaths {
         auto_curvature: bool,
         significance: f64,
         max_relative_se: f64,
+        outputs: Option<Vec<String>>,
     ) -> PyResult<Bound<'py, PyDict>> {
+        let want = detached(py, || super::kinematics::outputs(outputs))?;
         let opts = Options {
             uncertainty,
+            outputs: want,
             significance: self::significance(
                 auto_speed,
                 auto_curvature,
@@ -216,11 +220,12 @@ impl FittedPaths {
             ..options(FdOrder::Two, min_speed, min_curvature, gap_factor, up)
         };
         let k = detached(py, || of_fits(&self.fits, &opts))?;
-        to_dict(py, k)
+        to_dict(py, k, want)
     }
 
     /// Kinematics at times `t` grouped by track with `query_offsets`.
-    #[pyo3(signature = (t, query_offsets, *, min_speed, min_curvature, up=None))]
+    #[pyo3(signature = (t, query_offsets, *, min_speed, min_curvature, up=None, outputs=None))]
+    #[allow(clippy::too_many_arguments)]
     fn kinematics_at<'py>(
         &self,
         py: Python<'py>,
@@ -229,12 +234,17 @@ impl FittedPaths {
         min_speed: f64,
         min_curvature: f64,
         up: Option<[f64; 3]>,
+        outputs: Option<Vec<String>>,
     ) -> PyResult<Bound<'py, PyDict>> {
         let t = contiguous("t", t.as_slice())?;
         let q = contiguous("query_offsets", query_offsets.as_slice())?;
-        let opts = options(FdOrder::Two, min_speed, min_curvature, f64::INFINITY, up);
+        let want = detached(py, || super::kinematics::outputs(outputs))?;
+        let opts = Options {
+            outputs: want,
+            ..options(FdOrder::Two, min_speed, min_curvature, f64::INFINITY, up)
+        };
         let k = detached(py, || of_fits_at(&self.fits, t, q, &opts))?;
-        to_dict(py, k)
+        to_dict(py, k, want)
     }
 
     /// Derivative `nu` (0 to 3) of every track at times `t` grouped with `query_offsets`.

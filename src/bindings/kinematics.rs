@@ -3,7 +3,7 @@
 use super::error::{contiguous, detached, rows};
 use crate::diff::FdOrder;
 use crate::frame::Thresholds;
-use crate::kinematics::{kinematics, Kinematics, Options};
+use crate::kinematics::{kinematics, Kinematics, Options, Outputs};
 use crate::uncertainty::Significance;
 use crate::KernelError;
 use numpy::{IntoPyArray, PyArray1, PyReadonlyArray1, PyReadonlyArray2, PyUntypedArrayMethods};
@@ -24,7 +24,13 @@ fn column<'py>(
     })
 }
 
-pub(crate) fn to_dict(py: Python<'_>, k: Kinematics) -> PyResult<Bound<'_, PyDict>> {
+/// The columns asked for (`outputs`), the flags, the noise per track and, when computed, the
+/// standard errors of the columns asked for.
+pub(crate) fn to_dict(
+    py: Python<'_>,
+    k: Kinematics,
+    outputs: Outputs,
+) -> PyResult<Bound<'_, PyDict>> {
     let (n, d) = (k.n, k.dim);
     let out = PyDict::new(py);
     let vectors = [
@@ -45,9 +51,12 @@ pub(crate) fn to_dict(py: Python<'_>, k: Kinematics) -> PyResult<Bound<'_, PyDic
         ("accel_normal", k.accel_normal, 1),
         ("angular_speed", k.angular_speed, 1),
         ("angular_accel", k.angular_accel, 1),
+        ("position", k.position, d),
     ];
     for (name, v, w) in vectors {
-        out.set_item(name, column(py, v, n, w)?)?;
+        if outputs.has(name) {
+            out.set_item(name, column(py, v, n, w)?)?;
+        }
     }
     out.set_item("flags", k.flags.into_pyarray(py))?;
     out.set_item("noise", k.noise.into_pyarray(py))?;
@@ -67,11 +76,26 @@ pub(crate) fn to_dict(py: Python<'_>, k: Kinematics) -> PyResult<Bound<'_, PyDic
             ("radius", k.se_radius),
         ];
         for (name, v) in columns {
-            se.set_item(name, v.into_pyarray(py))?;
+            let asked = if name == "position" {
+                "position_se"
+            } else {
+                name
+            };
+            if outputs.has(asked) || (name == "curvature" && outputs.has("signed_curvature")) {
+                se.set_item(name, v.into_pyarray(py))?;
+            }
         }
         out.set_item("se", se)?;
     }
     Ok(out)
+}
+
+/// The set of outputs named by the caller (None: every quantity).
+pub(crate) fn outputs(names: Option<Vec<String>>) -> crate::Result<Outputs> {
+    match names {
+        None => Ok(Outputs::ALL),
+        Some(v) => Outputs::from_names(v.iter().map(String::as_str)),
+    }
 }
 
 /// Kinematics options from the keyword arguments every kinematics binding takes (no standard
@@ -114,7 +138,7 @@ pub(crate) fn significance(
 #[pyfunction]
 #[pyo3(signature = (t, positions, offsets, *, order, min_speed, min_curvature, gap_factor, up=None,
     uncertainty=false, auto_speed=false, auto_curvature=false, significance=3.0,
-    max_relative_se=0.25))]
+    max_relative_se=0.25, outputs=None))]
 #[allow(clippy::too_many_arguments)]
 pub fn fd_kinematics<'py>(
     py: Python<'py>,
@@ -131,6 +155,7 @@ pub fn fd_kinematics<'py>(
     auto_curvature: bool,
     significance: f64,
     max_relative_se: f64,
+    outputs: Option<Vec<String>>,
 ) -> PyResult<Bound<'py, PyDict>> {
     let dim = positions.shape()[1];
     let (t, x, off) = (
@@ -138,6 +163,7 @@ pub fn fd_kinematics<'py>(
         contiguous("positions", positions.as_slice())?,
         contiguous("offsets", offsets.as_slice())?,
     );
+    let want = detached(py, || self::outputs(outputs))?;
     let result = detached(py, || {
         let order = FdOrder::from_int(order).ok_or_else(|| KernelError::Option {
             argument: "order",
@@ -145,6 +171,7 @@ pub fn fd_kinematics<'py>(
         })?;
         let opts = Options {
             uncertainty,
+            outputs: want,
             significance: self::significance(
                 auto_speed,
                 auto_curvature,
@@ -155,7 +182,7 @@ pub fn fd_kinematics<'py>(
         };
         kinematics(t, x, dim, off, &opts)
     })?;
-    to_dict(py, result)
+    to_dict(py, result, want)
 }
 
 /// Cumulative polyline length per track, after checking the times.
@@ -185,14 +212,12 @@ pub fn track_stats<'py>(
     t: PyReadonlyArray1<'py, f64>,
     positions: PyReadonlyArray2<'py, f64>,
     offsets: PyReadonlyArray1<'py, i64>,
-    acceleration: PyReadonlyArray2<'py, f64>,
 ) -> PyResult<Bound<'py, PyDict>> {
     let dim = positions.shape()[1];
     let t = contiguous("t", t.as_slice())?;
     let x = contiguous("positions", positions.as_slice())?;
     let off = contiguous("offsets", offsets.as_slice())?;
-    let a = contiguous("acceleration", acceleration.as_slice())?;
-    let s = detached(py, || crate::diagnose::track_stats(t, x, dim, off, a))?;
+    let s = detached(py, || crate::diagnose::track_stats(t, x, dim, off))?;
     let out = PyDict::new(py);
     out.set_item("step", s.step.into_pyarray(py))?;
     out.set_item("back", s.back.into_pyarray(py))?;

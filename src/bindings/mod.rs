@@ -5,6 +5,7 @@ mod elements;
 mod error;
 mod fit;
 mod geodesy;
+mod grouping;
 mod kinematics;
 mod line_integral;
 mod summary;
@@ -19,6 +20,8 @@ pub use error::InputError;
 fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add("__version__", env!("CARGO_PKG_VERSION"))?;
     m.add("InputError", m.py().get_type::<InputError>())?;
+    m.add_function(wrap_pyfunction!(grouping::group_rows, m)?)?;
+    m.add_function(wrap_pyfunction!(grouping::take_rows, m)?)?;
     m.add_function(wrap_pyfunction!(kinematics::fd_kinematics, m)?)?;
     m.add_function(wrap_pyfunction!(kinematics::polyline_arclength, m)?)?;
     m.add_function(wrap_pyfunction!(kinematics::track_stats, m)?)?;

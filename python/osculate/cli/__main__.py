@@ -1,0 +1,7 @@
+"""``python -m osculate.cli``: the console script."""
+
+import sys
+
+from . import main
+
+sys.exit(main())

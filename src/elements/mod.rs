@@ -1,0 +1,324 @@
+//! Geometric elements of recorded paths: straights, circular arcs and transition spirals
+//! (clothoids), as in a road or rail alignment, reconstructed from the curvature diagram κ(s).
+//!
+//! Per track, in three steps:
+//!
+//! 1. **Segmentation.** The signed curvature against arc length is cut into pieces on which κ is
+//!    linear in s, by exact penalized segmentation: optimal partitioning with PELT pruning
+//!    (R. Killick, P. Fearnhead & I. A. Eckley, JASA 107 (2012) 1590–1598). The cost of a piece is
+//!    its weighted least-squares residual about a line, O(1) from prefix sums of w, ws, ws², wκ,
+//!    wsκ, wκ² (kept as double-double sums so that a short piece far along a long track keeps its
+//!    digits). The weights are `w = 1/(c·se_eff²)`: `se_eff² = se² + (resolution · p95|κ|)²`
+//!    (the floor keeps noise-free data from turning the smoother's rounding at curvature kinks
+//!    into pieces) and `c` the correlation length of the curvature estimates in samples:
+//!    smoothed curvatures of neighbouring samples share their noise, and dividing by `c` counts
+//!    them about once per independent value. `c` = [`CORRELATION_BANDWIDTHS`] = 3 smoothing
+//!    bandwidths (the main lobe of the cubic smoothing spline's equivalent kernel spans about
+//!    ±3.3 bandwidths, B. W. Silverman, Ann. Statist. 12 (1984) 898–916); on the noisy test
+//!    chains of `tests/test_elements.py` (3 cm noise, 12 seeds) c = 2 bandwidths gave the right
+//!    kinds in 7 of 12, 3 and 4 bandwidths in 12 of 12. Every piece adds `penalty`
+//!    to the total; the default is the BIC-like `β = 3 ln n_eff` (a level, a slope and a change
+//!    point per piece, Schwarz's ln n per parameter, over `n_eff = n / c` independent values).
+//!    Every piece spans at least `min_length` of arc length; PELT's pruning is delayed until a
+//!    piece of that length fits after the candidate, which keeps the search exact.
+//! 2. **Classification.** Per piece, the level at its weighted centre and the slope, with their
+//!    standard errors `1/√Σw` and `1/√Σw(s − s̄)²`: a piece whose level and slope are both within
+//!    `significance` standard errors of zero is a straight, else one whose slope is is an arc,
+//!    else a spiral. Neighbours of the same kind are merged (and refitted) unless keeping them
+//!    apart lowers the weighted cost of their kind's model (κ = 0, κ constant, κ linear) by more
+//!    than the penalty: a compound curve (two radii) stays two arcs.
+//! 3. **Refinement in position space.** The chain of elements is a curve with continuous position
+//!    and heading; curvature is continuous at the ends of spirals (a spiral starts where its
+//!    neighbour ends: 0 next to a straight, the arc's curvature next to an arc). Its parameters
+//!    (start point, start heading, each element's length, the curvatures of arcs and of free
+//!    spiral ends) are fitted to the positions by Levenberg–Marquardt on the distances of the
+//!    samples from the chain along its normal (foot points re-projected by Newton steps after
+//!    every accepted step); the first and last samples are tied to the chain's ends. Chain points
+//!    come from [`crate::fresnel::advance`]; the Jacobian from the chain's rigid-motion structure
+//!    (a change in an element moves every later point by a rotation about the element's end),
+//!    with forward differences of single elements. If the fit fails, or the chain has more than
+//!    [`MAX_PARAMETERS`] parameters (the normal equations are dense), the elements of the
+//!    curvature diagram are returned with `refined = false`, placed by a rigid fit of the chain to
+//!    the samples.
+
+mod chain;
+mod classify;
+mod refine;
+mod segment;
+mod table;
+mod track;
+
+pub use table::{Element, Options, Samples, ARC, SPIRAL, STRAIGHT, UNUSABLE};
+
+use crate::batch::{check_offsets, track_rows};
+use crate::error::{try_collect, KernelError, Result};
+use rayon::prelude::*;
+
+/// Refinement is skipped (curvature-diagram elements returned) beyond this many parameters.
+pub const MAX_PARAMETERS: usize = 400;
+/// Fewest usable samples for any element.
+pub const MIN_SAMPLES: usize = 4;
+/// Correlation length of smoothed curvatures, in smoothing bandwidths (see the module notes).
+pub const CORRELATION_BANDWIDTHS: f64 = 3.0;
+/// Default shortest element, in smoothing bandwidths (at least 3 sample spacings). The smoother
+/// rounds the curvature diagram over a few bandwidths, so a shorter piece is mostly rounding:
+/// on the noisy chains of `tests/test_elements.py` (3 cm noise, 24 paths, bandwidth about 4.5
+/// samples) 2 bandwidths gave the right kinds for 15 paths, 4 for 20, 5 for 23, 6 for all 24.
+pub const MIN_LENGTH_BANDWIDTHS: f64 = 6.0;
+/// Default penalty per piece: `PENALTY_PER_LOG · ln n_eff` (see the module notes).
+pub const PENALTY_PER_LOG: f64 = 3.0;
+
+/// Element of rank round((len − 1)·q) of `v` (reorders `v`); NaN if empty.
+fn quantile(v: &mut [f64], q: f64) -> f64 {
+    if v.is_empty() {
+        return f64::NAN;
+    }
+    let pos = ((v.len() - 1) as f64 * q).round() as usize;
+    *v.select_nth_unstable_by(pos, f64::total_cmp).1
+}
+
+fn median_spacing(s: &Samples, r: std::ops::Range<usize>) -> Result<f64> {
+    let mut d = try_collect(
+        r.len(),
+        r.clone()
+            .skip(1)
+            .filter(|&i| s.flags[i] & UNUSABLE == 0)
+            .map(|i| s.arclength[i] - s.arclength[i - 1])
+            .filter(|v| v.is_finite() && *v > 0.0),
+    )?;
+    Ok(quantile(&mut d, 0.5))
+}
+
+/// The elements of every track of a batch, track by track in order.
+///
+/// # Examples
+///
+/// ```
+/// use osculate::elements::{elements, Options, Samples, STRAIGHT};
+/// // A straight line along y = x, 50 samples 1 apart: one straight of length 49·√2.
+/// let n = 50;
+/// let t: Vec<f64> = (0..n).map(|i| i as f64).collect();
+/// let s: Vec<f64> = t.iter().map(|&v| v * 2f64.sqrt()).collect();
+/// let xy: Vec<f64> = t.iter().flat_map(|&v| [v, v]).collect();
+/// let samples = Samples {
+///     t: &t, arclength: &s, curvature: &vec![0.0; n], se: &vec![1e-4; n],
+///     flags: &vec![0; n], xy: &xy,
+/// };
+/// let opt = Options {
+///     penalty: f64::NAN, min_length: &[f64::NAN], bandwidth: &[f64::NAN], significance: 3.0,
+///     resolution: 1e-3, refine: true, max_iterations: 50,
+/// };
+/// let out = elements(&samples, &[0, n as i64], &opt).unwrap();
+/// assert_eq!(out.len(), 1);
+/// assert_eq!(out[0].kind, STRAIGHT);
+/// assert!((out[0].length - 49.0 * 2f64.sqrt()).abs() < 1e-9);
+/// ```
+pub fn elements(s: &Samples, offsets: &[i64], opt: &Options) -> Result<Vec<Element>> {
+    let n = s.t.len();
+    for (name, len) in [
+        ("arclength", s.arclength.len()),
+        ("curvature", s.curvature.len()),
+        ("se", s.se.len()),
+        ("flags", s.flags.len()),
+    ] {
+        if len != n {
+            return Err(KernelError::Shape {
+                argument: name,
+                detail: format!("expected {n} rows (as t), got {len}"),
+            });
+        }
+    }
+    if s.xy.len() != 2 * n {
+        return Err(KernelError::Shape {
+            argument: "positions",
+            detail: format!("expected {n} rows of 2 coordinates"),
+        });
+    }
+    let offsets = check_offsets(offsets, n)?;
+    let m = offsets.len() - 1;
+    for (name, a) in [("min_length", opt.min_length), ("bandwidth", opt.bandwidth)] {
+        if a.len() != m {
+            return Err(KernelError::Shape {
+                argument: name,
+                detail: format!("expected one value per track ({m}), got {}", a.len()),
+            });
+        }
+    }
+    let bad =
+        |argument: &'static str, detail: String| Err(KernelError::Option { argument, detail });
+    if !(opt.penalty.is_nan() || (opt.penalty.is_finite() && opt.penalty >= 0.0)) {
+        return bad(
+            "penalty",
+            format!("must be finite and >= 0, got {}", opt.penalty),
+        );
+    }
+    if !(opt.significance.is_finite() && opt.significance > 0.0) {
+        return bad(
+            "significance",
+            format!("must be finite and > 0, got {}", opt.significance),
+        );
+    }
+    if !(opt.resolution.is_finite() && opt.resolution >= 0.0) {
+        return bad(
+            "resolution",
+            format!("must be finite and >= 0, got {}", opt.resolution),
+        );
+    }
+    for (k, &v) in opt.min_length.iter().enumerate() {
+        if !(v.is_nan() || (v.is_finite() && v >= 0.0)) {
+            return Err(KernelError::Track {
+                argument: "min_length",
+                track: k,
+                detail: format!("must be finite and >= 0, got {v}"),
+            });
+        }
+    }
+    let per_track: Vec<Result<Vec<Element>>> = (0..m)
+        .into_par_iter()
+        .map(|k| {
+            let r = track_rows(&offsets, k);
+            let band = opt.bandwidth[k];
+            let band = if band.is_finite() && band > 0.0 {
+                band
+            } else {
+                1.0 / CORRELATION_BANDWIDTHS
+            };
+            let corr = (CORRELATION_BANDWIDTHS * band).max(1.0);
+            let min_length = if opt.min_length[k].is_nan() {
+                let h = median_spacing(s, r.clone())?;
+                if h.is_finite() {
+                    h * (MIN_LENGTH_BANDWIDTHS * band).max(3.0)
+                } else {
+                    0.0
+                }
+            } else {
+                opt.min_length[k]
+            };
+            track::one_track(s, r, k, opt, min_length, corr)
+        })
+        .collect();
+    let mut total = 0;
+    for v in per_track.iter().flatten() {
+        total += v.len();
+    }
+    let mut out = Vec::new();
+    out.try_reserve_exact(total)
+        .map_err(|_| KernelError::OutOfMemory {
+            bytes: total * std::mem::size_of::<Element>(),
+        })?;
+    for p in per_track {
+        out.extend(p?);
+    }
+    Ok(out)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::fresnel::{advance, Pose};
+
+    /// Samples of a chain of (kind, length, k0, k1) at unit arc-length steps, exact curvature.
+    fn chain_samples(parts: &[(f64, f64, f64)], step: f64) -> (Vec<f64>, Vec<f64>, Vec<f64>) {
+        let mut s = vec![];
+        let mut k = vec![];
+        let mut xy = vec![];
+        let mut pose = Pose {
+            x: 0.0,
+            y: 0.0,
+            heading: 0.3,
+        };
+        let mut u0 = 0.0;
+        for &(l, k0, k1) in parts {
+            let mut v = 0.0;
+            while v < l - 1e-9 {
+                let p = advance(pose, k0, (k1 - k0) / l, v);
+                s.push(u0 + v);
+                k.push(k0 + (k1 - k0) * v / l);
+                xy.extend([p.x, p.y]);
+                v += step;
+            }
+            pose = advance(pose, k0, (k1 - k0) / l, l);
+            u0 += l;
+        }
+        (s, k, xy)
+    }
+
+    #[test]
+    fn exact_chain_is_recovered() {
+        // straight 50 → spiral 40 (0 → 1/100) → arc 60 → spiral 40 → straight 50; samples every
+        // 1.0 of arc length, exact curvatures: the elements' lengths to 1e-6 (the fit's
+        // tolerance), radius 100 and A = √(40·100) = 63.25 (A² = R L).
+        let r = 100.0;
+        let parts = [
+            (50.0, 0.0, 0.0),
+            (40.0, 0.0, 1.0 / r),
+            (60.0, 1.0 / r, 1.0 / r),
+            (40.0, 1.0 / r, 0.0),
+            (50.0, 0.0, 0.0),
+        ];
+        let (s, k, xy) = chain_samples(&parts, 1.0);
+        let n = s.len();
+        let samples = Samples {
+            t: &s,
+            arclength: &s,
+            curvature: &k,
+            se: &vec![1e-6; n],
+            flags: &vec![0; n],
+            xy: &xy,
+        };
+        let opt = Options {
+            penalty: f64::NAN,
+            min_length: &[f64::NAN],
+            bandwidth: &[f64::NAN],
+            significance: 3.0,
+            resolution: 1e-3,
+            refine: true,
+            max_iterations: 100,
+        };
+        let out = elements(&samples, &[0, n as i64], &opt).unwrap();
+        let kinds: Vec<u8> = out.iter().map(|e| e.kind).collect();
+        assert_eq!(kinds, vec![STRAIGHT, SPIRAL, ARC, SPIRAL, STRAIGHT]);
+        assert!(out.iter().all(|e| e.refined));
+        // The last straight ends at the last sample (249), not at 240.
+        let want = [50.0, 40.0, 60.0, 40.0, 49.0];
+        for (e, w) in out.iter().zip(want) {
+            assert!((e.length - w).abs() < 1e-6, "{:?}", out);
+        }
+        assert!((out[2].radius - r).abs() < 1e-6);
+        assert!((out[1].spiral_parameter - (40.0 * r).sqrt()).abs() < 1e-6);
+        assert!(out.iter().all(|e| e.max_distance < 1e-8));
+    }
+
+    #[test]
+    fn bad_options_name_the_argument() {
+        let z = vec![0.0; 10];
+        let t: Vec<f64> = (0..10).map(|i| i as f64).collect();
+        let samples = Samples {
+            t: &t,
+            arclength: &t,
+            curvature: &z,
+            se: &z,
+            flags: &[0; 10],
+            xy: &[0.0; 20],
+        };
+        let mut opt = Options {
+            penalty: -1.0,
+            min_length: &[f64::NAN],
+            bandwidth: &[f64::NAN],
+            significance: 3.0,
+            resolution: 1e-3,
+            refine: true,
+            max_iterations: 10,
+        };
+        assert_eq!(
+            elements(&samples, &[0, 10], &opt).unwrap_err().argument(),
+            "penalty"
+        );
+        opt.penalty = f64::NAN;
+        opt.min_length = &[-1.0];
+        assert_eq!(
+            elements(&samples, &[0, 10], &opt).unwrap_err().argument(),
+            "min_length"
+        );
+    }
+}
