@@ -2,27 +2,33 @@
 
     python benches/work_case.py [--quick] [--out FILE.json]
 
-Two cases, each checked equal before it is timed:
+Three cases, the first two checked equal before they are timed:
 
 sampled
     One 3-D track of 1e7 samples (``--quick``: 1e6; ``data.one_track``) with a force sampled at
     every row. osculate: ``osc.work(x, F)`` (trapezoid rule, total), once with
     ``estimate_error=False`` — the same computation as the reference — and once with the default
-    error estimate (which adds the four-point cubic rule). Reference: NumPy trapezoid on the
-    segments, ``einsum("ij,ij->", (F[1:] + F[:-1]) / 2, diff(x))``.
+    error estimate (which adds the four-point cubic rule, summed in the same streaming sweep).
+    Reference: NumPy trapezoid on the segments, ``einsum("ij,ij->", (F[1:] + F[:-1]) / 2,
+    diff(x))``.
 grid
     1e6 samples (``--quick``: 1e5) of the same kind of track inside a 256³ grid (``--quick``:
     64³) of 3-vectors. osculate: ``osc.work(x, GridField(...), nodes=2)`` (trilinear
     interpolation at 2 Gauss–Legendre nodes per segment), with and without the error estimate
     (which adds the midpoint node). Reference: ``scipy.interpolate.RegularGridInterpolator``
     (method "linear") at the same 2 nodes per segment, then the same weighted einsum.
+threads
+    ``osc.work(x, F)`` of the sampled case (error estimate on) in fresh processes with
+    ``RAYON_NUM_THREADS`` 1 and 2, alternating (as ``run.py``'s threads case does, so that a
+    change of load hits both alike); the outputs must be bit-identical.
 
 Equality is checked to |a − b| ≤ ``RTOL_SUM`` · Σ|terms| (the two sum in different orders; the
 rounding of a sum of N terms is at most about N·eps·Σ|terms|, and osculate sums runs of at most
 16,384 terms before adding the runs, so 16,384·eps ≈ 3.6e-12 bounds its part). Field objects
 (``GridField``, the interpolator) are built before timing; each timing is the median of repeated
 calls after one warm-up call. Targets (reported PASS / MISS, never asserted): ≥ 3× for sampled
-forces and ≥ 10× for the grid, each for the same computation (without the error estimate).
+forces, for the same computation and with the error estimate on; ≥ 10× for the grid (the same
+computation, without the error estimate); ≥ 1.7× from 1 to 2 rayon threads.
 
 ``run(quick) -> dict`` is the entry point for a driver; ``main`` prints the dict as JSON.
 """
@@ -31,7 +37,9 @@ from __future__ import annotations
 
 import argparse
 import json
+import os
 import statistics
+import subprocess
 import sys
 import time
 from pathlib import Path
@@ -51,7 +59,7 @@ SIZES = {
     False: {"sampled": 10_000_000, "grid_samples": 1_000_000, "grid_nodes": 256},
     True: {"sampled": 1_000_000, "grid_samples": 100_000, "grid_nodes": 64},
 }
-TARGETS = {"sampled": 3.0, "grid": 10.0}
+TARGETS = {"sampled": 3.0, "sampled_with_estimate": 3.0, "grid": 10.0, "threads": 1.7}
 #: Allowed |a − b| / Σ|terms| between osculate and the reference (see the module docstring).
 RTOL_SUM = 1e-10
 GL2 = (np.array([-1.0, 1.0]) / np.sqrt(3.0), np.array([1.0, 1.0]))
@@ -114,7 +122,9 @@ def case_sampled(n: int, repeats: int) -> dict[str, Any]:
         "osculate_trapezoid_with_error_estimate": with_estimate,
         "numpy_trapezoid": reference,
         "speedup_same_computation": _ratio(reference, same, TARGETS["sampled"]),
-        "speedup_with_error_estimate": reference["median_s"] / with_estimate["median_s"],
+        "speedup_with_error_estimate": _ratio(
+            reference, with_estimate, TARGETS["sampled_with_estimate"]
+        ),
     }
 
 
@@ -169,24 +179,83 @@ def case_grid(n: int, k: int, repeats: int) -> dict[str, Any]:
     }
 
 
+# ------------------------------------------------------------------------------ thread scaling
+
+
+def _thread_child(n: int, repeats: int) -> dict[str, Any]:
+    """In a fresh process: time ``osc.work(x, F)`` on the sampled case; the outputs' bits."""
+    _, x = data.one_track(n)
+    f = force_field(x)
+    w = osc.work(x, f)
+    timing = _timed(lambda: osc.work(x, f), repeats)
+    return {**timing, "bits": [float(w.total[0]).hex(), float(w.error[0]).hex()]}
+
+
+def case_threads(n: int, repeats: int, rounds: int) -> dict[str, Any]:
+    parts: dict[str, list[dict[str, Any]]] = {"1": [], "2": []}
+    for _ in range(rounds):  # processes alternate, so that a change of load hits both alike
+        for k in parts:
+            env = {**os.environ, "RAYON_NUM_THREADS": k}
+            cmd = [sys.executable, __file__, "--thread-child", str(n), str(repeats)]
+            proc = subprocess.run(cmd, env=env, capture_output=True, text=True, check=False)
+            if proc.returncode != 0:
+                raise RuntimeError(f"{' '.join(cmd)} failed:\n{proc.stderr}")
+            parts[k].append(json.loads(proc.stdout.strip().splitlines()[-1]))
+    if len({tuple(p["bits"]) for k in parts for p in parts[k]}) != 1:
+        raise AssertionError("threads: outputs with 1 and 2 rayon threads are not bit-identical")
+    median = {k: statistics.median(p["median_s"] for p in v) for k, v in parts.items()}
+    one, two = ({"median_s": median[k]} for k in ("1", "2"))
+    return {
+        "samples": n,
+        "rayon_1_thread": one,
+        "rayon_2_threads": two,
+        "outputs_bit_identical": True,
+        "speedup_2_threads": _ratio(one, two, TARGETS["threads"]),
+    }
+
+
 def run(quick: bool) -> dict[str, Any]:
-    """Check, time and compare both cases; return the figures and each target's PASS / MISS."""
+    """Check, time and compare the cases; return the figures and each target's PASS / MISS."""
     size = SIZES[quick]
     repeats = 3 if quick else 5
     return {
         "sampled": case_sampled(size["sampled"], repeats),
         "grid": case_grid(size["grid_samples"], size["grid_nodes"], repeats),
+        "threads": case_threads(size["sampled"], repeats, 1 if quick else 2),
     }
 
 
+def _rows(figures: dict[str, Any]) -> list[str]:
+    """One line per target: what, measured, goal, PASS / MISS."""
+    out = []
+    for case, label in (
+        ("sampled", "work/sampled {samples:.0e} vs NumPy einsum trapezoid"),
+        ("grid", "work/grid {samples:.0e} vs RegularGridInterpolator"),
+        ("threads", "work/sampled {samples:.0e}, 1 -> 2 rayon threads"),
+    ):
+        c = figures[case]
+        for key, d in c.items():
+            if isinstance(d, dict) and "status" in d:
+                what = label.format(samples=c["samples"]) + f" ({key.replace('_', ' ')})"
+                goal = f">= {d['target']:g}x"
+                out.append(f"  {d['status']:<4}  {what:<88} {d['measured']:6.2f}x  {goal}")
+    return out
+
+
 def main() -> None:
-    """Command line: print the figures as JSON (and write them with --out)."""
+    """Command line: print the targets and the figures as JSON (and write them with --out)."""
     p = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     p.add_argument("--quick", action="store_true", help="1e6 / 1e5 samples, 64³ grid")
     p.add_argument("--out", type=Path, help="also write the JSON here")
+    p.add_argument("--thread-child", nargs=2, type=int, help=argparse.SUPPRESS)
     args = p.parse_args()
-    text = json.dumps(run(args.quick), indent=2)
+    if args.thread_child:
+        print(json.dumps(_thread_child(*args.thread_child)))
+        return
+    figures = run(args.quick)
+    text = json.dumps(figures, indent=2)
     print(text)
+    print("\n".join(_rows(figures)), file=sys.stderr)
     if args.out is not None:
         args.out.write_text(text + "\n")
 

@@ -32,7 +32,7 @@ impl Outside {
             "clamp" => Ok(Outside::Clamp),
             other => Err(KernelError::Option {
                 argument: "outside",
-                detail: format!("expected \"error\", \"nan\" or \"clamp\", got {other:?}"),
+                detail: format!("expected one of ('error', 'nan', 'clamp'), got '{other}'"),
             }),
         }
     }
@@ -49,13 +49,6 @@ pub struct GridField<'a> {
     strides: [usize; 3],
     outside: Outside,
     values: &'a [f64],
-}
-
-/// Where a point falls: the cell of each axis and the fraction across it.
-#[derive(Debug, Clone, Copy)]
-struct Cell {
-    index: [usize; 3],
-    frac: [f64; 3],
 }
 
 impl<'a> GridField<'a> {
@@ -180,33 +173,6 @@ impl<'a> GridField<'a> {
         self.outside
     }
 
-    /// The cell of `p`, or None when `p` is outside (beyond [`BOUNDARY_SLACK`]) with
-    /// [`Outside::Error`] / [`Outside::Nan`], or not finite.
-    #[inline]
-    fn locate(&self, p: &[f64]) -> Option<Cell> {
-        let mut c = Cell {
-            index: [0; 3],
-            frac: [0.0; 3],
-        };
-        for a in 0..self.ndim {
-            let top = (self.shape[a] - 1) as f64;
-            let mut u = (p[a] - self.origin[a]) * self.inv_spacing[a];
-            if !u.is_finite() {
-                return None;
-            }
-            let inside = (-BOUNDARY_SLACK..=top + BOUNDARY_SLACK).contains(&u);
-            if !inside && self.outside != Outside::Clamp {
-                return None;
-            }
-            u = u.clamp(0.0, top);
-            // Last cell for points on the upper face, so that the fraction stays in [0, 1].
-            let i = (u.floor() as usize).min(self.shape[a] - 2);
-            c.index[a] = i;
-            c.frac[a] = u - i as f64;
-        }
-        Some(c)
-    }
-
     /// Whether `p` lies in the grid box (within [`BOUNDARY_SLACK`] cells).
     pub fn contains(&self, p: &[f64]) -> bool {
         (0..self.ndim).all(|a| {
@@ -220,36 +186,71 @@ impl<'a> GridField<'a> {
     /// finite; under [`Outside::Nan`] an outside point gives NaN and true.
     #[inline]
     pub fn eval(&self, p: &[f64], out: &mut [f64]) -> bool {
-        let cell = match self.locate(p) {
-            Some(c) => c,
-            None => {
-                out[..self.comps].fill(f64::NAN);
-                let finite = p[..self.ndim].iter().all(|v| v.is_finite());
-                return finite && self.outside == Outside::Nan;
+        match (self.ndim, self.comps) {
+            (3, 3) => self.eval_in::<3, 3>(p, out),
+            (3, 1) => self.eval_in::<3, 1>(p, out),
+            (3, _) => self.eval_in::<3, 0>(p, out),
+            (_, 2) => self.eval_in::<2, 2>(p, out),
+            (_, 1) => self.eval_in::<2, 1>(p, out),
+            _ => self.eval_in::<2, 0>(p, out),
+        }
+    }
+
+    /// [`GridField::eval`] for `N` axes and `C` components (`C` = 0: any number, given at run
+    /// time), so that the loops unroll. The cell of each axis is the floor of the clamped
+    /// coordinate (`u as usize` for u ≥ 0), the last cell on the upper face.
+    #[inline(always)]
+    pub(crate) fn eval_in<const N: usize, const C: usize>(
+        &self,
+        p: &[f64],
+        out: &mut [f64],
+    ) -> bool {
+        let (mut index, mut frac) = ([0usize; N], [0.0; N]);
+        for a in 0..N {
+            let top = (self.shape[a] - 1) as f64;
+            let mut u = (p[a] - self.origin[a]) * self.inv_spacing[a];
+            // Written so that NaN fails the test too.
+            if !(u >= -BOUNDARY_SLACK && u <= top + BOUNDARY_SLACK)
+                && (!u.is_finite() || self.outside != Outside::Clamp)
+            {
+                return self.miss(p, out);
             }
-        };
-        let base: usize = (0..self.ndim)
-            .map(|a| cell.index[a] * self.strides[a])
-            .sum();
-        let [fx, fy, fz] = cell.frac;
-        let [sx, sy, sz] = self.strides;
+            u = u.clamp(0.0, top);
+            let i = (u as usize).min(self.shape[a] - 2);
+            index[a] = i;
+            frac[a] = u - i as f64;
+        }
+        let comps = if C == 0 { self.comps } else { C };
+        let base: usize = (0..N).map(|a| index[a] * self.strides[a]).sum();
+        let (sx, sy, sz) = (self.strides[0], self.strides[1], self.strides[2]);
+        let lerp = |a: f64, b: f64, f: f64| a + f * (b - a);
         let v = self.values;
-        for (c, o) in out[..self.comps].iter_mut().enumerate() {
+        for (c, o) in out[..comps].iter_mut().enumerate() {
             let b = base + c;
             // Linear along the last axis first, then the others (tensor-product interpolation).
-            let lerp = |a: f64, b: f64, f: f64| a + f * (b - a);
-            let plane = |b: usize| -> f64 {
-                if self.ndim == 3 {
-                    let y0 = lerp(v[b], v[b + sz], fz);
-                    let y1 = lerp(v[b + sy], v[b + sy + sz], fz);
-                    lerp(y0, y1, fy)
-                } else {
-                    lerp(v[b], v[b + sy], fy)
-                }
+            *o = if N == 3 {
+                let (fx, fy, fz) = (frac[0], frac[1], frac[N - 1]);
+                let y00 = lerp(v[b], v[b + sz], fz);
+                let y01 = lerp(v[b + sy], v[b + sy + sz], fz);
+                let y10 = lerp(v[b + sx], v[b + sx + sz], fz);
+                let y11 = lerp(v[b + sx + sy], v[b + sx + sy + sz], fz);
+                lerp(lerp(y00, y01, fy), lerp(y10, y11, fy), fx)
+            } else {
+                let (fx, fy) = (frac[0], frac[N - 1]);
+                let x0 = lerp(v[b], v[b + sy], fy);
+                let x1 = lerp(v[b + sx], v[b + sx + sy], fy);
+                lerp(x0, x1, fx)
             };
-            *o = lerp(plane(b), plane(b + sx), fx);
         }
         true
+    }
+
+    /// A point outside (or not finite): NaN values, and whether that is an answer.
+    #[cold]
+    fn miss(&self, p: &[f64], out: &mut [f64]) -> bool {
+        out[..self.comps].fill(f64::NAN);
+        let finite = p[..self.ndim].iter().all(|v| v.is_finite());
+        finite && self.outside == Outside::Nan
     }
 
     /// Interpolate at every row of `points` (`dim` = grid axes columns), in parallel. A point

@@ -10,6 +10,7 @@ from . import _pandas_hook
 from ._core import InputError, __version__
 from .diagnose import SuspectDataWarning
 from .elements import Elements, elements
+from .field import GridField
 from .flags import Flag
 from .geodesy import enu_to_geodetic, geodetic_to_enu
 from .intrinsic import (
@@ -21,7 +22,7 @@ from .intrinsic import (
     frames,
     kinematics,
 )
-from .lineint import GridField, LineIntegral, line_integral, power, work
+from .lineint import LineIntegral, line_integral, power, work
 from .paths import Path, fit
 from .reparam import Resampled, resample
 from .stops import Stops

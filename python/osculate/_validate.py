@@ -19,6 +19,7 @@ __all__ = [
     "as_int",
     "as_positions",
     "as_real",
+    "as_real_array",
     "as_times",
     "call_kernel",
     "group_rows",
@@ -69,6 +70,11 @@ def _real(name: str, value: Any) -> F64:
         }.get(kind, str(arr.dtype))
         raise TypeError(f"{name}: expected real numbers, got {what} array (dtype {arr.dtype})")
     return np.ascontiguousarray(arr, dtype=np.float64)
+
+
+def as_real_array(name: str, value: Any) -> F64:
+    """Return ``value`` as a contiguous float64 array; TypeError naming it unless real."""
+    return _real(name, value)
 
 
 def as_real(name: str, value: Any) -> float:
@@ -481,9 +487,18 @@ def relabel(err: Any, grouping: Grouping) -> Any:
     return new
 
 
-def call_kernel(grouping: Grouping, fn: Callable[..., T], *args: Any, **kwargs: Any) -> T:
-    """Call a kernel; its errors are re-worded once by :func:`relabel`."""
+def call_kernel(grouping: Grouping | None, fn: Callable[..., T], *args: Any, **kwargs: Any) -> T:
+    """Call a kernel; its errors are re-worded once by :func:`relabel`.
+
+    With ``grouping`` None the kernel's rows are the caller's and there are no tracks: a row
+    error is worded ``"argument: row R: ..."``.
+    """
     try:
         return fn(*args, **kwargs)
     except InputError as err:
-        raise relabel(err, grouping) from None
+        row = getattr(err, "row", None)
+        if grouping is None and row is not None:
+            new = InputError(f"{err.argument}: row {row}: {err.detail}")
+            new.argument, new.track, new.row, new.detail = err.argument, None, row, err.detail
+            raise new from None
+        raise err if grouping is None else relabel(err, grouping) from None

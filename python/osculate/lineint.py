@@ -9,173 +9,13 @@ import numpy as np
 import numpy.typing as npt
 
 from . import _core
-from ._validate import Grouping, _real, as_positions, as_times, call_kernel, group_rows
+from ._validate import as_positions, as_real_array, as_times, call_kernel, group_rows
+from .field import GridField  # osculate.lineint.GridField stays importable
 from .intrinsic import derivatives
 
-__all__ = ["GridField", "LineIntegral", "line_integral", "power", "work"]
+__all__ = ["LineIntegral", "line_integral", "power", "work"]
 
 F64 = npt.NDArray[np.float64]
-_OUTSIDE = ("error", "nan", "clamp")
-_RULES = ("trapezoid", "cubic")
-_FIELD_RULE = "gauss-legendre"
-DEFAULT_NODES = 2
-MAX_NODES = 5
-
-
-class GridField:
-    """A field on a regular 2-D or 3-D grid, interpolated bilinearly or trilinearly.
-
-    Parameters
-    ----------
-    values : array_like
-        Node values with the grid axes first: shape (n0, n1[, n2]) for a scalar field (for
-        :func:`line_integral`), or (n0, n1[, n2], ndim) for a vector field (for :func:`work`
-        and :func:`power`). Node ``(i, j[, k])`` sits at ``origin + (i*dx, j*dy[, k*dz])``, the
-        ``indexing="ij"`` layout of :func:`numpy.meshgrid`. Every axis needs at least 2 nodes;
-        values must be finite.
-    origin : array_like, shape (ndim,)
-        Position of node ``(0, 0[, 0])``; its length sets the number of grid axes (2 or 3).
-    spacing : float or array_like, shape (ndim,)
-        Node spacing along each axis, finite and > 0.
-    outside : {"error", "nan", "clamp"}, default "error"
-        Evaluating outside the grid box is an error naming the track and row (``"error"``),
-        gives NaN (``"nan"``; an integral touching it is NaN), or takes the value at the nearest
-        point of the box (``"clamp"``). Points within 1e-9 of a cell of the box count as inside.
-
-    Attributes
-    ----------
-    values : ndarray
-        The node values, float64 and C-contiguous (shared with the caller when already so).
-    ndim : int
-        Grid axes, 2 or 3.
-    components : int or None
-        Values per node of a vector field, None for a scalar field.
-    origin, spacing : tuple of float
-        As given.
-    outside : str
-        As given.
-
-    Notes
-    -----
-    Bilinear / trilinear interpolation is linear interpolation along each axis in turn (W. H.
-    Press et al., *Numerical Recipes*, 3rd ed. (2007), §3.6): continuous, exact for fields that
-    are linear in each coordinate (so for constant and linear fields), second-order accurate
-    for smooth fields, with kinks at the cell faces. The interpolation runs in Rust.
-
-    Examples
-    --------
-    >>> import numpy as np
-    >>> import osculate as osc
-    >>> x, y = np.meshgrid(np.arange(4.0), np.arange(3.0), indexing="ij")
-    >>> g = osc.GridField(2 * x + y, origin=(0, 0), spacing=1.0)
-    >>> g([[1.5, 0.25], [3.0, 2.0]]).tolist()      # linear fields are reproduced exactly
-    [3.25, 8.0]
-    >>> g([[4.0, 0.0]])
-    Traceback (most recent call last):
-    ...
-    osculate.InputError: points: row 0: point [4.0, 0.0] is outside the grid box ...
-    """
-
-    def __init__(
-        self,
-        values: npt.ArrayLike,
-        origin: npt.ArrayLike,
-        spacing: Union[float, npt.ArrayLike],
-        *,
-        outside: str = "error",
-    ) -> None:
-        org = _real("origin", origin)
-        if org.ndim != 1 or len(org) not in (2, 3):
-            raise _core.InputError(
-                f"origin: expected 2 or 3 coordinates (one per grid axis), got shape {org.shape}"
-            )
-        ndim = len(org)
-        sp = _real("spacing", spacing)
-        if np.ndim(spacing) == 0:  # one step for every axis
-            sp = np.full(ndim, sp.item())
-        if sp.shape != (ndim,):
-            raise _core.InputError(
-                f"spacing: expected a number or {ndim} steps (one per grid axis), got shape "
-                f"{sp.shape}"
-            )
-        vals = _real("values", values)
-        if vals.ndim not in (ndim, ndim + 1) or (vals.ndim == ndim + 1 and vals.shape[-1] != ndim):
-            raise _core.InputError(
-                f"values: a {ndim}-D grid needs shape (n0, ..., n{ndim - 1}) for a scalar field "
-                f"or (n0, ..., n{ndim - 1}, {ndim}) for a vector field, got {vals.shape}"
-            )
-        if outside not in _OUTSIDE:
-            raise _core.InputError(f"outside: expected one of {_OUTSIDE}, got {outside!r}")
-        self.values: F64 = vals
-        self.ndim: int = ndim
-        self.components: Optional[int] = ndim if vals.ndim == ndim + 1 else None
-        self.origin: tuple[float, ...] = tuple(float(v) for v in org)
-        self.spacing: tuple[float, ...] = tuple(float(v) for v in sp)
-        self.outside: str = outside
-        # The kernel checks node counts and spacing; evaluating no point runs those checks once.
-        self._eval(np.empty((0, ndim)))
-        finite = np.isfinite(vals)
-        if not finite.all():
-            bad = tuple(int(i) for i in np.argwhere(~finite)[0])
-            raise _core.InputError(
-                f"values: node {bad[:ndim]} is not finite ({vals[bad]}); fill gaps first"
-            )
-
-    def __repr__(self) -> str:
-        kind = "scalar" if self.components is None else f"{self.components}-vector"
-        shape = "x".join(str(s) for s in self.values.shape[: self.ndim])
-        return (
-            f"<osculate.GridField: {self.ndim}-D {kind} field on {shape} nodes, "
-            f"origin {self.origin}, spacing {self.spacing}, outside={self.outside!r}>"
-        )
-
-    @property
-    def bounds(self) -> tuple[F64, F64]:
-        """Lowest and highest corner of the grid box."""
-        lo = np.asarray(self.origin)
-        return lo, lo + (np.asarray(self.values.shape[: self.ndim]) - 1) * np.asarray(self.spacing)
-
-    def _eval(self, points: F64) -> F64:
-        try:
-            return _core.grid_eval(
-                self.values,
-                points,
-                grid_ndim=self.ndim,
-                origin=list(self.origin),
-                spacing=list(self.spacing),
-                outside=self.outside,
-            )
-        except _core.InputError as err:
-            row = getattr(err, "row", None)
-            if row is None:
-                raise
-            new = _core.InputError(f"points: row {row}: {err.detail}")
-            new.argument, new.track, new.row, new.detail = "points", None, row, err.detail
-            raise new from None
-
-    def __call__(self, points: npt.ArrayLike) -> F64:
-        """Interpolate at ``points`` of shape (m, ndim).
-
-        Returns
-        -------
-        ndarray
-            Shape (m,) for a scalar field, (m, ndim) for a vector field.
-        """
-        p = _real("points", points)
-        if p.ndim != 2 or p.shape[1] != self.ndim:
-            raise _core.InputError(
-                f"points: expected shape (m, {self.ndim}) for a {self.ndim}-D grid, got {p.shape}"
-            )
-        return self._eval(p)
-
-    def _kernel_args(self) -> dict[str, Any]:
-        return {
-            "values": self.values,
-            "grid_ndim": self.ndim,
-            "origin": list(self.origin),
-            "spacing": list(self.spacing),
-            "outside": self.outside,
-        }
 
 
 @dataclasses.dataclass(frozen=True, eq=False)
@@ -244,7 +84,7 @@ Integrand = Union[npt.ArrayLike, GridField, Callable[..., Any]]
 
 def _sampled(value: Any, n: int, width: Optional[int], name: str) -> F64:
     """Values at the rows: (n, width) for vectors, (n,) for scalars (width None)."""
-    arr = _real(name, value)
+    arr = as_real_array(name, value)
     want = (n,) if width is None else (n, width)
     if arr.shape != want:
         if arr.ndim >= 1 and arr.shape[0] != n:
@@ -275,7 +115,7 @@ def _integrate(
     estimate_error: bool,
 ) -> LineIntegral:
     """Integrate for :func:`work` and :func:`line_integral` (the common body)."""
-    pos = _real("positions", positions)
+    pos = as_real_array("positions", positions)
     n = pos.shape[0] if pos.ndim >= 1 else 0
     if n == 0:
         raise _core.InputError("positions: is empty (no samples)")
@@ -287,27 +127,24 @@ def _integrate(
     g = group_rows(n, tracks, offsets)
     xk = g.to_kernel(x)
     tk = None if tt is None else g.to_kernel(tt)
-    flags = {"closed": bool(closed), "estimate": bool(estimate_error)}
-    is_field = isinstance(f, GridField) or callable(f)
+    # Option values and ranges are checked by the kernel (Options::new); here only their types.
+    if rule is not None and not isinstance(rule, str):
+        raise TypeError(f"rule: expected a string, got {rule!r}")
+    if nodes is not None and (
+        isinstance(nodes, (bool, np.bool_)) or not isinstance(nodes, (int, np.integer))
+    ):
+        raise TypeError(f"nodes: expected an integer, got {nodes!r}")
+    if nodes is not None and not -(2**63) <= int(nodes) < 2**63:  # beyond the kernel's int64
+        raise _core.InputError(f"nodes: {int(nodes)} is out of range")
+    opts = {
+        "rule": rule,
+        "nodes": None if nodes is None else int(nodes),
+        "kind": kind,
+        "closed": bool(closed),
+        "estimate": bool(estimate_error),
+    }
     if time_varying and not (callable(f) and not isinstance(f, GridField)):
         raise _core.InputError("time_varying: applies to a callable field only")
-    if is_field:
-        if rule not in (None, _FIELD_RULE):
-            raise _core.InputError(
-                f"rule: gridded and callable fields use {_FIELD_RULE!r} with nodes=; "
-                f"{_RULES} are for sampled values, got {rule!r}"
-            )
-        q = DEFAULT_NODES if nodes is None else _nodes(nodes)
-        label = f"{_FIELD_RULE}, {q} node{'s' if q > 1 else ''} per segment"
-    else:
-        if nodes is not None:
-            raise _core.InputError(
-                "nodes: applies to gridded and callable fields; sampled values use rule="
-            )
-        rule = "trapezoid" if rule is None else rule
-        if rule not in _RULES:
-            raise _core.InputError(f"rule: expected one of {_RULES}, got {rule!r}")
-        label = rule
     if isinstance(f, GridField):
         raw = call_kernel(
             g,
@@ -316,10 +153,8 @@ def _integrate(
             g.offsets,
             t=tk,
             **f._kernel_args(),
-            nodes=q,
-            kind=kind,
             cumulative=cumulative,
-            **flags,
+            **opts,
         )
     elif callable(f):
         if time_varying and tt is None:
@@ -335,8 +170,7 @@ def _integrate(
             xk,
             g.offsets,
             t=tk,
-            nodes=q,
-            **flags,
+            **opts,
         )
         width = dim if kind == "work" else None
         if len(pts) == 0:
@@ -350,10 +184,8 @@ def _integrate(
             xk,
             g.offsets,
             values,
-            nodes=q,
-            kind=kind,
             cumulative=cumulative,
-            **flags,
+            **opts,
         )
     else:
         values = g.to_kernel(_sampled(f, n, dim if kind == "work" else None, name))
@@ -364,10 +196,8 @@ def _integrate(
             values,
             g.offsets,
             t=tk,
-            rule=rule,
-            kind=kind,
             cumulative=cumulative,
-            **flags,
+            **opts,
         )
     cum = raw["cumulative"]
     return LineIntegral(
@@ -377,22 +207,14 @@ def _integrate(
         skipped=raw["skipped"],
         tracks=g.labels,
         kind=kind,
-        rule=label,
+        rule=raw["rule"],
         closed=bool(closed),
     )
 
 
-def _nodes(nodes: Any) -> int:
-    if isinstance(nodes, (bool, np.bool_)) or not isinstance(nodes, (int, np.integer)):
-        raise TypeError(f"nodes: expected an integer, got {nodes!r}")
-    if not 1 <= int(nodes) <= MAX_NODES:
-        raise _core.InputError(f"nodes: must be 1 to {MAX_NODES} per segment, got {nodes}")
-    return int(nodes)
-
-
 def _node_values(out: Any, m: int, width: Optional[int], name: str, dim: int) -> F64:
     """Check what a callable returned for ``m`` nodes (finiteness is checked in Rust)."""
-    arr = _real(f"{name} (the callable's result)", out)
+    arr = as_real_array(f"{name} (the callable's result)", out)
     want = (m,) if width is None else (m, width)
     if arr.shape != want:
         raise _core.InputError(
@@ -683,56 +505,26 @@ def power(
     d = derivatives(t, x, method=method, tracks=tracks, offsets=offsets, **options)
     if time_varying and not (callable(force) and not isinstance(force, GridField)):
         raise _core.InputError("time_varying: applies to a callable field only")
-    ok = np.asarray(np.isfinite(x).all(axis=1), dtype=np.bool_)
+    g = group_rows(n, tracks, offsets)
+    kw: dict[str, Any]
     if isinstance(force, GridField):
-        if force.ndim != dim or force.components != dim:
-            raise _core.InputError(
-                f"force: power needs a vector field of {dim} components on a {dim}-D grid, "
-                f"got {force!r}"
-            )
-        f = np.full((n, dim), np.nan)
-        f[ok] = _labelled(tt, tracks, offsets, ok, lambda: force._eval(np.ascontiguousarray(x[ok])))
+        kw = {
+            "grid_values": force.values,
+            "origin": list(force.origin),
+            "spacing": list(force.spacing),
+            "outside": force.outside,
+        }
     elif callable(force):
+        # Called once on the finite rows; the kernel checks what it returned there.
+        ok = np.isfinite(x).all(axis=1)
         f = np.full((n, dim), np.nan)
         if ok.any():
             pts = np.ascontiguousarray(x[ok])
             out = force(pts, tt[ok]) if time_varying else force(pts)
-            vals = _node_values(out, len(pts), dim, "force", dim)
-            finite = np.isfinite(vals).all(axis=1)
-            if not finite.all():
-                row = int(np.flatnonzero(ok)[np.flatnonzero(~finite)[0]])
-                g = group_rows(n, tracks, offsets)
-                label = _label_of(g, row)
-                raise _core.InputError(
-                    f"force: track {label!r}, row {row}: the callable returned a non-finite "
-                    f"value {vals[~finite][0].tolist()}"
-                )
-            f[ok] = vals
+            f[ok] = _node_values(out, len(pts), dim, "force", dim)
+        kw = {"force": g.to_kernel(f), "returned": True}
     else:
-        f = _sampled(force, n, dim, "force")
-    return np.einsum("ij,ij->i", f, d.velocity)
-
-
-def _label_of(g: Grouping, row: int) -> Any:
-    """Track label of caller row ``row``."""
-    codes = np.repeat(np.arange(g.n_tracks), np.diff(g.offsets))
-    k = int(g.to_caller(codes)[row])
-    label = g.labels[k]
-    return label.item() if isinstance(label, np.generic) else label
-
-
-def _labelled(
-    t: F64, tracks: Any, offsets: Any, ok: npt.NDArray[np.bool_], fn: Callable[[], F64]
-) -> F64:
-    """Run ``fn`` (which sees the rows ``ok`` only); re-word its row errors with caller rows."""
-    try:
-        return fn()
-    except _core.InputError as err:
-        row = getattr(err, "row", None)
-        if row is None:
-            raise
-        caller = int(np.flatnonzero(ok)[row])
-        label = _label_of(group_rows(len(t), tracks, offsets), caller)
-        new = _core.InputError(f"force: track {label!r}, row {caller}: {err.detail}")
-        new.argument, new.track, new.row, new.detail = "force", None, caller, err.detail
-        raise new from None
+        kw = {"force": g.to_kernel(_sampled(force, n, dim, "force"))}
+    v = np.ascontiguousarray(g.to_kernel(d.velocity), dtype=np.float64)
+    p = call_kernel(g, _core.line_power, g.to_kernel(x), g.offsets, v, **kw)
+    return g.to_caller(p)

@@ -40,5 +40,6 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(line_integral::segment_nodes, m)?)?;
     m.add_function(wrap_pyfunction!(line_integral::line_integral_values, m)?)?;
     m.add_function(wrap_pyfunction!(line_integral::grid_eval, m)?)?;
+    m.add_function(wrap_pyfunction!(line_integral::line_power, m)?)?;
     Ok(())
 }
