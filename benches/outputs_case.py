@@ -37,14 +37,17 @@ one (1e6 and 1e7 samples of one 3-D track, ``data.one_track``; ``--quick``: 1e5 
     |difference| / bound is reported (it must be ≤ 1).
 
 threads (10,000 tracks of ~200 samples, ``data.many_tracks``; ``--quick``: 1,000)
-    ``osc.kinematics(..., offsets=..., outputs=FOUR)`` in fresh interpreters with
-    ``RAYON_NUM_THREADS`` 1 and 2, alternating (1, 2, 2, 1, ...); every job returns a digest of
-    its outputs, and all digests must be equal (bit-identical across thread counts).
+    ``osc.kinematics(..., offsets=..., outputs=FOUR)`` in two fresh interpreters, one with
+    ``RAYON_NUM_THREADS=1`` and one with 2, taking turns (1, 2, 2, 1, ...; only one computes at a
+    time), each turn a few timed calls; every turn reports a digest of its outputs, and all
+    digests must be equal (bit-identical across thread counts).
 
 Targets (reported PASS / MISS, never asserted): ``four`` ≥ 10× faster than ``numpy``, its time
 ≤ 1.5× the floor's, and the 2-thread speed-up ≥ 1.7×. The savings (``full`` / ``four`` and
 ``full`` / ``derivatives``) are reported without a target. The machine may be shared: ratios come
-from the same rounds, and each run's spread is in the figures.
+from the same rounds, and each run's spread is in the figures, with the median CPU time (user +
+system) of every call beside its wall time (osculate may use two threads, NumPy one, so the CPU
+ratios are the work ratios, not the speed-ups).
 
 ``run(quick) -> dict`` is the entry point for a driver; ``main`` prints the dict as JSON.
 """
@@ -78,8 +81,22 @@ FOUR = list(reference.SPLIT_FIELDS)
 THRESHOLDS = {"min_speed": 1e-3, "min_curvature": 1e-6}
 OPTIONS: dict[str, Any] = {"method": "fd", "order": 2, **THRESHOLDS, "min_stop": np.inf}
 SIZES: dict[bool, dict[str, Any]] = {
-    False: {"one": (1_000_000, 10_000_000), "many": (10_000, 200), "budget_s": 8.0, "rounds": 3},
-    True: {"one": (100_000, 1_000_000), "many": (1_000, 200), "budget_s": 2.0, "rounds": 2},
+    False: {
+        "one": (1_000_000, 10_000_000),
+        "many": (10_000, 200),
+        "budget_s": 8.0,
+        "min_rounds": 3,
+        "thread_rounds": 6,
+        "calls_per_turn": 10,
+    },
+    True: {
+        "one": (100_000, 1_000_000),
+        "many": (1_000, 200),
+        "budget_s": 1.0,
+        "min_rounds": 2,
+        "thread_rounds": 4,
+        "calls_per_turn": 4,
+    },
 }
 TARGETS = {"vs_numpy": 10.0, "vs_floor": 1.5, "threads": 1.7}
 EPS = float(np.finfo(np.float64).eps)
@@ -184,17 +201,25 @@ def interleaved(
     """
     names = list(fns)
     times: dict[str, list[float]] = {name: [] for name in names}
+    cpu: dict[str, list[float]] = {name: [] for name in names}
 
     def call(name: str) -> float:
         gc.collect()
         measure._release_free_heap()
+        u0, s0, _ = measure._usage()
         t0 = time.perf_counter()
         out = fns[name]()
         elapsed = time.perf_counter() - t0
+        u1, s1, _ = measure._usage()
         del out
+        times[name].append(elapsed)
+        cpu[name].append(u1 - u0 + s1 - s0)
         return elapsed
 
     first = {name: call(name) for name in names}
+    for name in names:  # the warm-up calls are not counted
+        times[name].clear()
+        cpu[name].clear()
     slot = max(first.values())
     per_round = {name: max(1, min(10, int(slot / first[name]))) for name in names}
     rounds = budget_s / sum(per_round[n] * first[n] for n in names)
@@ -203,12 +228,13 @@ def interleaved(
         k = r % len(names)
         for name in names[k:] + names[:k]:
             for _ in range(per_round[name]):
-                times[name].append(call(name))
+                call(name)
     return {
         name: {
             "median_s": statistics.median(ts),
             "min_s": min(ts),
             "max_s": max(ts),
+            "cpu_s": statistics.median(cpu[name]),
             "calls": len(ts),
             "rounds": rounds,
         }
@@ -225,7 +251,7 @@ def _status(measured: float, target: float, higher_is_better: bool) -> dict[str,
     }
 
 
-def case_one(n: int, budget_s: float) -> dict[str, Any]:
+def case_one(n: int, budget_s: float, min_rounds: int) -> dict[str, Any]:
     t, x = data.one_track(n)
     checked = check_four(t, x)
     gc.collect()
@@ -236,8 +262,9 @@ def case_one(n: int, budget_s: float) -> dict[str, Any]:
         "full": lambda: ours_full(t, x),
         "derivatives": lambda: ours_derivatives(t, x),
     }
-    timed = interleaved(fns, budget_s)
+    timed = interleaved(fns, budget_s, min_rounds)
     med = {name: r["median_s"] for name, r in timed.items()}
+    cpu = {name: r["cpu_s"] for name, r in timed.items()}
     return {
         "samples": n,
         "check": checked,
@@ -246,6 +273,8 @@ def case_one(n: int, budget_s: float) -> dict[str, Any]:
         "four_over_floor": _status(med["four"] / med["floor"], TARGETS["vs_floor"], False),
         "full_over_four": med["full"] / med["four"],
         "full_over_derivatives": med["full"] / med["derivatives"],
+        "cpu_numpy_over_four": cpu["numpy"] / cpu["four"],
+        "cpu_full_over_four": cpu["full"] / cpu["four"],
         "floor_bytes_written": n * (8 * len(FOUR) + 1),
     }
 
@@ -253,51 +282,83 @@ def case_one(n: int, budget_s: float) -> dict[str, Any]:
 # ------------------------------------------------------------------------------ threads
 
 
-def _thread_job(m: int, mean_len: int, calls: int) -> dict[str, Any]:
-    """In this fresh interpreter: median of ``calls`` calls on many tracks, and the digest."""
-    t, x, offsets = data.many_tracks(m, mean_len)
-    fn = lambda: osc.kinematics(t, x, offsets=offsets, outputs=FOUR, **OPTIONS)  # noqa: E731
-    k = fn()
+def _digest(k: Any) -> str:
     h = hashlib.blake2b(digest_size=16)
     for name in [*FOUR, "flags"]:
         h.update(np.ascontiguousarray(getattr(k, name)).data)
-    del k
-    times = []
-    for _ in range(calls):
-        gc.collect()
-        measure._release_free_heap()
-        t0 = time.perf_counter()
-        fn()
-        times.append(time.perf_counter() - t0)
-    return {"samples": len(t), "times_s": times, "digest": h.hexdigest()}
+    return h.hexdigest()
 
 
-def case_threads(m: int, mean_len: int, rounds: int, quick: bool) -> dict[str, Any]:
-    calls = 20 if quick else 10
+def _thread_worker(m: int, mean_len: int) -> None:
+    """A worker in a fresh interpreter (RAYON_NUM_THREADS set by the caller).
+
+    Prints one JSON line when ready (digest of a warm-up call), then, for each line ``N`` read
+    from standard input, makes N timed calls and prints their times and the digest of the last
+    call's outputs (hashed after the timing). Ends at end of input.
+    """
+    t, x, offsets = data.many_tracks(m, mean_len)
+    fn = lambda: osc.kinematics(t, x, offsets=offsets, outputs=FOUR, **OPTIONS)  # noqa: E731
+    print(json.dumps({"samples": len(t), "digest": _digest(fn())}), flush=True)
+    for line in sys.stdin:
+        times = []
+        for _ in range(int(line)):
+            gc.collect()
+            measure._release_free_heap()
+            t0 = time.perf_counter()
+            k = fn()
+            times.append(time.perf_counter() - t0)
+        print(json.dumps({"times_s": times, "digest": _digest(k)}), flush=True)
+        del k
+
+
+def case_threads(m: int, mean_len: int, rounds: int, calls: int) -> dict[str, Any]:
+    """Two workers, 1 and 2 rayon threads, taking turns: (1, 2), (2, 1), ... (one busy at once)."""
+    cmd = [sys.executable, __file__, "--thread-worker", f"{m},{mean_len}"]
+    workers = {
+        n: subprocess.Popen(
+            cmd,
+            stdin=subprocess.PIPE,
+            stdout=subprocess.PIPE,
+            text=True,
+            env={**os.environ, "RAYON_NUM_THREADS": str(n)},
+        )
+        for n in (1, 2)
+    }
     times: dict[int, list[float]] = {1: [], 2: []}
     digests = set()
-    samples = 0
-    for r in range(rounds):
-        for threads in (1, 2) if r % 2 == 0 else (2, 1):
-            env = {**os.environ, "RAYON_NUM_THREADS": str(threads)}
-            cmd = [sys.executable, __file__, "--thread-job", f"{m},{mean_len},{calls}"]
-            proc = subprocess.run(
-                cmd, capture_output=True, text=True, env=env, timeout=600, check=False
-            )
-            if proc.returncode != 0:
-                raise RuntimeError(f"{' '.join(cmd)} failed:\n{proc.stderr}")
-            res = json.loads(proc.stdout.strip().splitlines()[-1])
-            times[threads] += res["times_s"]
-            digests.add(res["digest"])
-            samples = res["samples"]
+    try:
+
+        def reply(n: int) -> dict[str, Any]:
+            out = workers[n].stdout
+            line = out.readline() if out is not None else ""
+            if not line:
+                raise RuntimeError(f"thread worker ({n} threads) ended: exit {workers[n].poll()}")
+            return dict(json.loads(line))
+
+        ready = {n: reply(n) for n in workers}
+        digests |= {r["digest"] for r in ready.values()}
+        for r in range(rounds):
+            for n in (1, 2) if r % 2 == 0 else (2, 1):
+                stdin = workers[n].stdin
+                assert stdin is not None
+                stdin.write(f"{calls}\n")
+                stdin.flush()
+                res = reply(n)
+                times[n] += res["times_s"]
+                digests.add(res["digest"])
+    finally:
+        for w in workers.values():
+            if w.stdin is not None:
+                w.stdin.close()
+            w.wait(timeout=60)
     if len(digests) != 1:
         raise AssertionError(f"outputs differ between 1 and 2 rayon threads: {sorted(digests)}")
     med = {n: statistics.median(ts) for n, ts in times.items()}
     return {
         "tracks": m,
-        "samples": samples,
-        "jobs_per_thread_count": rounds,
-        "calls_per_job": calls,
+        "samples": ready[1]["samples"],
+        "turns_per_thread_count": rounds,
+        "calls_per_turn": calls,
         "one_thread": {"median_s": med[1], "min_s": min(times[1]), "max_s": max(times[1])},
         "two_threads": {"median_s": med[2], "min_s": min(times[2]), "max_s": max(times[2])},
         "bit_identical": True,
@@ -310,9 +371,13 @@ def run(quick: bool) -> dict[str, Any]:
     size = SIZES[quick]
     result: dict[str, Any] = {"outputs": FOUR, "options": {**OPTIONS, "min_stop": "inf"}}
     for n in size["one"]:
-        result[f"one_{n:.0e}"] = case_one(n, size["budget_s"])
+        t0 = time.perf_counter()
+        result[f"one_{n:.0e}"] = case_one(n, size["budget_s"], size["min_rounds"])
+        result[f"one_{n:.0e}"]["seconds"] = time.perf_counter() - t0
     m, mean_len = size["many"]
-    result["threads"] = case_threads(m, mean_len, size["rounds"], quick)
+    t0 = time.perf_counter()
+    result["threads"] = case_threads(m, mean_len, size["thread_rounds"], size["calls_per_turn"])
+    result["threads"]["seconds"] = time.perf_counter() - t0
     if hasattr(os, "getloadavg"):
         result["load_average_at_end"] = os.getloadavg()
     return result
@@ -323,11 +388,11 @@ def main() -> None:
     p = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     p.add_argument("--quick", action="store_true", help="1e5 / 1e6 samples, 1,000 tracks")
     p.add_argument("--out", type=Path, help="also write the JSON here")
-    p.add_argument("--thread-job", help=argparse.SUPPRESS)
+    p.add_argument("--thread-worker", help=argparse.SUPPRESS)
     args = p.parse_args()
-    if args.thread_job:
-        m, mean_len, calls = (int(v) for v in args.thread_job.split(","))
-        print(json.dumps(_thread_job(m, mean_len, calls)))
+    if args.thread_worker:
+        m, mean_len = (int(v) for v in args.thread_worker.split(","))
+        _thread_worker(m, mean_len)
         return
     text = json.dumps(run(args.quick), indent=2)
     print(text)
