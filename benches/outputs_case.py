@@ -91,7 +91,7 @@ SIZES: dict[bool, dict[str, Any]] = {
         "budget_s": 8.0,
         "min_rounds": 3,
         "thread_rounds": 6,
-        "calls_per_turn": 10,
+        "calls_per_turn": 5,
     },
     True: {
         "one": (100_000, 1_000_000),
