@@ -13,10 +13,20 @@ out as a log: rows ordered by time, so the tracks are interleaved, on a RangeInd
   file) and returns a DataFrame of the same columns on the group's index; the result is put back
   on the caller's rows with ``reindex``.
 
-Before timing, both results are checked equal with ``check.compare`` (the tolerances stated there).
-Targets (reported PASS / MISS, not asserted): the accessor ≥ 50× faster than the baseline, and its
-peak memory (growth of the resident set during the call, measured in a fresh interpreter) ≤ 3× the
-memory of the input frame.
+Beside it, the same pair asked for four columns only, ``FOUR`` = speed, curvature,
+accel_tangential, accel_normal:
+
+* accessor: the same call with ``columns=FOUR`` (the accessor passes the quantities behind the
+  columns to the kernel as ``outputs=``, so nothing else is computed or written);
+* baseline: the same groupby-apply with ``reference.speed_curvature_split`` (r′ and r″ by the
+  same 3-point stencils, then those four formulas only).
+
+Before timing, both all-column results are checked equal with ``check.compare`` (the tolerances
+stated there), and each four-column result must be bit-identical (NaN where NaN) to the same
+columns of its all-column result, so the four-column pair is equal to the tolerances of
+``check.compare`` too. Targets (reported PASS / MISS, not asserted), for both rows: the accessor
+≥ 50× faster than the baseline, and its peak memory (growth of the resident set during the call,
+measured in a fresh interpreter) ≤ 3× the memory of the input frame.
 
 ``run(quick) -> dict`` is the entry point for a driver; ``main`` prints the dict as JSON.
 """
@@ -45,6 +55,7 @@ import osculate  # noqa: E402, F401  (registers DataFrame.osc)
 import reference  # noqa: E402
 
 XYZ = ["x", "y", "z"]
+FOUR = list(reference.SPLIT_FIELDS)
 SIZES = {False: (1000, 1000), True: (100, 1000)}  # (tracks, mean samples per track)
 TARGET_SPEEDUP = 50.0
 TARGET_PEAK_RATIO = 3.0
@@ -68,6 +79,19 @@ def accessor(df: pd.DataFrame) -> pd.DataFrame:
     )
 
 
+def accessor_four(df: pd.DataFrame) -> pd.DataFrame:
+    """Speed, curvature, a_t and a_n of every track, on the caller's rows, with one call."""
+    return df.osc.kinematics(
+        time="t",
+        position=XYZ,
+        by="track",
+        columns=FOUR,
+        min_speed=1e-3,
+        min_curvature=1e-6,
+        min_stop=np.inf,
+    )
+
+
 def _per_track(g: pd.DataFrame) -> pd.DataFrame:
     g = g.sort_values("t", kind="stable")
     out = reference.kinematics(g["t"].to_numpy(), g[XYZ].to_numpy())
@@ -88,6 +112,28 @@ def baseline(df: pd.DataFrame) -> pd.DataFrame:
     return res.reindex(df.index)
 
 
+def _per_track_four(g: pd.DataFrame) -> pd.DataFrame:
+    g = g.sort_values("t", kind="stable")
+    out = reference.speed_curvature_split(g["t"].to_numpy(), g[XYZ].to_numpy())
+    return pd.DataFrame(out, index=g.index)
+
+
+def baseline_four(df: pd.DataFrame) -> pd.DataFrame:
+    """groupby().apply of the NumPy per-track function of the four quantities, on the rows."""
+    res = df.groupby("track", group_keys=False)[["t", *XYZ]].apply(_per_track_four)
+    return res.reindex(df.index)
+
+
+def _same_columns(four: pd.DataFrame, every: pd.DataFrame, what: str) -> None:
+    """``four`` holds exactly FOUR, each bit-identical to ``every``'s column (NaN where NaN)."""
+    if list(four.columns) != FOUR or not four.index.equals(every.index):
+        raise AssertionError(f"{what}: columns {list(four.columns)}, expected {FOUR}")
+    for c in FOUR:
+        a, b = four[c].to_numpy(), every[c].to_numpy()
+        if a.dtype != b.dtype or not np.array_equal(a, b, equal_nan=True):
+            raise AssertionError(f"{what}: column {c} differs from the all-column result")
+
+
 def _kernel_order(df: pd.DataFrame, res: pd.DataFrame) -> dict[str, np.ndarray]:
     """Result columns → the per-field arrays of ``check.compare``, grouped by track and time."""
     order = np.lexsort((df["t"].to_numpy(), df["track"].to_numpy()))
@@ -104,6 +150,8 @@ def _kernel_order(df: pd.DataFrame, res: pd.DataFrame) -> dict[str, np.ndarray]:
 def verify(df: pd.DataFrame, quick: bool) -> dict[str, Any]:
     """Both results hold the same numbers (check.compare's tolerances); the accessor's rows."""
     mine, theirs = accessor(df), baseline(df)
+    _same_columns(accessor_four(df), mine, "accessor columns=FOUR")
+    _same_columns(baseline_four(df), theirs, "groupby-apply of the four")
     if not mine.index.equals(df.index) or not theirs.index.equals(df.index):
         raise AssertionError("a result is not on the caller's rows")
     order = np.lexsort((df["t"].to_numpy(), df["track"].to_numpy()))
@@ -119,7 +167,11 @@ def verify(df: pd.DataFrame, quick: bool) -> dict[str, Any]:
         {},
         f"accessor vs groupby-apply ({'quick' if quick else 'full'})",
     )
-    return {"samples": figures["samples"], "flags_identical": figures["flags_identical"]}
+    return {
+        "samples": figures["samples"],
+        "flags_identical": figures["flags_identical"],
+        "four_columns_bit_identical_to_all_columns": True,
+    }
 
 
 def _timed(fn: Any, df: pd.DataFrame, repeats: int) -> dict[str, float]:
@@ -131,7 +183,7 @@ def _timed(fn: Any, df: pd.DataFrame, repeats: int) -> dict[str, float]:
     return {"median_s": statistics.median(times), "min_s": min(times), "repeats": repeats}
 
 
-def _peak_job(quick: bool) -> dict[str, Any]:
+def _peak_job(quick: bool, four: bool) -> dict[str, Any]:
     """In a fresh interpreter: resident-set growth during one accessor call (VmHWM reset)."""
 
     def status_kib(field: str) -> int:
@@ -141,13 +193,14 @@ def _peak_job(quick: bool) -> dict[str, Any]:
                     return int(line.split()[1])
         raise OSError(field)
 
+    call = accessor_four if four else accessor
     df = make_frame(*SIZES[quick])
-    accessor(df.iloc[:1000])  # warm-up: imports, thread pool
+    call(df.iloc[:1000])  # warm-up: imports, thread pool
     input_bytes = int(df.memory_usage(index=True, deep=True).sum())
     with open("/proc/self/clear_refs", "w") as f:
         f.write("5")
     before = status_kib("VmRSS")
-    res = accessor(df)
+    res = call(df)
     growth = (status_kib("VmHWM") - before) * 1024
     return {
         "input_bytes": input_bytes,
@@ -163,15 +216,30 @@ def run(quick: bool) -> dict[str, Any]:
     result: dict[str, Any] = {"rows": len(df), "tracks": m, "check": verify(df, quick)}
     result["accessor"] = _timed(accessor, df, 2 if quick else 5)
     result["groupby_apply"] = _timed(baseline, df, 1)
-    speedup = result["groupby_apply"]["median_s"] / result["accessor"]["median_s"]
-    result["speedup"] = {
+    result["speedup"] = _speedup(result["groupby_apply"], result["accessor"])
+    result["peak_memory"] = _peak(quick, four=False)
+    result["accessor_four"] = _timed(accessor_four, df, 2 if quick else 5)
+    result["groupby_apply_four"] = _timed(baseline_four, df, 1)
+    result["speedup_four"] = _speedup(result["groupby_apply_four"], result["accessor_four"])
+    result["peak_memory_four"] = _peak(quick, four=True)
+    return result
+
+
+def _speedup(baseline_time: dict[str, float], accessor_time: dict[str, float]) -> dict[str, Any]:
+    speedup = baseline_time["median_s"] / accessor_time["median_s"]
+    return {
         "measured": speedup,
         "target": TARGET_SPEEDUP,
         "status": "PASS" if speedup >= TARGET_SPEEDUP else "MISS",
     }
+
+
+def _peak(quick: bool, four: bool) -> dict[str, Any]:
+    """Peak memory of one accessor call (all columns, or ``FOUR``) in a fresh interpreter."""
+    flags = [*(["--quick"] if quick else []), *(["--four"] if four else [])]
     try:
         job = subprocess.run(
-            [sys.executable, __file__, "--peak-job", *(["--quick"] if quick else [])],
+            [sys.executable, __file__, "--peak-job", *flags],
             capture_output=True,
             text=True,
             check=True,
@@ -179,15 +247,14 @@ def run(quick: bool) -> dict[str, Any]:
         )
         peak = json.loads(job.stdout.strip().splitlines()[-1])
         ratio = peak["peak_growth_bytes"] / peak["input_bytes"]
-        result["peak_memory"] = {
+        return {
             **peak,
             "ratio_to_input": ratio,
             "target": TARGET_PEAK_RATIO,
             "status": "PASS" if ratio <= TARGET_PEAK_RATIO else "MISS",
         }
     except (OSError, subprocess.SubprocessError, ValueError) as err:  # not Linux, or it failed
-        result["peak_memory"] = {"status": "NOT MEASURED", "why": str(err)}
-    return result
+        return {"status": "NOT MEASURED", "why": str(err)}
 
 
 def main() -> None:
@@ -196,9 +263,10 @@ def main() -> None:
     p.add_argument("--quick", action="store_true", help="100 tracks instead of 1000")
     p.add_argument("--out", type=Path, help="also write the JSON here")
     p.add_argument("--peak-job", action="store_true", help=argparse.SUPPRESS)
+    p.add_argument("--four", action="store_true", help=argparse.SUPPRESS)
     args = p.parse_args()
     if args.peak_job:
-        print(json.dumps(_peak_job(args.quick)))
+        print(json.dumps(_peak_job(args.quick, args.four)))
         return
     figures = run(args.quick)
     text = json.dumps(figures, indent=2)

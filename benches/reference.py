@@ -378,3 +378,76 @@ def stencil_magnitudes(t: F64, x: F64, offsets: np.ndarray) -> tuple[F64, F64, F
         _apply_stencil([np.abs(w) for w in ws], ax, lengths, len(ws))[:, valid].T for ws in weights
     ]
     return out[0], out[1], out[2]
+
+
+# --------------------------------------------------------------------------------------------
+# Speed, curvature and the acceleration split only (outputs=["speed", "curvature",
+# "accel_tangential", "accel_normal"]): r′ and r″ from the 3-point stencils, no r‴.
+# --------------------------------------------------------------------------------------------
+
+#: The quantities :func:`speed_curvature_split` computes, in ``osculate.intrinsic.OUTPUTS`` order.
+SPLIT_FIELDS = ("speed", "curvature", "accel_tangential", "accel_normal")
+
+
+def first_second_block(t: F64, x: F64, lengths: np.ndarray) -> tuple[F64, F64]:
+    """r′ and r″ (3-point stencils, as :func:`derivatives_block`) of (B, L) times, (3, B, L) x."""
+    inv3, sum3 = _lagrange([_stencil_node(t, lengths, 3, j) - t for j in range(3)])
+    d1 = _apply_stencil([-s * r for s, r in zip(sum3, inv3)], x, lengths, 3)
+    d2 = _apply_stencil([2.0 * r for r in inv3], x, lengths, 3)
+    return d1, d2
+
+
+def split_from_derivatives(
+    d1: F64, d2: F64, min_speed: float, min_curvature: float
+) -> tuple[Outputs, np.ndarray, np.ndarray]:
+    """Speed, κ, a_t, a_n from component-major r′, r″ (3, N), with the STOPPED and STRAIGHT masks.
+
+    The same expressions as :func:`frenet` (so the same bits for the same r′, r″).
+    """
+    nan = np.nan
+    speed = np.sqrt(_dot(d1, d1))
+    c = _cross(d1, d2)
+    cn = np.sqrt(_dot(c, c))
+    with np.errstate(divide="ignore", invalid="ignore"):
+        moving = speed > 0.0
+        a_t = np.where(moving, _dot(d1, d2) / speed, nan)
+        a_n = np.where(moving, cn / speed, nan)
+        stopped = ~(speed >= min_speed) | (speed == 0.0)
+        kappa = cn / (speed * speed * speed)
+        parallel = cn <= PARALLEL_EPS * speed * np.sqrt(_dot(d2, d2))
+        straight = ~stopped & (~(kappa >= min_curvature) | parallel)
+        turning = ~stopped & ~straight
+        curvature = np.where(turning, kappa, np.where(straight, 0.0, nan))
+        accel_normal = np.where(straight, 0.0, a_n)
+    out = {
+        "speed": speed,
+        "curvature": curvature,
+        "accel_tangential": a_t,
+        "accel_normal": accel_normal,
+    }
+    return out, stopped, straight
+
+
+def speed_curvature_split(
+    t: F64, x: F64, *, min_speed: float = 1e-3, min_curvature: float = 1e-6
+) -> Outputs:
+    """Speed, curvature, a_t and a_n of one track: times (n,), positions (n, 3); nothing else."""
+    xc = np.ascontiguousarray(x.T)[:, None, :]
+    d1, d2 = first_second_block(t[None, :], xc, np.array([len(t)]))
+    out, _, _ = split_from_derivatives(d1[:, 0], d2[:, 0], min_speed, min_curvature)
+    return out
+
+
+def first_second_magnitudes(t: F64, x: F64) -> tuple[F64, F64]:
+    """Σ_j |w_j| |x_j| of the r′ and r″ stencils of one track, shape (n, 3) each.
+
+    The rounding of one evaluation of a stencil sum is a small multiple of eps times this (see
+    :func:`stencil_magnitudes`, which also covers r‴ and many tracks).
+    """
+    tb = t[None, :]
+    lengths = np.array([len(t)])
+    ax = np.abs(np.ascontiguousarray(x.T))[:, None, :]
+    inv3, sum3 = _lagrange([_stencil_node(tb, lengths, 3, j) - tb for j in range(3)])
+    m1 = _apply_stencil([np.abs(s * r) for s, r in zip(sum3, inv3)], ax, lengths, 3)
+    m2 = _apply_stencil([np.abs(2.0 * r) for r in inv3], ax, lengths, 3)
+    return m1[:, 0].T, m2[:, 0].T
