@@ -777,7 +777,7 @@ def kinematics(
         fitted = fit_core(opts, g, tk, xk, uncertainty=kind)
         raw = call_kernel(g, fitted.kinematics, options=options)
         info = fitted.info()
-    check_tracks(tk, xk, g.offsets, g.labels, raw["flags"], raw["noise"], method)
+    check_tracks(tk, xk, g.offsets, g.names, raw["flags"], raw["noise"], method)
     first, last, code = _find_stops(raw, tk, xk, g, min_stop)
     held = stop_rows(first, last, len(tk))
     if method in ("smooth", "local"):
