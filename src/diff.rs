@@ -242,6 +242,32 @@ pub fn derivatives_at<const D: usize>(
     order: FdOrder,
     gram: Option<&mut Gram>,
 ) -> ([f64; D], [f64; D], [f64; D], bool) {
+    derivatives_with(t, x, i, order, gram, true)
+}
+
+/// [`derivatives_at`], with r‴ (and its Gram entries) left NaN unless `third`: the wider stencil
+/// is then only placed, for the EDGE flag, not summed.
+///
+/// # Examples
+///
+/// ```
+/// use osculate::diff::{derivatives_at, derivatives_with, FdOrder};
+/// let t = [0.0, 0.3, 1.0, 1.4, 2.5, 3.0];
+/// let x: Vec<f64> = t.iter().map(|&s| s * s * s).collect();
+/// let all = derivatives_at::<1>(&t, &x, 1, FdOrder::Two, None);
+/// let low = derivatives_with::<1>(&t, &x, 1, FdOrder::Two, None, false);
+/// assert_eq!((all.0, all.1, all.3), (low.0, low.1, low.3)); // same r′, r″ and EDGE
+/// assert!(low.2[0].is_nan());
+/// ```
+#[inline]
+pub fn derivatives_with<const D: usize>(
+    t: &[f64],
+    x: &[f64],
+    i: usize,
+    order: FdOrder,
+    gram: Option<&mut Gram>,
+    third: bool,
+) -> ([f64; D], [f64; D], [f64; D], bool) {
     let n = t.len();
     let wl = order.width_low().min(n);
     let wh = order.width_high().min(n);
@@ -280,7 +306,9 @@ pub fn derivatives_at<const D: usize>(
     }
 
     let mut d3 = [f64::NAN; D];
-    if wh > MAX_DERIV {
+    if wh > MAX_DERIV && !third {
+        edge |= !place(i, wh, n).1;
+    } else if wh > MAX_DERIV {
         let (s, centred) = place(i, wh, n);
         edge |= !centred;
         d3 = [0.0; D];
@@ -305,7 +333,7 @@ pub fn derivatives_at<const D: usize>(
     if let Some(g) = gram {
         rows[i - s_high][0] = 1.0;
         *g = crate::uncertainty::gram_of_rows(&rows[..wh], None);
-        if wh <= MAX_DERIV {
+        if wh <= MAX_DERIV || !third {
             for a in 0..4 {
                 g[crate::uncertainty::at(a, 3)] = f64::NAN;
             }

@@ -7,7 +7,7 @@
 use super::emit::Sample;
 use super::{accumulate_arclength, check_options, Kinematics, Options, Rows};
 use crate::batch::{self, partition, plan_jobs, track_rows};
-use crate::diff::{derivatives_at, reach};
+use crate::diff::{derivatives_with, reach};
 use crate::error::{try_collect, KernelError, Result};
 use crate::frame::flag;
 use crate::uncertainty;
@@ -149,11 +149,12 @@ fn dense<const D: usize>(
     let (opts, gap_dt) = (ctx.opts, ctx.gap_dt);
     let sig = &opts.significance;
     let want_se = opts.uncertainty || sig.speed || sig.curvature;
+    let third = opts.outputs.needs_third();
     let n = t.len();
     for (j, i) in local.enumerate() {
         let mut gram = [0.0; 10];
         let (d1, d2, d3, edge) =
-            derivatives_at::<D>(t, x, i, opts.order, want_se.then_some(&mut gram));
+            derivatives_with::<D>(t, x, i, opts.order, want_se.then_some(&mut gram), third);
         let (lo, hi) = reach(i, n, opts.order);
         let gap = (lo..hi).any(|q| t[q + 1] - t[q] > gap_dt || holes.is_some_and(|h| h[q]));
         let mut p = [0.0; D];

@@ -130,6 +130,11 @@ impl Outputs {
         Self::bit(name).is_some_and(|b| self.0 & b != 0)
     }
 
+    /// Whether a column asked for needs r‴ (jerk, torsion, dω/dt).
+    pub fn needs_third(self) -> bool {
+        self.any(&["jerk", "torsion", "angular_accel"])
+    }
+
     /// This set and `other`'s names.
     pub fn with(self, other: Outputs) -> Outputs {
         Outputs(self.0 | other.0)
