@@ -5,7 +5,9 @@ import numpy as np
 import numpy.typing as npt
 
 __version__: str
+KINEMATICS_OUTPUTS: list[str]
 __all__ = [
+    "KINEMATICS_OUTPUTS",
     "FittedPaths",
     "InputError",
     "__version__",

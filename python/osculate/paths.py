@@ -9,6 +9,7 @@ import numpy.typing as npt
 
 from . import _core
 from ._estimators import FIT_METHODS, EstimatorOptions, fit_core
+from ._results import OUTPUTS, Kinematics, assemble
 from ._validate import (
     Grouping,
     as_positions,
@@ -19,7 +20,7 @@ from ._validate import (
     kernel_times,
     ticks_of,
 )
-from .intrinsic import OUTPUTS, Kinematics, assemble, up_vector
+from .intrinsic import up_vector
 
 __all__ = ["Path", "fit"]
 

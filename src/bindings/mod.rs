@@ -19,6 +19,10 @@ pub use error::InputError;
 #[pymodule]
 fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add("__version__", env!("CARGO_PKG_VERSION"))?;
+    m.add(
+        "KINEMATICS_OUTPUTS",
+        crate::kinematics::Outputs::NAMES.to_vec(),
+    )?;
     m.add("InputError", m.py().get_type::<InputError>())?;
     m.add_function(wrap_pyfunction!(grouping::group_rows, m)?)?;
     m.add_function(wrap_pyfunction!(grouping::take_rows, m)?)?;

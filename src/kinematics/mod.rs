@@ -100,8 +100,6 @@ impl Outputs {
     ];
     /// Every quantity (all names but `position`).
     pub const ALL: Outputs = Outputs((1 << 18) - 1);
-    /// No column (flags only).
-    pub const NONE: Outputs = Outputs(0);
 
     fn bit(name: &str) -> Option<u32> {
         Self::NAMES
@@ -133,11 +131,6 @@ impl Outputs {
     /// Whether a column asked for needs r‴ (jerk, torsion, dω/dt).
     pub fn needs_third(self) -> bool {
         self.any(&["jerk", "torsion", "angular_accel"])
-    }
-
-    /// This set and `other`'s names.
-    pub fn with(self, other: Outputs) -> Outputs {
-        Outputs(self.0 | other.0)
     }
 
     fn any(self, names: &[&str]) -> bool {
