@@ -22,6 +22,9 @@ MODULES = [
     "osculate.plot",
     "osculate.elements",
     "osculate.turns",
+    "osculate.field",
+    "osculate._results",
+    "osculate._columns",
 ]
 
 
