@@ -234,7 +234,7 @@ def analyze(args: argparse.Namespace) -> int:
 def summarize(args: argparse.Namespace) -> int:
     """``osculate summary``: one line per track and the stop intervals."""
     pd = need_pandas()
-    from ..accessor import RESULTS_SUMMARIZED, summary_and_stops
+    from .._dataframes import RESULTS_SUMMARIZED, summary_and_stops
 
     spec = _selection(args)
     source = check_input(args.file)
