@@ -452,13 +452,22 @@ class Naming:
         return row if self.order is None else int(self.order[row])
 
 
-def relabel(err: Any, grouping: Grouping) -> Any:
+def relabel(err: Any, grouping: Grouping | None) -> Any:
     """Return a kernel error re-worded once with the caller's track labels and rows.
 
     The one place where kernel errors get the caller's names: the track label for the batch
     position, the caller's row for the kernel row, and with :attr:`Grouping.naming` the column
-    and the index label. Errors without a track are returned as they are.
+    and the index label. With ``grouping`` None the kernel's rows are the caller's and there are
+    no tracks: a row error reads ``"argument: row R: ..."``. Other errors are returned as they
+    are.
     """
+    if grouping is None:
+        row = getattr(err, "row", None)
+        if row is None:
+            return err
+        new = InputError(f"{err.argument}: row {row}: {err.detail}")
+        new.argument, new.track, new.row, new.detail = err.argument, None, row, err.detail
+        return new
     track = getattr(err, "track", None)
     if track is None or not 0 <= track < len(grouping.labels):
         return err
@@ -488,17 +497,8 @@ def relabel(err: Any, grouping: Grouping) -> Any:
 
 
 def call_kernel(grouping: Grouping | None, fn: Callable[..., T], *args: Any, **kwargs: Any) -> T:
-    """Call a kernel; its errors are re-worded once by :func:`relabel`.
-
-    With ``grouping`` None the kernel's rows are the caller's and there are no tracks: a row
-    error is worded ``"argument: row R: ..."``.
-    """
+    """Call a kernel; its errors are re-worded once by :func:`relabel`."""
     try:
         return fn(*args, **kwargs)
     except InputError as err:
-        row = getattr(err, "row", None)
-        if grouping is None and row is not None:
-            new = InputError(f"{err.argument}: row {row}: {err.detail}")
-            new.argument, new.track, new.row, new.detail = err.argument, None, row, err.detail
-            raise new from None
-        raise err if grouping is None else relabel(err, grouping) from None
+        raise relabel(err, grouping) from None
