@@ -7,6 +7,7 @@
 
 use crate::batch::{check_offsets, track_rows};
 use crate::error::{try_filled, KernelError, Result};
+use crate::frame::flag;
 use crate::uncertainty::median;
 use rayon::prelude::*;
 
@@ -20,7 +21,7 @@ pub const MAX_ROWS: usize = 4096;
 /// Robust figures of one track each (NaN where a track has too few finite rows).
 #[derive(Debug, Clone, PartialEq)]
 pub struct TrackStats {
-    /// Median distance between consecutive finite rows.
+    /// Median distance between consecutive finite rows (of at most [`MAX_ROWS`] evenly spread).
     pub step: Vec<f64>,
     /// Median over rows of the distance to the nearest of the rows 2..=[`MAX_LAG`] ahead.
     pub back: Vec<f64>,
@@ -28,6 +29,8 @@ pub struct TrackStats {
     pub speed: Vec<f64>,
     /// Median time step.
     pub dt: Vec<f64>,
+    /// Share of the rows flagged VAGUE or GAP.
+    pub flagged: Vec<f64>,
     /// Median |r″| by the 3-point second difference of the positions (what finite differences
     /// of order 2 estimate in the interior).
     pub accel: Vec<f64>,
@@ -38,7 +41,7 @@ fn distance(x: &[f64], dim: usize, i: usize, j: usize) -> f64 {
     crate::arclength::distance(&x[i * dim..(i + 1) * dim], &x[j * dim..(j + 1) * dim])
 }
 
-fn one_track(t: &[f64], x: &[f64], dim: usize) -> Result<[f64; 5]> {
+fn one_track(t: &[f64], x: &[f64], dim: usize, flags: &[u8]) -> Result<[f64; 6]> {
     let n = t.len();
     let stride = n.div_ceil(MAX_ROWS).max(1);
     let finite = |i: usize| x[i * dim..(i + 1) * dim].iter().all(|v| v.is_finite());
@@ -54,6 +57,7 @@ fn one_track(t: &[f64], x: &[f64], dim: usize) -> Result<[f64; 5]> {
     let step = fill(&mut |b| {
         b.extend(
             (1..n)
+                .step_by(stride)
                 .filter(|&i| finite(i) && finite(i - 1))
                 .map(|i| distance(x, dim, i, i - 1)),
         )
@@ -98,10 +102,16 @@ fn one_track(t: &[f64], x: &[f64], dim: usize) -> Result<[f64; 5]> {
                 }),
         )
     });
-    Ok([step, back, speed, dt, accel])
+    let bad = flags
+        .iter()
+        .filter(|&&f| f & (flag::VAGUE | flag::GAP) != 0)
+        .count();
+    let flagged = bad as f64 / n.max(1) as f64;
+    Ok([step, back, speed, dt, accel, flagged])
 }
 
-/// The statistics of every track of a batch (`x` row-major with `dim` columns).
+/// The statistics of every track of a batch (`x` row-major with `dim` columns, `flags` the
+/// kernel's flags of every row).
 ///
 /// # Examples
 ///
@@ -111,27 +121,38 @@ fn one_track(t: &[f64], x: &[f64], dim: usize) -> Result<[f64; 5]> {
 /// // neighbour two rows ahead is 2 m away, the next row 30 m.
 /// let t: Vec<f64> = (0..40).map(|i| i as f64 * 0.1).collect();
 /// let x: Vec<f64> = (0..40).flat_map(|i| [t[i] * 10.0, if i % 2 == 0 { 0.0 } else { 30.0 }]).collect();
-/// let s = track_stats(&t, &x, 2, &[0, 40]).unwrap();
+/// let s = track_stats(&t, &x, 2, &[0, 40], &vec![0; t.len()]).unwrap();
 /// assert!(s.back[0] < 0.2 * s.step[0]);
 /// ```
-pub fn track_stats(t: &[f64], x: &[f64], dim: usize, offsets: &[i64]) -> Result<TrackStats> {
+pub fn track_stats(
+    t: &[f64],
+    x: &[f64],
+    dim: usize,
+    offsets: &[i64],
+    flags: &[u8],
+) -> Result<TrackStats> {
     let n = t.len();
-    if x.len() != n * dim {
+    if x.len() != n * dim || flags.len() != n {
         return Err(KernelError::Shape {
             argument: "positions",
-            detail: format!("expected {n} rows of {dim} positions"),
+            detail: format!("expected {n} rows of {dim} positions and flags"),
         });
     }
     let offsets = check_offsets(offsets, n)?;
     let m = offsets.len() - 1;
-    let rows: Vec<Result<[f64; 5]>> = (0..m)
+    let rows: Vec<Result<[f64; 6]>> = (0..m)
         .into_par_iter()
         .map(|k| {
             let r = track_rows(&offsets, k);
-            one_track(&t[r.clone()], &x[r.start * dim..r.end * dim], dim)
+            one_track(
+                &t[r.clone()],
+                &x[r.start * dim..r.end * dim],
+                dim,
+                &flags[r.clone()],
+            )
         })
         .collect();
-    let mut cols: [Vec<f64>; 5] = Default::default();
+    let mut cols: [Vec<f64>; 6] = Default::default();
     for c in cols.iter_mut() {
         *c = try_filled(m, f64::NAN)?;
     }
@@ -140,13 +161,14 @@ pub fn track_stats(t: &[f64], x: &[f64], dim: usize, offsets: &[i64]) -> Result<
             c[k] = v;
         }
     }
-    let [step, back, speed, dt, accel] = cols;
+    let [step, back, speed, dt, accel, flagged] = cols;
     Ok(TrackStats {
         step,
         back,
         speed,
         dt,
         accel,
+        flagged,
     })
 }
 
@@ -160,8 +182,21 @@ mod tests {
         // 10 m/s, no noise (closed forms).
         let t: Vec<f64> = (0..50).map(|i| i as f64 * 0.1).collect();
         let x: Vec<f64> = t.iter().flat_map(|&s| [10.0 * s, 0.0]).collect();
-        let s = track_stats(&t, &x, 2, &[0, 50]).unwrap();
+        let s = track_stats(&t, &x, 2, &[0, 50], &vec![0; t.len()]).unwrap();
         assert!((s.step[0] - 1.0).abs() < 1e-12 && (s.back[0] - 2.0).abs() < 1e-12);
         assert!((s.speed[0] - 10.0).abs() < 1e-9 && (s.dt[0] - 0.1).abs() < 1e-12);
+    }
+
+    #[test]
+    fn flagged_share_counts_vague_and_gap_rows() {
+        // 50 rows: 10 VAGUE, 5 GAP, 5 STOPPED (not counted): share (10 + 5) / 50 = 0.3 exactly.
+        let t: Vec<f64> = (0..50).map(|i| i as f64 * 0.1).collect();
+        let x: Vec<f64> = t.iter().flat_map(|&s| [10.0 * s, 0.0]).collect();
+        let mut f = vec![0u8; 50];
+        f[..10].fill(flag::VAGUE);
+        f[10..15].fill(flag::GAP);
+        f[15..20].fill(flag::STOPPED);
+        let s = track_stats(&t, &x, 2, &[0, 50], &f).unwrap();
+        assert_eq!(s.flagged[0], 0.3);
     }
 }

@@ -57,6 +57,7 @@ def track_stats(
     t: npt.NDArray[np.float64],
     positions: npt.NDArray[np.float64],
     offsets: npt.NDArray[np.int64],
+    flags: npt.NDArray[np.uint8],
 ) -> dict[str, npt.NDArray[np.float64]]: ...
 def find_turns(
     t: npt.NDArray[np.float64],

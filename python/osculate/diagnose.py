@@ -8,7 +8,6 @@ import numpy as np
 import numpy.typing as npt
 
 from . import _core
-from .flags import Flag
 
 __all__ = ["SuspectDataWarning", "check_tracks", "track_names"]
 
@@ -90,7 +89,7 @@ def _findings(
     method: str,
 ) -> list[tuple[npt.NDArray[np.bool_], str]]:
     """Per check, the tracks that fail it and what to tell the caller."""
-    st = _core.track_stats(t, x, offsets)
+    st = _core.track_stats(t, x, offsets, np.ascontiguousarray(flags, dtype=np.uint8))
     m = len(offsets) - 1
     counts = np.diff(offsets)
     step = st["step"]
@@ -110,10 +109,7 @@ def _findings(
             scale = np.zeros(m)
             scale[has] = np.fmax.reduceat(mag, offsets[:-1][has])
             noisy_fd &= noise > 16.0 * np.finfo(np.float64).eps * scale
-    code = np.repeat(np.arange(m), counts)
-    bad_flags = int(Flag.VAGUE | Flag.GAP)
-    share = np.bincount(code, weights=(flags & bad_flags) != 0, minlength=m) / np.maximum(counts, 1)
-    mostly = (share > MOSTLY_FLAGGED) & (counts >= 20)
+    mostly = (st["flagged"] > MOSTLY_FLAGGED) & (counts >= 20)
     return [
         (
             interleaved,

@@ -190,17 +190,20 @@ pub fn track_stats<'py>(
     t: PyReadonlyArray1<'py, f64>,
     positions: PyReadonlyArray2<'py, f64>,
     offsets: PyReadonlyArray1<'py, i64>,
+    flags: PyReadonlyArray1<'py, u8>,
 ) -> PyResult<Bound<'py, PyDict>> {
     let dim = positions.shape()[1];
     let t = contiguous("t", t.as_slice())?;
     let x = contiguous("positions", positions.as_slice())?;
     let off = contiguous("offsets", offsets.as_slice())?;
-    let s = detached(py, || crate::diagnose::track_stats(t, x, dim, off))?;
+    let f = contiguous("flags", flags.as_slice())?;
+    let s = detached(py, || crate::diagnose::track_stats(t, x, dim, off, f))?;
     let out = PyDict::new(py);
     out.set_item("step", s.step.into_pyarray(py))?;
     out.set_item("back", s.back.into_pyarray(py))?;
     out.set_item("speed", s.speed.into_pyarray(py))?;
     out.set_item("dt", s.dt.into_pyarray(py))?;
     out.set_item("accel", s.accel.into_pyarray(py))?;
+    out.set_item("flagged", s.flagged.into_pyarray(py))?;
     Ok(out)
 }
