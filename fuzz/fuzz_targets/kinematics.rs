@@ -1,6 +1,7 @@
 //! `osculate::kinematics::kinematics` on arbitrary batches: any dimension 0..5, any times, values,
-//! offsets and options. Property: it returns (Ok or Err) and never panics; an Ok result has one row
-//! per input row in every column and only the documented flag bits.
+//! offsets, options and outputs. Property: it returns (Ok or Err) and never panics; an Ok result has
+//! one row per input row in every column asked for, none in the others, and only the documented
+//! flag bits.
 #![no_main]
 
 mod common;
@@ -9,7 +10,7 @@ use common::Bytes;
 use libfuzzer_sys::fuzz_target;
 use osculate::diff::FdOrder;
 use osculate::frame::Thresholds;
-use osculate::kinematics::{kinematics, Options};
+use osculate::kinematics::{kinematics, Options, Outputs};
 use osculate::uncertainty::Significance;
 
 fuzz_target!(|data: &[u8]| {
@@ -44,8 +45,20 @@ fuzz_target!(|data: &[u8]| {
     } else {
         Some([b.f64_any(), b.f64_any(), b.f64_any()])
     };
+    // Every output, or any subset of them (a column not asked for must stay empty).
+    let outputs = if b.chance(128) {
+        Outputs::ALL
+    } else {
+        let names: Vec<&str> = Outputs::NAMES
+            .iter()
+            .copied()
+            .filter(|_| b.chance(128))
+            .collect();
+        Outputs::from_names(names).expect("known names")
+    };
     let opts = Options {
         order,
+        outputs,
         thresholds,
         gap_factor,
         up,
@@ -70,7 +83,8 @@ fuzz_target!(|data: &[u8]| {
             ("center", &k.center, dim),
             ("angular_accel", &k.angular_accel, 1),
         ] {
-            assert_eq!(col.len(), n * w, "{name}");
+            let asked = outputs.has(name);
+            assert_eq!(col.len(), if asked { n * w } else { 0 }, "{name}");
         }
         assert_eq!(k.flags.len(), n);
         // STOPPED 1, STRAIGHT 2, EDGE 4, GAP 8, INVALID 16, VAGUE 32.
