@@ -255,6 +255,17 @@ mod tangent_tests {
 /// for spline end conditions): `sub[i]` = M[i][i−1] (sub[0] unused), `diag[i]`, `sup[i]` = M[i][i+1]
 /// (last unused); `y` holds `nrhs` right-hand sides row-major and receives the solution.
 /// `diag` is overwritten.
+///
+/// # Examples
+///
+/// ```
+/// use osculate::banded::tridiagonal_solve;
+/// // [2 1 0; 1 2 1; 0 1 2] x = [4 8 8] has the solution x = (1, 2, 3) (closed form).
+/// let mut diag = [2.0, 2.0, 2.0];
+/// let mut y = [4.0, 8.0, 8.0];
+/// tridiagonal_solve(&[0.0, 1.0, 1.0], &mut diag, &[1.0, 1.0, 0.0], &mut y, 1);
+/// assert!(y.iter().zip([1.0, 2.0, 3.0]).all(|(a, b)| (a - b).abs() < 1e-14));
+/// ```
 pub fn tridiagonal_solve(sub: &[f64], diag: &mut [f64], sup: &[f64], y: &mut [f64], nrhs: usize) {
     let n = diag.len();
     for i in 1..n {

@@ -13,6 +13,14 @@ const K1: usize = MAX_DEGREE + 1;
 
 /// Clamped knot vector of degree `k` on the sample times `x`: the ends repeated k + 1 times, the
 /// interior samples once. The space has `x.len() + k − 1` basis functions.
+///
+/// # Examples
+///
+/// ```
+/// use osculate::bspline::clamped_knots;
+/// let t = clamped_knots(&[0.0, 1.0, 3.0], 3).unwrap();
+/// assert_eq!(t, vec![0.0, 0.0, 0.0, 0.0, 1.0, 3.0, 3.0, 3.0, 3.0]);
+/// ```
 pub fn clamped_knots(x: &[f64], k: usize) -> Result<Vec<f64>> {
     let n = x.len();
     let mut t = Vec::new();

@@ -570,6 +570,22 @@ pub fn fit_batch(
 
 /// Derivative `nu` (0..=3) of every track at times `t` grouped by track with `query_offsets`
 /// (row-major, `dim` columns). NaN for non-finite times and invalid tracks.
+///
+/// # Examples
+///
+/// ```
+/// use osculate::fit::{evaluate, fit_batch, Method};
+/// use osculate::spline::EndCondition;
+/// // The interpolating cubic reproduces the cubic x = t³, y = t (closed form), between samples too.
+/// let t: Vec<f64> = (0..8).map(f64::from).collect();
+/// let x: Vec<f64> = t.iter().flat_map(|&s| [s * s * s, s]).collect();
+/// let fits = fit_batch(&t, &x, 2, &[0, 8], None, &Method::Spline(EndCondition::NotAKnot)).unwrap();
+/// let p = evaluate(&fits, &[2.5], &[0, 1], 0).unwrap();
+/// assert!((p[0] - 15.625).abs() < 1e-12 && (p[1] - 2.5).abs() < 1e-12);
+/// let v = evaluate(&fits, &[2.5], &[0, 1], 1).unwrap();
+/// assert!((v[0] - 18.75).abs() < 1e-10);
+/// assert!(evaluate(&fits, &[2.5], &[0, 1], 4).is_err()); // nu above 3
+/// ```
 pub fn evaluate(fits: &Fits, t: &[f64], query_offsets: &[i64], nu: usize) -> Result<Vec<f64>> {
     if nu > 3 {
         return Err(KernelError::Option {

@@ -5,6 +5,16 @@ use crate::error::{try_filled, Result};
 
 /// Gauss–Legendre nodes and weights on [−1, 1] for 1–5 and 8 points (Abramowitz & Stegun, Table
 /// 25.4; agree with `numpy.polynomial.legendre.leggauss` to 2e-16). Other counts give 8 points.
+///
+/// # Examples
+///
+/// ```
+/// use osculate::piecewise::gauss_legendre;
+/// // The 3-point rule integrates x⁴ over [−1, 1] exactly: 2/5 (closed form).
+/// let (x, w) = gauss_legendre(3);
+/// let q: f64 = x.iter().zip(w).map(|(x, w)| w * x.powi(4)).sum();
+/// assert!((q - 0.4).abs() < 1e-15);
+/// ```
 pub fn gauss_legendre(q: usize) -> (&'static [f64], &'static [f64]) {
     const X1: [f64; 1] = [0.0];
     const W1: [f64; 1] = [2.0];
