@@ -370,6 +370,10 @@ fn track_turns(s: &Samples, rows: Range<usize>, k: usize, o: &TurnOptions) -> Re
         let peak = stretch_max(a..b + 1, o.half, trusted, |i| df * s.curvature[i])
             .or_else(|| stretch_max(a..b + 1, 0, |i| s.moving(i), |i| df * s.curvature[i]));
         let (peak_k, peak_row) = peak.unwrap_or((f64::NAN, a));
+        // A radius only where the turn's smoothed curvature is positive in its direction (on a
+        // badly time-stamped log the stretch means can be 0 or of the other sign: no radius,
+        // not ±inf).
+        let radius_of = |k: f64| if k > 0.0 { 1.0 / k } else { f64::NAN };
         let core = try_collect(
             b + 1 - a,
             (a..=b)
@@ -381,7 +385,7 @@ fn track_turns(s: &Samples, rows: Range<usize>, k: usize, o: &TurnOptions) -> Re
         // points on a short arc), and the smoothed peak is the figure, without an error.
         let (radius, radius_se) = match fit_circle(&core) {
             Some((r, e)) if core.len() >= MIN_CORE && e <= 0.1 * r => (r, e),
-            _ => (1.0 / peak_k, f64::NAN),
+            _ => (radius_of(peak_k), f64::NAN),
         };
         let an = stretch_max(a..b + 1, o.half, trusted, |i| s.accel_normal[i]);
         let (an, an_row) = an.map_or((f64::NAN, None), |(v, r)| (v, Some(r)));
@@ -394,7 +398,7 @@ fn track_turns(s: &Samples, rows: Range<usize>, k: usize, o: &TurnOptions) -> Re
             radius,
             radius_se,
             core: core.len(),
-            peak_radius: 1.0 / peak_k,
+            peak_radius: radius_of(peak_k),
             peak_at: s.t[peak_row],
             accel_normal: an,
             accel_normal_at: an_row.map_or(f64::NAN, |r| s.t[r]),

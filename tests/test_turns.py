@@ -276,3 +276,25 @@ def test_accessor_and_command_line_tables(tmp_path):
     back = pd.read_csv(out)
     np.testing.assert_allclose(back["min_radius"], table["min_radius"], rtol=1e-9)
     assert set(pd.read_csv(speed)["kind"]) == {"speed-up", "slow-down"}
+
+
+def test_a_badly_time_stamped_log_gives_no_infinite_radius():
+    # A logger that stamps late: positions advance 1.2 m per sample (12 m/s at the nominal 10 Hz)
+    # while the stamps jitter by ±20 %, so the apparent speed jumps every sample; 5 cm noise;
+    # a left and a right quarter turn of radius 30 m. Whatever the turn table makes of this, a
+    # radius is positive or NaN (no radius), never ±inf (an invented scenario of ours).
+    rng = np.random.default_rng(0)  # this seed's table has a turn without a radius (it was ±inf)
+    R, step = 30.0, 1.2
+    kinds = ["s"] * 100 + ["l"] * int(R * np.pi / 2 / step) + ["s"] * 75
+    kinds += ["r"] * int(R * np.pi / 2 / step) + ["s"] * 60
+    turn = {"s": 0.0, "l": step / R, "r": -step / R}
+    h = np.cumsum([turn[k] for k in kinds])
+    xy = np.cumsum(step * np.column_stack([np.cos(h), np.sin(h)]), axis=0)
+    xy += rng.normal(0.0, 0.05, xy.shape)
+    t = np.cumsum(0.1 * rng.uniform(0.8, 1.2, len(kinds)))
+    turns = osc.kinematics(t, xy, method="smooth").turns()
+    assert np.isnan(np.asarray(turns.peak_radius, dtype=float)).any()  # the case is exercised
+    for r in (turns.min_radius, turns.peak_radius):
+        r = np.asarray(r, dtype=float)
+        assert not np.isinf(r).any()
+        assert (r[np.isfinite(r)] > 0).all()
