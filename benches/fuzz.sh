@@ -2,7 +2,7 @@
 # Run every cargo-fuzz (libFuzzer) target of fuzz/ for SECONDS each (default 60), one after another,
 # and print the executions and findings of each. First every input kept in fuzz/regressions/<target>/
 # (crashes found earlier, minimized) is replayed once; a failing one counts as a finding. Exits non-zero if any target found a crash, a
-# timeout or an out-of-memory input; the reproducers are then in fuzz/artifacts/<target>/ (replay
+# timeout or an out-of-memory input (inputs slower than 10 s but under the 20 s timeout are listed, not counted); the reproducers are then in fuzz/artifacts/<target>/ (replay
 # one with `cargo fuzz run <target> artifacts/<target>/<file>` from fuzz/).
 #
 #   benches/fuzz.sh [SECONDS] [TARGET ...]
@@ -67,7 +67,8 @@ for t in "${targets[@]}"; do
   if [ "$keep_going" = 1 ]; then
     extra=(-fork=1 -ignore_crashes=1 -ignore_timeouts=1 -ignore_ooms=1)
   fi
-  before=$(find "artifacts/$t" -type f -name '*-*' | wc -l)
+  before=$(find "artifacts/$t" -type f -name '*-*' ! -name 'slow-unit-*' | wc -l)
+  slow_before=$(find "artifacts/$t" -type f -name 'slow-unit-*' | wc -l)
   start=$(date +%s)
   set +e
   cargo fuzz run -s "$sanitizer" "$t" "corpus/$t" -- -max_total_time="$secs" -timeout=20 \
@@ -82,8 +83,14 @@ for t in "${targets[@]}"; do
   fi
   runs=${runs:-0}
   rate=$((took > 0 ? runs / took : 0))
-  found=$(($(find "artifacts/$t" -type f -name '*-*' | wc -l) - before))
+  # Crashes, timeouts (over -timeout) and out-of-memory inputs count; a slow unit (libFuzzer's
+  # report of an input slower than 10 s but under the timeout) is listed, not counted.
+  found=$(($(find "artifacts/$t" -type f -name '*-*' ! -name 'slow-unit-*' | wc -l) - before))
+  slow=$(($(find "artifacts/$t" -type f -name 'slow-unit-*' | wc -l) - slow_before))
   finding=none
+  if [ "$slow" -gt 0 ]; then
+    finding="none ($slow slow input(s) kept in artifacts/$t/)"
+  fi
   if [ $rc -ne 0 ] || [ "$found" -gt 0 ]; then
     status=1
     cp "$log" "artifacts/$t/last-run.log"
