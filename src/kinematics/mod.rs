@@ -9,6 +9,7 @@
 mod emit;
 pub mod fd;
 pub mod fitted;
+pub mod pipeline;
 
 pub use fd::kinematics;
 pub use fitted::{of_fits, of_fits_at};
@@ -16,7 +17,8 @@ pub use fitted::{of_fits, of_fits_at};
 use crate::batch::{partition, SplitRows};
 use crate::diff::FdOrder;
 use crate::error::{try_filled, try_zeroed, KernelError, Result};
-use crate::frame::Thresholds;
+use crate::frame::{flag, Thresholds};
+use crate::grouping::take_rows;
 use crate::uncertainty::Significance;
 use nalgebra::Vector3;
 use rayon::prelude::*;
@@ -214,6 +216,21 @@ macro_rules! columns {
                 })
             }
 
+            /// Put the rows in the order `index` (row i becomes row `index[i]` of `self`), one
+            /// column at a time so only one extra column is held: the caller's row order from
+            /// the kernels'. `index` must be a permutation of the rows (checked by the gather).
+            pub fn into_rows(mut self, index: &[usize]) -> Result<Self> {
+                let (d, s) = (self.dim, self.se_w);
+                $(
+                    if !self.$name.is_empty() {
+                        self.$name = take_rows(&self.$name, width!($w, d, s), index)?;
+                    }
+                )*
+                self.flags = take_rows(&self.flags, 1, index)?;
+                self.n = index.len();
+                Ok(self)
+            }
+
             /// Whether column `name` (a field name) was written.
             pub fn has(&self, name: &str) -> bool {
                 match name {
@@ -400,4 +417,70 @@ pub(crate) fn accumulate_arclength(s: &mut [f64], offsets: &[usize]) {
                 *v = acc;
             }
         });
+}
+
+impl Kinematics {
+    /// Make rows `rows` stand still: velocity, acceleration, jerk, speed, a_t and a_n 0; the
+    /// frame, κ, τ, ρ, the centre, ω and dω/dt NaN (undefined); every standard error but the
+    /// position's NaN (set, not estimated); STOPPED, and not STRAIGHT or VAGUE.
+    pub fn hold_rows(&mut self, rows: &[usize]) {
+        let (d, s) = (self.dim, self.se_w);
+        let set = |col: &mut Vec<f64>, w: usize, v: f64| {
+            if !col.is_empty() {
+                for &r in rows {
+                    col[r * w..(r + 1) * w].fill(v);
+                }
+            }
+        };
+        for (col, w) in [
+            (&mut self.velocity, d),
+            (&mut self.acceleration, d),
+            (&mut self.jerk, d),
+            (&mut self.speed, 1),
+            (&mut self.accel_tangential, 1),
+            (&mut self.accel_normal, 1),
+        ] {
+            set(col, w, 0.0);
+        }
+        for (col, w) in [
+            (&mut self.tangent, d),
+            (&mut self.normal, d),
+            (&mut self.binormal, 3),
+            (&mut self.curvature, 1),
+            (&mut self.signed_curvature, 1),
+            (&mut self.torsion, 1),
+            (&mut self.radius, 1),
+            (&mut self.center, d),
+            (&mut self.angular_speed, 1),
+            (&mut self.angular_accel, 1),
+            (&mut self.se_velocity, s),
+            (&mut self.se_acceleration, s),
+            (&mut self.se_jerk, s),
+            (&mut self.se_speed, s),
+            (&mut self.se_accel_tangential, s),
+            (&mut self.se_accel_normal, s),
+            (&mut self.se_curvature, s),
+            (&mut self.se_torsion, s),
+            (&mut self.se_angular_speed, s),
+            (&mut self.se_radius, s),
+        ] {
+            set(col, w, f64::NAN);
+        }
+        for &r in rows {
+            self.flags[r] = (self.flags[r] | flag::STOPPED) & !(flag::STRAIGHT | flag::VAGUE);
+        }
+    }
+}
+
+impl Outputs {
+    /// The set with `names` (from [`Outputs::NAMES`]) added; unknown names are ignored.
+    pub fn with(self, names: &[&str]) -> Outputs {
+        Outputs(
+            self.0
+                | names
+                    .iter()
+                    .filter_map(|n| Self::bit(n))
+                    .fold(0, |a, b| a | b),
+        )
+    }
 }
