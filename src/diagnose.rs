@@ -172,35 +172,6 @@ pub fn track_stats(
     })
 }
 
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn one_object_moving_is_not_interleaved() {
-        // A straight line at 10 m/s sampled at 10 Hz: step 1 m, nearest of 2..6 ahead 2 m, speed
-        // 10 m/s, no noise (closed forms).
-        let t: Vec<f64> = (0..50).map(|i| i as f64 * 0.1).collect();
-        let x: Vec<f64> = t.iter().flat_map(|&s| [10.0 * s, 0.0]).collect();
-        let s = track_stats(&t, &x, 2, &[0, 50], &vec![0; t.len()]).unwrap();
-        assert!((s.step[0] - 1.0).abs() < 1e-12 && (s.back[0] - 2.0).abs() < 1e-12);
-        assert!((s.speed[0] - 10.0).abs() < 1e-9 && (s.dt[0] - 0.1).abs() < 1e-12);
-    }
-
-    #[test]
-    fn flagged_share_counts_vague_and_gap_rows() {
-        // 50 rows: 10 VAGUE, 5 GAP, 5 STOPPED (not counted): share (10 + 5) / 50 = 0.3 exactly.
-        let t: Vec<f64> = (0..50).map(|i| i as f64 * 0.1).collect();
-        let x: Vec<f64> = t.iter().flat_map(|&s| [10.0 * s, 0.0]).collect();
-        let mut f = vec![0u8; 50];
-        f[..10].fill(flag::VAGUE);
-        f[10..15].fill(flag::GAP);
-        f[15..20].fill(flag::STOPPED);
-        let s = track_stats(&t, &x, 2, &[0, 50], &f).unwrap();
-        assert_eq!(s.flagged[0], 0.3);
-    }
-}
-
 /// Finite differences are useless on a track when the standard error of their r″ exceeds this
 /// fraction of the track's typical |r″| (a choice of ours: beyond it the headline
 /// accelerations of a summary are mostly noise).
@@ -250,4 +221,33 @@ pub fn fd_swamped(
             sigma > 16.0 * f64::EPSILON * scale
         })
         .collect()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn one_object_moving_is_not_interleaved() {
+        // A straight line at 10 m/s sampled at 10 Hz: step 1 m, nearest of 2..6 ahead 2 m, speed
+        // 10 m/s, no noise (closed forms).
+        let t: Vec<f64> = (0..50).map(|i| i as f64 * 0.1).collect();
+        let x: Vec<f64> = t.iter().flat_map(|&s| [10.0 * s, 0.0]).collect();
+        let s = track_stats(&t, &x, 2, &[0, 50], &vec![0; t.len()]).unwrap();
+        assert!((s.step[0] - 1.0).abs() < 1e-12 && (s.back[0] - 2.0).abs() < 1e-12);
+        assert!((s.speed[0] - 10.0).abs() < 1e-9 && (s.dt[0] - 0.1).abs() < 1e-12);
+    }
+
+    #[test]
+    fn flagged_share_counts_vague_and_gap_rows() {
+        // 50 rows: 10 VAGUE, 5 GAP, 5 STOPPED (not counted): share (10 + 5) / 50 = 0.3 exactly.
+        let t: Vec<f64> = (0..50).map(|i| i as f64 * 0.1).collect();
+        let x: Vec<f64> = t.iter().flat_map(|&s| [10.0 * s, 0.0]).collect();
+        let mut f = vec![0u8; 50];
+        f[..10].fill(flag::VAGUE);
+        f[10..15].fill(flag::GAP);
+        f[15..20].fill(flag::STOPPED);
+        let s = track_stats(&t, &x, 2, &[0, 50], &f).unwrap();
+        assert_eq!(s.flagged[0], 0.3);
+    }
 }

@@ -54,7 +54,9 @@ def kinematics(
     frame: str = "frenet",
     initial: tuple[float, float, float] | None = None,
     weights: npt.NDArray[np.float64] | None = None,
+    order: npt.NDArray[np.uintp] | None = None,
     inverse: npt.NDArray[np.uintp] | None = None,
+    t_kernel: bool = False,
 ) -> dict[str, Any]: ...
 def find_turns(
     t: npt.NDArray[np.float64],

@@ -18,6 +18,7 @@ from ._validate import (
     call_kernel,
     group_rows,
     kernel_times,
+    ticks_of,
 )
 from .diagnose import check_tracks
 from .flags import Flag
@@ -336,19 +337,24 @@ def kinematics(
         "outputs": None if asked is None else sorted({*asked, "position_se"}),
     }
     estimator = opts.kernel_options(x.shape[1], uncertainty=fit_kind)
+    # Integer times are made relative per track (exact differences) in kernel order; the kernel
+    # gathers everything else into its order itself.
+    exact = ticks_of(t) is not None
     raw = call_kernel(
         g,
         _core.kinematics,
-        kernel_times(t, tt, g)[0],
-        g.to_kernel(x),
+        kernel_times(t, tt, g)[0] if exact else tt,
+        x,
         g.offsets,
         estimator=estimator,
         options=options,
         min_stop=None if min_stop is None else as_real("min_stop", min_stop),
         frame=frame,
         initial=None if initial is None else vector3("initial", initial, x.shape[1]),
-        weights=None if opts.weights is None else g.to_kernel(opts.kernel_weights(len(tt))),
+        weights=None if opts.weights is None else opts.kernel_weights(len(tt)),
+        order=None if g.order is None else g.order.view(np.uintp),
         inverse=None if g.inverse is None else g.inverse.view(np.uintp),
+        t_kernel=exact,
     )
     used = raw.pop("method")
     check_tracks(g.names, raw.pop("stats"), raw["noise"], method, used)

@@ -169,12 +169,15 @@ fn columns_dict<'py>(py: Python<'py>, cols: Vec<(&str, Vec<f64>)>) -> PyResult<B
 /// `crate::kinematics::pipeline::run`): `estimator` a dict of the estimator options (`method`
 /// "fd", "auto" or a fitting method, and that method's options), `options` as in
 /// [`kinematics_options`], `min_stop` (None: default; inf: no stops), `frame` "frenet" or
-/// "rotation-minimizing" with `initial`, `weights` (kernel order) and `inverse` (caller row i is
-/// kernel row `inverse[i]`; None when they agree). Per-row results come back on the caller's
-/// rows; stop rows stay kernel rows.
+/// "rotation-minimizing" with `initial`, and `weights`. `order` (kernel row i is caller row
+/// `order[i]`) and `inverse` (its inverse) relate the caller's rows to the kernel's, None when
+/// they agree: positions, weights and — unless `t_kernel` says they already are — times are
+/// gathered into kernel order here, and per-row results come back on the caller's rows. Stop
+/// rows stay kernel rows.
 #[pyfunction]
-#[pyo3(name = "kinematics", signature = (t, positions, offsets, *, estimator, options=None, min_stop=None,
-    frame="frenet", initial=None, weights=None, inverse=None))]
+#[pyo3(name = "kinematics", signature = (t, positions, offsets, *, estimator, options=None,
+    min_stop=None, frame="frenet", initial=None, weights=None, order=None, inverse=None,
+    t_kernel=false))]
 #[allow(clippy::too_many_arguments)]
 pub fn kinematics_call<'py>(
     py: Python<'py>,
@@ -187,7 +190,9 @@ pub fn kinematics_call<'py>(
     frame: &str,
     initial: Option<[f64; 3]>,
     weights: Option<PyReadonlyArray1<'py, f64>>,
+    order: Option<PyReadonlyArray1<'py, usize>>,
     inverse: Option<PyReadonlyArray1<'py, usize>>,
+    t_kernel: bool,
 ) -> PyResult<Bound<'py, PyDict>> {
     let dim = positions.shape()[1];
     let (t, x, off) = (
@@ -203,19 +208,35 @@ pub fn kinematics_call<'py>(
         Some(i) => Some(contiguous("inverse", i.as_slice())?),
         None => None,
     };
+    let ord = match &order {
+        Some(i) => Some(contiguous("order", i.as_slice())?),
+        None => None,
+    };
     let est = estimator_tmp(py, &estimator)?;
     let opts = kinematics_options(py, options.as_ref(), FdOrder::Two)?;
     let frame = detached(py, || Frame::from_options(frame, initial))?;
-    let request = Request {
-        estimator: est,
-        weights: w,
-        options: opts,
-        min_stop,
-        frame,
-    };
     let rmf = matches!(frame, Frame::RotationMinimizing(_));
     let (f, twist) = detached(py, || {
+        let gather = |a: &[f64], width: usize| match ord {
+            Some(o) => crate::grouping::take_rows(a, width, o).map(Some),
+            None => Ok(None),
+        };
+        let tk = if t_kernel { None } else { gather(t, 1)? };
+        let xk = gather(x, dim)?;
+        let wk = match w {
+            Some(w) => gather(w, 1)?,
+            None => None,
+        };
+        let request = Request {
+            estimator: est,
+            weights: wk.as_deref().or(w),
+            options: opts,
+            min_stop,
+            frame,
+        };
+        let (t, x) = (tk.as_deref().unwrap_or(t), xk.as_deref().unwrap_or(x));
         let mut f = run(t, x, dim, off, &request)?;
+        drop((tk, xk, wk));
         let mut twist = std::mem::take(&mut f.twist);
         if let Some(inv) = inv {
             f.k = f.k.into_rows(inv)?;

@@ -403,9 +403,7 @@ fn join_arclength(
             let (w, r) = (whole[i], s[i]);
             let fw = if w.is_nan() { last_w } else { w };
             let fr = if r.is_nan() { last_r } else { r };
-            let inc = if i == a {
-                0.0
-            } else if held[i] && held[i - 1] {
+            let inc = if i == a || (held[i] && held[i - 1]) {
                 0.0
             } else if refit[i] {
                 fr - last_r
@@ -440,4 +438,150 @@ fn keeps_covariance(m: &Method) -> bool {
             ..
         }
     )
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::fit::fit_batch;
+    use crate::smooth::Smoothing;
+
+    /// A unit circle at unit speed, 20 Hz, standing still from t = 4 s to t = 6 s, with
+    /// alternating ±`e` noise on x (deterministic).
+    fn stop_and_go(e: f64) -> (Vec<f64>, Vec<f64>) {
+        let mut t = Vec::new();
+        let mut x = Vec::new();
+        for i in 0..240 {
+            let s = i as f64 * 0.05;
+            let arc = if s < 4.0 {
+                s
+            } else if s < 6.0 {
+                4.0
+            } else {
+                s - 2.0
+            };
+            let jitter = if i % 2 == 0 { e } else { -e };
+            t.push(s);
+            x.extend([arc.cos() + jitter, arc.sin()]);
+        }
+        (t, x)
+    }
+
+    fn request(estimator: Estimator) -> Request<'static> {
+        Request {
+            estimator,
+            weights: None,
+            options: Options::default(),
+            min_stop: None,
+            frame: Frame::Frenet,
+        }
+    }
+
+    fn smooth() -> Method {
+        Method::Smooth {
+            degree: 5,
+            smoothing: Smoothing::Gcv,
+            derivative: 0,
+            covariance: None,
+        }
+    }
+
+    #[test]
+    fn stop_rows_are_held_still() {
+        let (t, x) = stop_and_go(0.0);
+        let f = run(&t, &x, 2, &[0, 240], &request(Estimator::Fd(FdOrder::Two))).unwrap();
+        assert_eq!(f.stops.first.len(), 1);
+        let (a, b) = (f.stops.first[0], f.stops.last[0]);
+        // The held rows lie inside the true stop, rows 80..=120 (closed form of the path).
+        assert!(
+            (80..=84).contains(&a) && (116..=120).contains(&b),
+            "{a}..{b}"
+        );
+        for i in a..=b {
+            assert_eq!(f.k.speed[i], 0.0);
+            assert_eq!(f.k.velocity[2 * i], 0.0);
+            assert!(f.k.curvature[i].is_nan() && f.k.tangent[2 * i].is_nan());
+            assert_eq!(f.k.flags[i] & flag::STOPPED, flag::STOPPED);
+            assert_eq!(f.k.flags[i] & (flag::STRAIGHT | flag::VAGUE), 0);
+        }
+        // Standing still adds no length: the arc length over the stop is constant.
+        assert_eq!(f.k.arclength[a], f.k.arclength[b]);
+        assert_eq!(f.method, "fd");
+        assert!(f.info.is_empty());
+    }
+
+    #[test]
+    fn moving_stretches_are_the_fits_of_the_stretches_alone() {
+        let (t, x) = stop_and_go(0.002);
+        let opts = Options {
+            uncertainty: false,
+            ..Options::default()
+        };
+        let req = Request {
+            options: opts,
+            ..request(Estimator::Fit(smooth()))
+        };
+        let f = run(&t, &x, 2, &[0, 240], &req).unwrap();
+        assert_eq!(f.stops.first.len(), 1);
+        let last = f.stops.last[0];
+        // Reference: the stretch after the stop fitted on its own by the same kernels.
+        let (ts, xs) = (&t[last + 1..], &x[2 * (last + 1)..]);
+        let alone = fit_batch(ts, xs, 2, &[0, ts.len() as i64], None, &smooth()).unwrap();
+        let k = of_fits(&alone, &opts).unwrap();
+        for j in 0..ts.len() {
+            // Same arithmetic on the same rows: equal to the last bit.
+            assert_eq!(
+                f.k.curvature[last + 1 + j].to_bits(),
+                k.curvature[j].to_bits()
+            );
+            assert_eq!(f.k.speed[last + 1 + j].to_bits(), k.speed[j].to_bits());
+        }
+        // The track reports the choices of its longest refitted stretch (the first, 80 rows).
+        assert_eq!(f.info.len(), 1);
+        assert!(f.info[0].smoothing.is_finite());
+    }
+
+    #[test]
+    fn arclength_joins_the_increments_of_both_fits() {
+        // Rows 0..3 whole-track fit, 3..6 a refitted stretch (starting from 0), 6..8 held.
+        let whole = [0.0, 1.0, 2.0, 3.0, 4.0, 5.0, 5.5, 5.6];
+        let mut s = [0.0, 1.0, 2.0, 0.0, 1.5, 3.0, 5.5, 5.6];
+        let held = [false, false, false, false, false, false, true, true];
+        join_arclength(&whole, &mut s, &[(0, 3, 6)], &held, &[0, 8]);
+        // Steps: 1, 1, 1 (into the stretch, whole fit), 1.5, 1.5 (refit), 0.5 (into the
+        // hold, whole fit), 0 (held).
+        assert_eq!(s, [0.0, 1.0, 2.0, 3.0, 4.5, 6.0, 6.5, 6.5]);
+    }
+
+    #[test]
+    fn auto_keeps_finite_differences_on_exact_data_and_smooths_noise() {
+        let (t, x) = stop_and_go(0.0);
+        let auto = Estimator::Auto {
+            order: FdOrder::Two,
+            fallback: smooth(),
+        };
+        let exact = run(&t, &x, 2, &[0, 240], &request(auto.clone())).unwrap();
+        let fd = run(&t, &x, 2, &[0, 240], &request(Estimator::Fd(FdOrder::Two))).unwrap();
+        assert_eq!(exact.method, "fd");
+        let bits = |v: &[f64]| v.iter().map(|x| x.to_bits()).collect::<Vec<_>>();
+        assert!(bits(&exact.k.curvature) == bits(&fd.k.curvature));
+        assert!(bits(&exact.k.accel_tangential) == bits(&fd.k.accel_tangential));
+        assert!(exact.k.flags == fd.k.flags);
+        // ±2 cm at 20 Hz: the 3-point r″ has a standard error of about √6·0.02/0.0025 ≈ 20,
+        // against |r″| = 1 on the circle (closed form).
+        let (t, x) = stop_and_go(0.02);
+        let noisy = run(&t, &x, 2, &[0, 240], &request(auto)).unwrap();
+        assert_eq!(noisy.method, "smooth");
+        assert_eq!(noisy.fd_swamped, vec![true]);
+        assert_eq!(noisy.info.len(), 1);
+    }
+
+    #[test]
+    fn frame_names_are_checked() {
+        assert_eq!(Frame::from_options("frenet", None).unwrap(), Frame::Frenet);
+        let e = Frame::from_options("frenet", Some([0.0, 0.0, 1.0])).unwrap_err();
+        assert_eq!(e.argument(), "initial");
+        let e = Frame::from_options("bishop", None).unwrap_err();
+        assert_eq!(e.argument(), "frame");
+    }
 }
