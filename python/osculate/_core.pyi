@@ -57,6 +57,7 @@ def kinematics(
     order: npt.NDArray[np.uintp] | None = None,
     inverse: npt.NDArray[np.uintp] | None = None,
     t_kernel: bool = False,
+    out: dict[str, npt.NDArray[np.float64]] | None = None,
 ) -> dict[str, Any]: ...
 def find_turns(
     t: npt.NDArray[np.float64],

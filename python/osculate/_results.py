@@ -30,7 +30,7 @@ __all__ = ["OUTPUTS", "OUTPUT_SET", "Derivatives", "Frames", "Kinematics", "asse
 
 F64 = npt.NDArray[np.float64]
 
-_VECTORS = ("velocity", "acceleration", "jerk", "tangent", "normal", "binormal", "center")
+VECTORS = ("velocity", "acceleration", "jerk", "tangent", "normal", "binormal", "center")
 _SCALARS = (
     "speed",
     "arclength",
@@ -192,7 +192,7 @@ class Kinematics:
         if self.tracks is not None:
             cols["track"] = self.tracks
         cols["t"] = self.t
-        for name in ("position", *(q for q in (*_VECTORS, *_SCALARS) if q in self.outputs)):
+        for name in ("position", *(q for q in (*VECTORS, *_SCALARS) if q in self.outputs)):
             a = getattr(self, name)
             if a.ndim == 1:
                 cols[name] = a

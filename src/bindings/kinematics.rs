@@ -1,12 +1,15 @@
 //! Bindings of the kinematics pipeline (one call: estimate, stops, frame, caller order) and of
 //! polyline arc length.
 
-use super::error::{contiguous, detached, rows};
+use super::error::{contiguous, detached, rows, to_pyerr};
 use crate::diff::FdOrder;
-use crate::kinematics::pipeline::{run, Finished, Frame, Request};
-use crate::kinematics::{Kinematics, Options, Outputs};
+use crate::kinematics::pipeline::{run_in, Finished, Frame, Request};
+use crate::kinematics::{Kinematics, Lend, Options, Outputs};
 use crate::KernelError;
-use numpy::{IntoPyArray, PyArray1, PyReadonlyArray1, PyReadonlyArray2, PyUntypedArrayMethods};
+use numpy::{
+    IntoPyArray, PyArray1, PyReadonlyArray1, PyReadonlyArray2, PyReadwriteArrayDyn,
+    PyUntypedArrayMethods,
+};
 use pyo3::exceptions::PyTypeError;
 use pyo3::prelude::*;
 use pyo3::types::PyDict;
@@ -27,11 +30,21 @@ fn column<'py>(
 
 /// The columns asked for (`outputs`), the flags, the noise per track and, when computed, the
 /// standard errors of the columns asked for.
-pub(crate) fn to_dict(
-    py: Python<'_>,
-    k: Kinematics,
+pub(crate) fn to_dict<'py>(
+    py: Python<'py>,
+    k: Kinematics<'_>,
     outputs: Outputs,
-) -> PyResult<Bound<'_, PyDict>> {
+) -> PyResult<Bound<'py, PyDict>> {
+    to_dict_lent(py, k, outputs, &[])
+}
+
+/// [`to_dict`] where the columns written into lent buffers are the caller's arrays `lent`.
+fn to_dict_lent<'py>(
+    py: Python<'py>,
+    k: Kinematics<'_>,
+    outputs: Outputs,
+    lent: &[(&'static str, Bound<'py, PyAny>)],
+) -> PyResult<Bound<'py, PyDict>> {
     let (n, d) = (k.n, k.dim);
     let out = PyDict::new(py);
     let vectors = [
@@ -56,7 +69,14 @@ pub(crate) fn to_dict(
     ];
     for (name, v, w) in vectors {
         if outputs.has(name) {
-            out.set_item(name, column(py, v, n, w)?)?;
+            match v.into_vec() {
+                Some(v) => out.set_item(name, column(py, v, n, w)?)?,
+                None => {
+                    if let Some((_, a)) = lent.iter().find(|(l, _)| *l == name) {
+                        out.set_item(name, a)?;
+                    }
+                }
+            }
         }
     }
     out.set_item("flags", k.flags.into_pyarray(py))?;
@@ -83,7 +103,7 @@ pub(crate) fn to_dict(
                 name
             };
             if outputs.has(asked) || (name == "curvature" && outputs.has("signed_curvature")) {
-                se.set_item(name, v.into_pyarray(py))?;
+                se.set_item(name, v.into_vec().unwrap_or_default().into_pyarray(py))?;
             }
         }
         out.set_item("se", se)?;
@@ -177,7 +197,7 @@ fn columns_dict<'py>(py: Python<'py>, cols: Vec<(&str, Vec<f64>)>) -> PyResult<B
 #[pyfunction]
 #[pyo3(name = "kinematics", signature = (t, positions, offsets, *, estimator, options=None,
     min_stop=None, frame="frenet", initial=None, weights=None, order=None, inverse=None,
-    t_kernel=false))]
+    t_kernel=false, out=None))]
 #[allow(clippy::too_many_arguments)]
 pub fn kinematics_call<'py>(
     py: Python<'py>,
@@ -193,6 +213,7 @@ pub fn kinematics_call<'py>(
     order: Option<PyReadonlyArray1<'py, usize>>,
     inverse: Option<PyReadonlyArray1<'py, usize>>,
     t_kernel: bool,
+    out: Option<Bound<'py, PyDict>>,
 ) -> PyResult<Bound<'py, PyDict>> {
     let dim = positions.shape()[1];
     let (t, x, off) = (
@@ -214,6 +235,42 @@ pub fn kinematics_call<'py>(
     };
     let est = estimator_tmp(py, &estimator)?;
     let opts = kinematics_options(py, options.as_ref(), FdOrder::Two)?;
+    // Caller's buffers for some outputs, borrowed writable for the whole call.
+    let mut lent: Vec<(&'static str, Bound<'py, PyAny>)> = Vec::new();
+    let mut guards: Vec<(&'static str, PyReadwriteArrayDyn<'py, f64>)> = Vec::new();
+    for (key, value) in out.iter().flat_map(|d| d.iter()) {
+        let key: String = key.extract()?;
+        let name = Outputs::NAMES
+            .iter()
+            .copied()
+            .find(|n| *n == key && *n != "position" && *n != "position_se")
+            .filter(|n| opts.outputs.has(n))
+            .ok_or_else(|| {
+                to_pyerr(
+                    py,
+                    KernelError::Option {
+                        argument: "out",
+                        detail: format!("{key:?} is not one of the outputs asked for"),
+                    },
+                )
+            })?;
+        let guard = value
+            .extract::<PyReadwriteArrayDyn<'py, f64>>()
+            .map_err(|_| {
+                PyTypeError::new_err(format!(
+                    "out: {key:?} must be a writeable float64 NumPy array not in use elsewhere"
+                ))
+            })?;
+        lent.push((name, value.clone()));
+        guards.push((name, guard));
+    }
+    let mut lend = Lend::default();
+    for (name, g) in guards.iter_mut() {
+        let buf = g.as_slice_mut().map_err(|_| {
+            PyTypeError::new_err(format!("out: {name:?} must be a C-contiguous array"))
+        })?;
+        lend.lend(name, buf);
+    }
     let frame = detached(py, || Frame::from_options(frame, initial))?;
     let rmf = matches!(frame, Frame::RotationMinimizing(_));
     let (f, twist) = detached(py, || {
@@ -235,11 +292,15 @@ pub fn kinematics_call<'py>(
             frame,
         };
         let (t, x) = (tk.as_deref().unwrap_or(t), xk.as_deref().unwrap_or(x));
-        let mut f = run(t, x, dim, off, &request)?;
+        // Lent buffers take the kernel's writes directly when no reordering follows.
+        let (mut f, mut lend) = match inv {
+            None => (run_in(t, x, dim, off, &request, lend)?, Lend::default()),
+            Some(_) => (run_in(t, x, dim, off, &request, Lend::default())?, lend),
+        };
         drop((tk, xk, wk));
         let mut twist = std::mem::take(&mut f.twist);
         if let Some(inv) = inv {
-            f.k = f.k.into_rows(inv)?;
+            f.k = f.k.into_rows_in(inv, &mut lend)?;
             if rmf {
                 twist = crate::grouping::take_rows(&twist, 1, inv)?;
             }
@@ -256,7 +317,7 @@ pub fn kinematics_call<'py>(
         method,
         ..
     } = f;
-    let out = to_dict(py, k, opts.outputs)?;
+    let out = to_dict_lent(py, k, opts.outputs, &lent)?;
     if rmf {
         out.set_item("twist", twist.into_pyarray(py))?;
     }

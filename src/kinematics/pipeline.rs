@@ -6,7 +6,7 @@
 //! [`crate::diagnose`], [`crate::stops`], [`crate::rmf`]); this module only strings them
 //! together, so a call from Python crosses into Rust once.
 
-use super::{of_fits, Kinematics, Options};
+use super::{kinematics_in, of_fits, of_fits_in, Kinematics, Lend, Options};
 use crate::batch::check_offsets;
 use crate::diagnose::{fd_swamped, track_stats, TrackStats};
 use crate::diff::FdOrder;
@@ -76,11 +76,11 @@ pub struct Request<'a> {
     pub frame: Frame,
 }
 
-/// The finished kinematics (kernel row order until [`Finished::to_caller`]).
-#[derive(Debug, Clone, PartialEq)]
-pub struct Finished {
+/// The finished kinematics (kernel row order).
+#[derive(Debug, PartialEq)]
+pub struct Finished<'a> {
     /// Per-row columns, flags and per-track noise.
-    pub k: Kinematics,
+    pub k: Kinematics<'a>,
     /// Angle from the Frenet normal to the rotation-minimizing one (empty for the Frenet frame).
     pub twist: Vec<f64>,
     /// Stop intervals (kernel rows).
@@ -130,7 +130,25 @@ pub const MIN_STRETCH: usize = 12;
 /// assert_eq!(f.k.speed[100], 0.0);
 /// assert!((f.k.curvature[40] - 1.0).abs() < 1e-3);
 /// ```
-pub fn run(t: &[f64], x: &[f64], dim: usize, offsets: &[i64], req: &Request) -> Result<Finished> {
+pub fn run(
+    t: &[f64],
+    x: &[f64],
+    dim: usize,
+    offsets: &[i64],
+    req: &Request,
+) -> Result<Finished<'static>> {
+    run_in(t, x, dim, offsets, req, Lend::default())
+}
+
+/// [`run`] writing the columns `lend` has buffers for into them, in place (kernel row order).
+pub fn run_in<'a>(
+    t: &[f64],
+    x: &[f64],
+    dim: usize,
+    offsets: &[i64],
+    req: &Request,
+    lend: Lend<'a>,
+) -> Result<Finished<'a>> {
     let off = check_offsets(offsets, t.len())?;
     let rmf = matches!(req.frame, Frame::RotationMinimizing(_));
     let mut opts = req.options;
@@ -141,24 +159,28 @@ pub fn run(t: &[f64], x: &[f64], dim: usize, offsets: &[i64], req: &Request) -> 
     // Finite differences' verdict when "auto" asked for it (the final estimate's otherwise).
     let mut verdict = None;
     let (mut k, fits_method, fits_info) = match &req.estimator {
-        Estimator::Fd(order) => (fd(t, x, dim, offsets, *order, &opts)?, None, Vec::new()),
+        Estimator::Fd(order) => (
+            fd(t, x, dim, offsets, *order, &opts, lend)?,
+            None,
+            Vec::new(),
+        ),
         Estimator::Fit(m) => {
-            let (k, info) = fitted(t, x, dim, offsets, req.weights, m, &opts)?;
+            let (k, info) = fitted(t, x, dim, offsets, req.weights, m, &opts, lend)?;
             (k, Some(m), info)
         }
         Estimator::Auto { order, fallback } => {
-            let k = fd(t, x, dim, offsets, *order, &opts)?;
+            let k = fd(t, x, dim, offsets, *order, &opts, lend)?;
             let stats = track_stats(t, x, dim, offsets, &k.flags)?;
             let swamped = fd_swamped(&stats, &k.noise, x, dim, &off);
             let noisy = swamped.iter().any(|&b| b);
             verdict = Some(swamped);
             if noisy {
-                drop(k);
+                let lend = k.into_lend();
                 let fit_opts = Options {
                     uncertainty: keeps_covariance(fallback),
                     ..opts
                 };
-                let (k, info) = fitted(t, x, dim, offsets, req.weights, fallback, &fit_opts)?;
+                let (k, info) = fitted(t, x, dim, offsets, req.weights, fallback, &fit_opts, lend)?;
                 (k, Some(fallback), info)
             } else {
                 (k, None, Vec::new())
@@ -197,7 +219,9 @@ pub fn run(t: &[f64], x: &[f64], dim: usize, offsets: &[i64], req: &Request) -> 
             offsets,
             initial,
         )?;
-        (k.normal, k.binormal, twist) = (f.normal, f.binormal, f.twist);
+        k.normal.set(f.normal);
+        k.binormal.set(f.binormal);
+        twist = f.twist;
     }
     Ok(Finished {
         k,
@@ -211,18 +235,20 @@ pub fn run(t: &[f64], x: &[f64], dim: usize, offsets: &[i64], req: &Request) -> 
     })
 }
 
-fn fd(
+fn fd<'a>(
     t: &[f64],
     x: &[f64],
     dim: usize,
     offsets: &[i64],
     order: FdOrder,
     opts: &Options,
-) -> Result<Kinematics> {
-    super::kinematics(t, x, dim, offsets, &Options { order, ..*opts })
+    lend: Lend<'a>,
+) -> Result<Kinematics<'a>> {
+    kinematics_in(t, x, dim, offsets, &Options { order, ..*opts }, lend)
 }
 
-fn fitted(
+#[allow(clippy::too_many_arguments)]
+fn fitted<'a>(
     t: &[f64],
     x: &[f64],
     dim: usize,
@@ -230,9 +256,10 @@ fn fitted(
     weights: Option<&[f64]>,
     method: &Method,
     opts: &Options,
-) -> Result<(Kinematics, Vec<FitInfo>)> {
+    lend: Lend<'a>,
+) -> Result<(Kinematics<'a>, Vec<FitInfo>)> {
     let fits = fit_batch(t, x, dim, offsets, weights, method)?;
-    let k = of_fits(&fits, opts)?;
+    let k = of_fits_in(&fits, opts, lend)?;
     Ok((k, fits.tracks.iter().map(|f| f.info()).collect()))
 }
 
@@ -260,7 +287,7 @@ fn refit_moving(
     off: &[usize],
     held: &[bool],
     req: &Refit,
-    k: &mut Kinematics,
+    k: &mut Kinematics<'_>,
     info: &mut [FitInfo],
 ) -> Result<()> {
     let m = off.len() - 1;
@@ -419,7 +446,7 @@ fn join_arclength(
 
 /// Make the rows of stops stand still: zero velocity and acceleration, STOPPED, no frame; held
 /// values are set, not estimated, so they have no standard error (the position keeps its).
-fn hold(k: &mut Kinematics, held: &[bool]) {
+fn hold(k: &mut Kinematics<'_>, held: &[bool]) {
     let rows: Vec<usize> = (0..k.n)
         .filter(|&i| held[i] && k.flags[i] & flag::INVALID == 0)
         .collect();
