@@ -340,7 +340,15 @@ def synthetic_run(prep: Prepared, options: dict[str, Any]) -> Kinematics:
     return _kinematics(t, x, **options)
 
 
-def result_frame(prep: Prepared, k: Kinematics, columns: Any) -> pd.DataFrame:
+def result_frame(
+    prep: Prepared, k: Kinematics, columns: Any, caller_rows: bool = False
+) -> pd.DataFrame:
+    """Return the accessor's result frame: chosen columns of ``k`` on the frame's rows, index.
+
+    ``k`` is in kernel row order unless ``caller_rows`` (then its arrays become the columns
+    without another copy).
+    """
+    to_caller = (lambda a: a) if caller_rows else prep.to_caller
     quantities = _quantities(k)
     if prep.n == 0:  # k is a synthetic run: keep its layout and dtypes, none of its rows
         quantities = [(name, a[:0]) for name, a in quantities]
@@ -357,12 +365,12 @@ def result_frame(prep: Prepared, k: Kinematics, columns: Any) -> pd.DataFrame:
     for name, a in quantities:
         if a.ndim == 1:
             if name in chosen:
-                cols[name] = prep.to_caller(a)
+                cols[name] = to_caller(a)
             continue
         axes = [(j, f"{name}_{axis}") for j, axis in enumerate("xyz"[: a.shape[1]])]
         axes = [(j, c) for j, c in axes if c in chosen]
         if axes:
-            whole = prep.to_caller(a)  # one gather of all components; the columns are views
+            whole = to_caller(a)  # one gather of all components; the columns are views
             for j, c in axes:
                 cols[c] = whole[:, j]
     return pd.DataFrame(cols, index=prep.index, copy=False)

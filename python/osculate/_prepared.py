@@ -48,6 +48,9 @@ class _Times:
     ticks_per_second: Optional[float]  # set for int64 keys: times are relative to each track
     missing: npt.NDArray[np.bool_]
     integer: bool = False  # integer times (their own unit), kept exact like datetimes
+    # The times as osculate.kinematics takes them on the caller's rows (datetime64, int64 or
+    # float64 seconds): it makes them relative per track itself.
+    plain: Optional[np.ndarray] = None
 
 
 def _times(s: pd.Series) -> _Times:
@@ -59,7 +62,7 @@ def _times(s: pd.Series) -> _Times:
         if dtype.kind == "u" and len(s) and s.max() > np.iinfo(np.int64).max:
             raise _core.InputError(f"time: column {s.name!r} holds unsigned times above 2**63 - 1")
         ticks = np.asarray(s.to_numpy(dtype=np.int64, na_value=0))
-        return _Times(ticks, 1.0, missing, integer=True)
+        return _Times(ticks, 1.0, missing, integer=True, plain=ticks)
     if isinstance(dtype, pd.DatetimeTZDtype):
         s = s.dt.tz_convert("UTC").dt.tz_localize(None)
         dtype = s.dtype
@@ -72,10 +75,10 @@ def _times(s: pd.Series) -> _Times:
         if dtype.kind == "m":  # durations: seconds as they are
             sec = ticks / per_second
             sec[missing] = np.nan
-            return _Times(sec, None, missing)
-        return _Times(ticks, per_second, missing)
+            return _Times(sec, None, missing, plain=sec)
+        return _Times(ticks, per_second, missing, plain=a)
     sec = _numbers(s, "time")
-    return _Times(sec, None, np.isnan(sec))
+    return _Times(sec, None, np.isnan(sec), plain=sec)
 
 
 class Prepared:
@@ -160,15 +163,26 @@ class Prepared:
             self.t = relative / times.ticks_per_second
         else:
             self.t = np.ascontiguousarray(key, dtype=np.float64)
-        x = np.column_stack([self.to_kernel(c) for c in coords]) if n else np.empty((0, 3))
+        self.plain_times = times.plain
+        # Positions on the caller's rows; in kernel order (self.x) only when asked for.
+        self.x_caller = np.column_stack(coords) if n else np.empty((0, 3))
+        self._x: Optional[F64] = None
         self.origins: Optional[F64] = None
         self.enu: Optional[F64] = None
         if crs == "geodetic" and n:
+            x = self.to_kernel(self.x_caller)
             llh = x if x.shape[1] == 3 else np.column_stack([x, np.zeros(n)])
             enu, self.origins = enu_and_origins(llh, self.kernel_grouping, origin)
             self.enu = enu
             x = enu if x.shape[1] == 3 else np.ascontiguousarray(enu[:, :2])
-        self.x = np.ascontiguousarray(x, dtype=np.float64)
+            self._x = np.ascontiguousarray(x, dtype=np.float64)
+
+    @property
+    def x(self) -> F64:
+        """Positions in kernel order (east, north, up for geodetic frames)."""
+        if self._x is None:
+            self._x = np.ascontiguousarray(self.to_kernel(self.x_caller), dtype=np.float64)
+        return self._x
 
     # -- rows ------------------------------------------------------------------------------------
     def to_kernel(self, a: np.ndarray) -> np.ndarray:
@@ -187,11 +201,27 @@ class Prepared:
             where += f" (track {plain(track)!r})"
         return input_error(f"{where}: {detail}", str(column), pos, label)
 
-    def run(self, options: dict[str, Any]) -> Kinematics:
-        """One call of :func:`osculate.kinematics` on all tracks."""
+    @property
+    def caller_rows(self) -> bool:
+        """Whether :meth:`run` gives results on the caller's rows (kernel rows otherwise)."""
+        return self.enu is None
+
+    def run(self, options: dict[str, Any], caller_rows: bool = False) -> Kinematics:
+        """One call of :func:`osculate.kinematics` on all tracks.
+
+        With ``caller_rows`` (and :attr:`caller_rows`), the kernel takes the frame's own rows
+        and puts its results back on them, so nothing is gathered here either way; otherwise the
+        results are in kernel order, as the per-track tables want them.
+        """
         for bad in ("tracks", "offsets"):
             if bad in options:
                 raise TypeError(f"{bad}: not an option of the accessor; name the column with by=")
+        if caller_rows and self.caller_rows:
+            g = self.grouping
+            own = Grouping(
+                g.offsets, g.order, g.labels, g.inverse, self.kernel_grouping.naming, g.codes
+            )
+            return _kinematics(self.plain_times, self.x_caller, tracks=own, **options)
         if self.enu is not None and self.x.shape[1] == 3:
             options = {"up": (0.0, 0.0, 1.0), **options}
         return _kinematics(self.t, self.x, tracks=self.kernel_grouping, **options)

@@ -168,8 +168,9 @@ class OscAccessor:
         prep = Prepared(df, time, position, by, crs, origin)
         if columns is not None and "outputs" not in options:
             options = {**options, "outputs": outputs_for(columns)}
-        k = prep.run(options) if prep.n else synthetic_run(prep, options)
-        res = result_frame(prep, k, columns)
+        own_rows = bool(prep.n) and prep.caller_rows
+        k = prep.run(options, caller_rows=True) if prep.n else synthetic_run(prep, options)
+        res = result_frame(prep, k, columns, caller_rows=own_rows)
         if not keep:
             return res
         own = df.drop(columns=[c for c in res.columns if c in df.columns])
