@@ -6,7 +6,7 @@
 
 use crate::batch::{check_offsets, check_times, track_rows};
 use crate::error::{try_collect, try_copy, KernelError, Result};
-pub use crate::fit_options::MethodOptions;
+pub use crate::fit_options::{Estimator, EstimatorOptions};
 use crate::local::{local_with, LocalFit, Window};
 use crate::piecewise::PiecewisePoly;
 use crate::smooth::{self, smooth_with, Covariance, JerkFit, Smoothing};

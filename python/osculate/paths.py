@@ -8,7 +8,7 @@ import numpy as np
 import numpy.typing as npt
 
 from . import _core
-from ._estimators import FIT_METHODS, EstimatorOptions, fit_core
+from ._estimators import EstimatorOptions, fit_core
 from ._results import OUTPUTS, Kinematics, assemble
 from ._validate import (
     Grouping,
@@ -213,9 +213,7 @@ def fit(
     >>> both(1.0, track="b").tolist()
     [[1.0, 1.0]]
     """
-    if method not in FIT_METHODS:
-        raise _core.InputError(f"method: expected one of {FIT_METHODS}, got {method!r}")
-    opts = EstimatorOptions(method, **options)
+    opts = EstimatorOptions.for_fit(method, options)
     tt = as_times(t)
     x = as_positions(positions, len(tt))
     g = group_rows(len(tt), tracks, offsets, tt)
