@@ -24,8 +24,8 @@ class EstimatorOptions:
 
     ``options`` holds the options given (None ones left out) as the kernel's dictionary, with
     ``bc_velocity`` converted to a float array; ``weights`` is kept as given (its rows follow the
-    caller's). ``order`` (fd) and ``degree`` (smooth, local) are the kernel's resolved values,
-    None where they do not apply.
+    caller's). ``order`` (fd) and ``degree`` (smooth, local) are the kernel's resolved values
+    (``order`` None, ``degree`` 0 where they do not apply).
     """
 
     def __init__(self, method: str, **given: Any) -> None:
@@ -50,7 +50,7 @@ class EstimatorOptions:
         )
         self._description: str = checked["description"]
         self.order: Optional[int] = checked["order"]
-        self.degree: Optional[int] = checked["degree"]
+        self.degree: int = checked["degree"] or 0
         self.window: Optional[int] = self.options.get("window")
 
     def describe(self) -> str:

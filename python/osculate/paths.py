@@ -181,8 +181,7 @@ def fit(
     method : {"smooth", "spline", "local"}
         The estimator (see :func:`osculate.kinematics`).
     **options
-        Its options: ``bc``, ``bc_velocity`` (spline); ``degree``, ``smoothing``, ``noise``,
-        ``weights`` (smooth); ``degree``, ``window``, ``window_span`` (local).
+        Its options, as in :func:`osculate.kinematics` (only those of the chosen estimator).
 
     Returns
     -------
