@@ -54,6 +54,18 @@ impl SymBand {
 
     /// Factor in place as L D Lᵀ (L unit lower, stored below the diagonal; D on the diagonal).
     /// Returns false if a pivot is not positive (the matrix is not numerically positive definite).
+    ///
+    /// # Examples
+    ///
+    /// ```
+    /// use osculate::banded::SymBand;
+    /// // [[1, 2], [2, 1]] is indefinite (determinant −3): the second pivot 1 − 4 is negative.
+    /// let mut m = SymBand::zeros(2, 1).unwrap();
+    /// m.add_lower(0, 0, 1.0);
+    /// m.add_lower(1, 0, 2.0);
+    /// m.add_lower(1, 1, 1.0);
+    /// assert!(!m.ldlt_in_place());
+    /// ```
     pub fn ldlt_in_place(&mut self) -> bool {
         let (n, b) = (self.n, self.b);
         let w = b + 1;
@@ -82,6 +94,25 @@ impl SymBand {
 
     /// Solve M x = y in place for `nrhs` right-hand sides stored row-major (`y[i * nrhs + r]`),
     /// given the factor from [`SymBand::ldlt_in_place`].
+    ///
+    /// # Examples
+    ///
+    /// ```
+    /// use osculate::banded::SymBand;
+    /// // M = tridiag(−1, 2, −1) of order 3 maps (1, 1, 1) to (1, 0, 1), (1, 2, 3) to (0, 0, 4).
+    /// let mut m = SymBand::zeros(3, 1).unwrap();
+    /// for i in 0..3 {
+    ///     m.add_lower(i, i, 2.0);
+    ///     if i > 0 {
+    ///         m.add_lower(i, i - 1, -1.0);
+    ///     }
+    /// }
+    /// assert!(m.ldlt_in_place());
+    /// let mut y = [1.0, 0.0, 0.0, 0.0, 1.0, 4.0]; // two right-hand sides, row-major
+    /// m.ldlt_solve(&mut y, 2);
+    /// let want = [1.0, 1.0, 1.0, 2.0, 1.0, 3.0];
+    /// assert!(y.iter().zip(want).all(|(a, b)| (a - b).abs() < 1e-14));
+    /// ```
     pub fn ldlt_solve(&self, y: &mut [f64], nrhs: usize) {
         let (n, b) = (self.n, self.b);
         let w = b + 1;
@@ -110,6 +141,26 @@ impl SymBand {
     }
 
     /// The band of M⁻¹ (same layout), from the factor (Hutchinson & de Hoog 1985).
+    ///
+    /// # Examples
+    ///
+    /// ```
+    /// use osculate::banded::SymBand;
+    /// // tridiag(−1, 2, −1) of order 3 has the inverse [[3, 2, 1], [2, 4, 2], [1, 2, 3]] / 4
+    /// // (closed form); its band holds the diagonal and the first off-diagonal.
+    /// let mut m = SymBand::zeros(3, 1).unwrap();
+    /// for i in 0..3 {
+    ///     m.add_lower(i, i, 2.0);
+    ///     if i > 0 {
+    ///         m.add_lower(i, i - 1, -1.0);
+    ///     }
+    /// }
+    /// assert!(m.ldlt_in_place());
+    /// let s = m.inverse_band().unwrap();
+    /// for (i, j, want) in [(0, 0, 0.75), (1, 0, 0.5), (1, 1, 1.0), (2, 1, 0.5), (2, 2, 0.75)] {
+    ///     assert!((s.get(i, j) - want).abs() < 1e-14);
+    /// }
+    /// ```
     pub fn inverse_band(&self) -> Result<SymBand> {
         let mut s = SymBand::zeros(self.n, self.b)?;
         self.inverse_band_into(&mut s);

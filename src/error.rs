@@ -75,6 +75,15 @@ pub enum KernelError {
 
 impl KernelError {
     /// Attach a track to an error about an option that only fails for that track.
+    ///
+    /// # Examples
+    ///
+    /// ```
+    /// use osculate::KernelError;
+    /// let e = KernelError::Option { argument: "window", detail: "too long".into() }.in_track(3);
+    /// assert_eq!((e.argument(), e.track()), ("window", Some(3)));
+    /// assert_eq!(e.to_string(), "track 3: window: too long");
+    /// ```
     pub fn in_track(self, track: usize) -> Self {
         match self {
             KernelError::Option { argument, detail } | KernelError::Shape { argument, detail } => {
@@ -139,6 +148,17 @@ impl KernelError {
 pub type Result<T> = std::result::Result<T, KernelError>;
 
 /// A vector of `len` copies of `value`, or [`KernelError::OutOfMemory`] instead of an abort.
+///
+/// # Examples
+///
+/// ```
+/// use osculate::error::try_filled;
+/// use osculate::KernelError;
+/// assert_eq!(try_filled(3, 1.5).unwrap(), vec![1.5; 3]);
+/// // More than the address space: an error, not an abort.
+/// let e = try_filled(usize::MAX / 4, 0.0f64).unwrap_err();
+/// assert!(matches!(e, KernelError::OutOfMemory { .. }));
+/// ```
 pub fn try_filled<T: Clone>(len: usize, value: T) -> Result<Vec<T>> {
     let mut v = Vec::new();
     v.try_reserve_exact(len)
@@ -178,6 +198,15 @@ pub fn try_copy<T: Copy>(s: &[T]) -> Result<Vec<T>> {
 
 /// Collect an iterator into a vector reserved fallibly for `len` items (an upper bound of what the
 /// iterator yields), or [`KernelError::OutOfMemory`] instead of an abort.
+///
+/// # Examples
+///
+/// ```
+/// use osculate::error::try_collect;
+/// let squares = try_collect(4, (1..=4).map(|i| i * i)).unwrap();
+/// assert_eq!(squares, vec![1, 4, 9, 16]);
+/// assert!(try_collect(usize::MAX, std::iter::empty::<f64>()).is_err());
+/// ```
 pub fn try_collect<T, I: IntoIterator<Item = T>>(len: usize, items: I) -> Result<Vec<T>> {
     let mut v = Vec::new();
     v.try_reserve_exact(len)

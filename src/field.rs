@@ -25,6 +25,14 @@ pub enum Outside {
 
 impl Outside {
     /// Parse `"error"`, `"nan"` or `"clamp"`.
+    ///
+    /// # Examples
+    ///
+    /// ```
+    /// use osculate::field::Outside;
+    /// assert_eq!(Outside::parse("clamp").unwrap(), Outside::Clamp);
+    /// assert_eq!(Outside::parse("wrap").unwrap_err().argument(), "outside");
+    /// ```
     pub fn parse(name: &str) -> Result<Self> {
         match name {
             "error" => Ok(Outside::Error),
@@ -174,6 +182,17 @@ impl<'a> GridField<'a> {
     }
 
     /// Whether `p` lies in the grid box (within [`BOUNDARY_SLACK`] cells).
+    ///
+    /// # Examples
+    ///
+    /// ```
+    /// use osculate::field::{GridField, Outside};
+    /// // A 2 × 2 grid of spacing 1 from the origin: the box is [0, 1] × [0, 1], edges included.
+    /// let v = [0.0; 4];
+    /// let g = GridField::new(&v, &[2, 2], 1, &[0.0, 0.0], &[1.0, 1.0], Outside::Error).unwrap();
+    /// assert!(g.contains(&[1.0, 0.5]) && g.contains(&[0.0, 0.0]));
+    /// assert!(!g.contains(&[1.1, 0.5]) && !g.contains(&[0.5, -0.01]));
+    /// ```
     pub fn contains(&self, p: &[f64]) -> bool {
         (0..self.ndim).all(|a| {
             let u = (p[a] - self.origin[a]) * self.inv_spacing[a];
@@ -255,6 +274,20 @@ impl<'a> GridField<'a> {
 
     /// Interpolate at every row of `points` (`dim` = grid axes columns), in parallel. A point
     /// outside under [`Outside::Error`], or a non-finite point, is an error naming its row.
+    ///
+    /// # Examples
+    ///
+    /// ```
+    /// use osculate::field::{GridField, Outside};
+    /// // f(x, y) = x on the box [0, 1]², clamped outside: (2, 0.5) takes the value at (1, 0.5).
+    /// let v = [0.0, 0.0, 1.0, 1.0]; // nodes (0,0), (0,1), (1,0), (1,1)
+    /// let g = GridField::new(&v, &[2, 2], 1, &[0.0, 0.0], &[1.0, 1.0], Outside::Clamp).unwrap();
+    /// let f = g.eval_points(&[0.25, 0.75, 2.0, 0.5], 2).unwrap();
+    /// assert!((f[0] - 0.25).abs() < 1e-15 && (f[1] - 1.0).abs() < 1e-15);
+    /// // Under Outside::Error the same point is an error naming its row.
+    /// let g = GridField::new(&v, &[2, 2], 1, &[0.0, 0.0], &[1.0, 1.0], Outside::Error).unwrap();
+    /// assert_eq!(g.eval_points(&[0.25, 0.75, 2.0, 0.5], 2).unwrap_err().row(), Some(1));
+    /// ```
     pub fn eval_points(&self, points: &[f64], dim: usize) -> Result<Vec<f64>> {
         if dim != self.ndim || points.len() % dim != 0 {
             return Err(KernelError::Shape {

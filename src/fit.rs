@@ -6,7 +6,7 @@
 
 use crate::batch::{check_offsets, check_times, track_rows};
 use crate::error::{try_collect, try_copy, KernelError, Result};
-pub use crate::fit_options::MethodOptions;
+pub use crate::fit_options::{Estimator, EstimatorOptions};
 use crate::local::{local_with, LocalFit, Window};
 use crate::piecewise::PiecewisePoly;
 use crate::smooth::{self, smooth_with, Covariance, JerkFit, Smoothing};
@@ -53,6 +53,17 @@ pub enum Method {
 
 impl Method {
     /// Fewest samples per track.
+    ///
+    /// # Examples
+    ///
+    /// ```
+    /// use osculate::fit::Method;
+    /// use osculate::local::Window;
+    /// use osculate::spline::EndCondition;
+    /// assert_eq!(Method::Spline(EndCondition::Natural).min_samples(), 2);
+    /// let local = Method::Local { degree: 3, window: Window::Auto, uncertainty: false };
+    /// assert_eq!(local.min_samples(), 4); // a cubic needs 4 points
+    /// ```
     pub fn min_samples(&self) -> usize {
         match self {
             Method::Spline(_) => 2,
@@ -286,6 +297,16 @@ impl TrackFit {
     }
 
     /// Cumulative length at the fitted samples (empty for an invalid track).
+    ///
+    /// # Examples
+    ///
+    /// ```
+    /// use osculate::fit::{fit_track, Method};
+    /// // A polyline of 3-4-5 steps: cumulative chord lengths 0, 5, 10 (closed form).
+    /// let t = [0.0, 1.0, 2.0];
+    /// let f = fit_track(&t, &[0.0, 0.0, 3.0, 4.0, 6.0, 8.0], 2, None, &Method::Linear).unwrap();
+    /// assert_eq!(f.cumulative_length().unwrap(), vec![0.0, 5.0, 10.0]);
+    /// ```
     pub fn cumulative_length(&self) -> Result<Vec<f64>> {
         let n = self.times().len();
         let mut cum = Vec::new();
@@ -498,6 +519,30 @@ fn check_weights(w: &[f64], n: usize, offsets: &[usize]) -> Result<()> {
 }
 
 /// Fit every track of a batch in parallel.
+///
+/// # Examples
+///
+/// ```
+/// use osculate::fit::{evaluate, fit_batch, Method};
+/// use osculate::spline::EndCondition;
+/// // Two tracks: a circle of radius 2 at unit angular speed (curvature 1/2, closed form) and a
+/// // straight line (curvature 0), 61 samples each.
+/// let t: Vec<f64> = (0..61).map(|i| i as f64 * std::f64::consts::PI / 60.0).collect();
+/// let mut x: Vec<f64> = t.iter().flat_map(|&s| [2.0 * s.cos(), 2.0 * s.sin()]).collect();
+/// x.extend(t.iter().flat_map(|&s| [s, 3.0 * s]));
+/// let tt: Vec<f64> = t.iter().chain(&t).copied().collect();
+/// let spline = Method::Spline(EndCondition::NotAKnot);
+/// let fits = fit_batch(&tt, &x, 2, &[0, 61, 122], None, &spline).unwrap();
+/// let q = [1.3, 1.3];
+/// let v = evaluate(&fits, &q, &[0, 1, 2], 1).unwrap();
+/// let a = evaluate(&fits, &q, &[0, 1, 2], 2).unwrap();
+/// let kappa = |k: usize| {
+///     let (vx, vy, ax, ay) = (v[2 * k], v[2 * k + 1], a[2 * k], a[2 * k + 1]);
+///     (vx * ay - vy * ax).abs() / (vx * vx + vy * vy).powf(1.5)
+/// };
+/// assert!((kappa(0) - 0.5).abs() < 1e-4); // SciPy's not-a-knot CubicSpline: off by 1.7e-5
+/// assert!(kappa(1) < 1e-12);
+/// ```
 pub fn fit_batch(
     t: &[f64],
     x: &[f64],
@@ -613,87 +658,5 @@ pub fn evaluate(fits: &Fits, t: &[f64], query_offsets: &[i64], nu: usize) -> Res
 }
 
 #[cfg(test)]
-mod tests {
-    use super::*;
-
-    /// An arc of radius 5 (about a quarter circle) at unit speed, sampled unevenly; 2-D rows.
-    fn arc(n: usize) -> (Vec<f64>, Vec<f64>) {
-        let t: Vec<f64> = (0..n)
-            .map(|i| {
-                let u = i as f64 / (n - 1) as f64;
-                (u + 0.05 * (7.0 * u).sin()) * 5.0 * std::f64::consts::FRAC_PI_2
-            })
-            .collect();
-        let x = t
-            .iter()
-            .flat_map(|&s| [5.0 * (s / 5.0).cos(), 5.0 * (s / 5.0).sin()])
-            .collect();
-        (t, x)
-    }
-
-    #[test]
-    fn linear_fit_lengths_are_the_chords() {
-        // The polyline's cumulative length is the sum of the chords (closed form: 3-4-5 steps).
-        let t = [0.0, 1.0, 2.0, 3.0];
-        let x = [0.0, 0.0, 3.0, 4.0, 6.0, 8.0, 6.0, 8.0];
-        let f = fit_track(&t, &x, 2, None, &Method::Linear).unwrap();
-        assert_eq!(f.cumulative_length().unwrap(), vec![0.0, 5.0, 10.0, 10.0]);
-        let mut out = [0.0; 8];
-        f.at_time(0.5, &mut out); // midway along the first chord, velocity (3, 4)
-        assert_eq!(&out[..4], &[1.5, 2.0, 3.0, 4.0]);
-    }
-
-    #[test]
-    fn spline_arc_length_of_a_quarter_circle() {
-        // Interpolating cubic through 41 uneven samples of an arc of radius 5 at unit speed: the
-        // length is the elapsed time (closed form) to 1e-6 relative (spline error ~h⁴, h ≈ 0.2).
-        let (t, x) = arc(41);
-        let f = fit_track(&t, &x, 2, None, &Method::Spline(EndCondition::NotAKnot)).unwrap();
-        let cum = f.cumulative_length().unwrap();
-        let exact = t[40] - t[0];
-        assert!((cum[40] / exact - 1.0).abs() < 1e-6, "{}", cum[40]);
-        // length_to between samples agrees with the cumulative lengths at the samples.
-        assert!((f.length_to(&cum, t[20]) - cum[20]).abs() < 1e-12);
-        assert!(f.info().smoothing.is_nan());
-    }
-
-    #[test]
-    fn batch_skips_non_finite_rows_and_flags_short_tracks() {
-        // Two tracks: the first has a NaN row (fitted on the others, its rows recorded); the
-        // second has 3 finite rows of 4, fewer than a quintic smoothing spline needs (5).
-        let (t1, x1) = arc(30);
-        let mut x = x1.clone();
-        x[2 * 10] = f64::NAN;
-        let t2 = [0.0, 1.0, 2.0, 3.0, 4.0];
-        let x2 = [0.0, 0.0, 1.0, 0.0, f64::NAN, 0.0, 3.0, 0.0, 4.0, 0.0];
-        let mut t = t1.clone();
-        t.extend(t2);
-        x.extend(x2);
-        let method = Method::Smooth {
-            degree: 5,
-            smoothing: Smoothing::Gcv,
-            derivative: 0,
-            covariance: None,
-        };
-        let fits = fit_batch(&t, &x, 2, &[0, 30, 35], None, &method).unwrap();
-        let kept = fits.rows[0].as_ref().unwrap();
-        assert_eq!(kept.len(), 29);
-        assert!(!kept.contains(&10));
-        assert!(matches!(fits.tracks[1], TrackFit::Invalid));
-        assert!(fits.tracks[0].info().edf >= 3.0 - 1e-9); // tr A ≥ m = 3 (penalty null space)
-    }
-
-    #[test]
-    fn bad_weights_are_named() {
-        let (t, x) = arc(20);
-        let w = vec![1.0; 19];
-        let method = Method::Smooth {
-            degree: 3,
-            smoothing: Smoothing::Gcv,
-            derivative: 0,
-            covariance: None,
-        };
-        let err = fit_batch(&t, &x, 2, &[0, 20], Some(&w), &method).unwrap_err();
-        assert_eq!(err.argument(), "weights");
-    }
-}
+#[path = "fit_tests.rs"]
+mod tests;

@@ -43,11 +43,29 @@ impl Ellipsoid {
     };
 
     /// Semi-minor (polar) axis b = a (1 − f).
+    ///
+    /// # Examples
+    ///
+    /// ```
+    /// use osculate::geodesy::Ellipsoid;
+    /// // NIMA TR8350.2, Table 3.3: b = 6356752.3142 m (to the 0.1 mm given there).
+    /// assert!((Ellipsoid::WGS84.b() - 6_356_752.3142).abs() < 1e-4);
+    /// ```
     pub fn b(&self) -> f64 {
         self.a * (1.0 - self.f)
     }
 
     /// First eccentricity squared e² = f (2 − f).
+    ///
+    /// # Examples
+    ///
+    /// ```
+    /// use osculate::geodesy::Ellipsoid;
+    /// // NIMA TR8350.2, Table 3.3: e² = 0.00669437999014 (14 decimals given there).
+    /// assert!((Ellipsoid::WGS84.e2() - 0.006_694_379_990_14).abs() < 1e-14);
+    /// // A sphere has none.
+    /// assert_eq!(Ellipsoid { a: 1.0, f: 0.0 }.e2(), 0.0);
+    /// ```
     pub fn e2(&self) -> f64 {
         self.f * (2.0 - self.f)
     }
@@ -137,6 +155,20 @@ pub struct LocalFrame {
 
 impl LocalFrame {
     /// The ENU frame at geodetic `origin` `[lat°, lon°, h m]` on `ellipsoid`.
+    ///
+    /// # Examples
+    ///
+    /// ```
+    /// use osculate::geodesy::{Ellipsoid, LocalFrame, WGS84_A};
+    /// // On the equator at longitude 0 the origin is ECEF (a, 0, 0), east is +y, north +z, up +x
+    /// // (closed form).
+    /// let f = LocalFrame::new(&Ellipsoid::WGS84, [0.0, 0.0, 0.0]);
+    /// assert!((f.origin_ecef[0] - WGS84_A).abs() < 1e-9 && f.origin_ecef[1].abs() < 1e-9);
+    /// let want = [[0.0, 1.0, 0.0], [0.0, 0.0, 1.0], [1.0, 0.0, 0.0]];
+    /// for (axis, w) in f.axes.iter().zip(want) {
+    ///     assert!(axis.iter().zip(w).all(|(a, b)| (a - b).abs() < 1e-15));
+    /// }
+    /// ```
     pub fn new(ellipsoid: &Ellipsoid, origin: [f64; 3]) -> Self {
         let (sp, cp) = origin[0].to_radians().sin_cos();
         let (sl, cl) = origin[1].to_radians().sin_cos();
@@ -173,6 +205,18 @@ impl LocalFrame {
     }
 
     /// ECEF point of ENU components.
+    ///
+    /// # Examples
+    ///
+    /// ```
+    /// use osculate::geodesy::{Ellipsoid, LocalFrame};
+    /// // At the north pole the origin is ECEF (0, 0, b) and up is +z (closed form): 10 m up is
+    /// // z = b + 10.
+    /// let wgs = Ellipsoid::WGS84;
+    /// let f = LocalFrame::new(&wgs, [90.0, 0.0, 0.0]);
+    /// let p = f.ecef_of_enu([0.0, 0.0, 10.0]);
+    /// assert!(p[0].abs() < 1e-6 && p[1].abs() < 1e-6 && (p[2] - wgs.b() - 10.0).abs() < 1e-6);
+    /// ```
     pub fn ecef_of_enu(&self, enu: [f64; 3]) -> [f64; 3] {
         let [e, n, u] = self.axes;
         let o = self.origin_ecef;

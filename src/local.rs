@@ -398,6 +398,21 @@ pub fn local_with(
 
 impl LocalFit {
     /// Derivatives 0..=3 at an arbitrary time (the window around it, as at the samples).
+    ///
+    /// # Examples
+    ///
+    /// ```
+    /// use osculate::local::{local, Window};
+    /// // Local quadratics reproduce x = t² exactly, between samples too (closed form):
+    /// // x(2.3) = 5.29, x′ = 4.6, x″ = 2; x‴ is above the degree, so NaN.
+    /// let t: Vec<f64> = (0..20).map(|i| 0.25 * i as f64).collect();
+    /// let x: Vec<f64> = t.iter().map(|&u| u * u).collect();
+    /// let f = local(&t, &x, 1, 2, Window::Samples(5)).unwrap();
+    /// let mut out = [0.0; 4];
+    /// f.eval(2.3, &mut out);
+    /// assert!((out[0] - 5.29).abs() < 1e-10 && (out[1] - 4.6).abs() < 1e-10);
+    /// assert!((out[2] - 2.0).abs() < 1e-9 && out[3].is_nan());
+    /// ```
     pub fn eval(&self, tc: f64, out: &mut [f64]) {
         let (lo, hi, _) = window_rows(&self.t, tc, None, self.window);
         if fit_at(

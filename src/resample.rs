@@ -201,6 +201,20 @@ fn cumulative_length(fit: &TrackFit) -> Result<Vec<f64>> {
 }
 
 /// Time at which the fitted track reaches arc length `s` (`cum` its cumulative lengths).
+///
+/// # Examples
+///
+/// ```
+/// use osculate::fit::{fit_track, Method};
+/// use osculate::resample::time_at_length;
+/// // Chords of length 5 (3-4-5 steps) in 1 s, then in 4 s: s = 2.5 at t = 0.5, s = 7.5 at t = 3.
+/// let t = [0.0, 1.0, 5.0];
+/// let x = [0.0, 0.0, 3.0, 4.0, 6.0, 8.0];
+/// let f = fit_track(&t, &x, 2, None, &Method::Linear).unwrap();
+/// let cum = f.cumulative_length().unwrap();
+/// assert!((time_at_length(&f, &cum, 2.5) - 0.5).abs() < 1e-12);
+/// assert!((time_at_length(&f, &cum, 7.5) - 3.0).abs() < 1e-12);
+/// ```
 pub fn time_at_length(fit: &TrackFit, cum: &[f64], s: f64) -> f64 {
     let n = fit.times().len();
     let j = Cursor::at(cum, s, n - 2).0;
@@ -319,6 +333,22 @@ fn interp_on(ts: &[f64], y: &[f64], cols: usize, i: usize, t: f64, out: &mut [f6
 
 /// Resample every fitted track; `t` and `extra` (`ncols` columns) are the original rows, with the
 /// row offsets of `fits`.
+///
+/// # Examples
+///
+/// ```
+/// use osculate::fit::{fit_batch, Method};
+/// use osculate::resample::{resample, Spacing};
+/// // The unit square as a polyline: length 4, corners at s = 0, 1, 2, 3, 4 (closed form).
+/// let t = [0.0, 1.0, 2.0, 3.0, 4.0];
+/// let x = [0.0, 0.0, 1.0, 0.0, 1.0, 1.0, 0.0, 1.0, 0.0, 0.0];
+/// let fits = fit_batch(&t, &x, 2, &[0, 5], None, &Method::Linear).unwrap();
+/// let r = resample(&fits, &t, &[], 0, &Spacing::Step { step: 0.5, endpoint: true }).unwrap();
+/// assert_eq!(r.lengths, vec![4.0]);
+/// assert_eq!(r.s.len(), 9);
+/// assert!((r.x[4] - 1.0).abs() < 1e-12 && (r.x[5] - 0.0).abs() < 1e-12); // s = 1: corner (1, 0)
+/// assert!((r.t[3] - 1.5).abs() < 1e-12); // s = 1.5 is reached at t = 1.5
+/// ```
 pub fn resample(
     fits: &Fits,
     t: &[f64],

@@ -270,3 +270,65 @@ def test_estimator_bad_options(kw, msg):
     t = np.linspace(0, 3, 30)
     with pytest.raises(osc.InputError, match=msg):
         osc.kinematics(t, helix(t), **kw)
+
+
+@pytest.mark.parametrize(
+    "kw, argument, msg",
+    [
+        (
+            {"method": "spline", "bc": "clamped", "bc_velocity": np.ones((2, 2))},
+            "bc_velocity",
+            r"velocities of shape \(2, 3\), got \(2, 2\)",
+        ),
+        (
+            {"method": "spline", "bc": "clamped", "bc_velocity": [1.0, 2.0]},
+            "bc_velocity",
+            r"got \(2,\)",
+        ),
+        ({"method": "local", "window": 0}, "window", r"must be a positive number of samples"),
+        ({"method": "local", "degree": 6}, "degree", r"must be 1 to 5 for method='local'"),
+        ({"method": "smooth", "derivative": 4}, "derivative", r"must be 0, 1, 2 or 3, got 4"),
+        ({"method": "fd", "weights": np.ones(30)}, "weights", r"does not apply to method='fd'"),
+        ({"method": "linear", "bc": "natural"}, "bc", r"does not apply .* \(it takes \[\]\)"),
+        ({"method": "smooth", "order": 2**70}, "order", r"\d+ is too large"),
+    ],
+)
+def test_estimator_options_are_checked_by_the_kernel(kw, argument, msg):
+    # One rule set (src/fit_options.rs) for every public function, each error naming its option.
+    t = np.linspace(0, 3, 30)
+    call = osc.kinematics if kw["method"] == "fd" else osc.fit
+    with pytest.raises(osc.InputError, match=f"^{argument}: .*{msg}") as e:
+        call(t, helix(t), **kw)
+    assert e.value.argument == argument
+
+
+@pytest.mark.parametrize(
+    "kw, msg",
+    [
+        ({"method": "smooth", "degree": True}, r"^degree: expected an integer, got True"),
+        ({"method": "smooth", "degree": np.True_}, r"^degree: expected an integer"),
+        ({"method": "local", "window": "7"}, r"^window: expected an integer, got '7'"),
+        ({"method": "smooth", "derivative": 1.0}, r"^derivative: expected an integer"),
+        ({"method": "smooth", "noise": False}, r"^noise: expected a real number, got False"),
+        ({"method": "smooth", "smoothing": 1j}, r"^smoothing: expected a real number"),
+        ({"method": "spline", "bc": 3}, r"^bc: expected a string, got 3"),
+        ({"method": 3}, r"^method: expected a string"),
+        ({"method": "spline", "knots": 5}, r"^unexpected estimator option 'knots'"),
+    ],
+)
+def test_estimator_option_types_are_checked_by_the_binding(kw, msg):
+    # A bool or a str is not an integer, a bool or a complex number not a real one.
+    t = np.linspace(0, 3, 30)
+    with pytest.raises(TypeError, match=msg):
+        osc.fit(t, helix(t), **kw)
+
+
+def test_fit_refuses_fd_and_defaults_come_from_the_kernel():
+    t = np.linspace(0, 3, 30)
+    with pytest.raises(osc.InputError, match=r"method: expected one of \('spline', 'smooth', "):
+        osc.fit(t, helix(t), method="fd")
+    # The defaults (src/fit_options.rs): order 2, quintic smoothing, local degree 4.
+    assert osc.kinematics(t, helix(t)).estimator == "fd (order 2)"
+    assert osc.fit(t, helix(t), method="smooth").fit_info["edf"].shape == (1,)
+    assert repr(osc.fit(t, helix(t), method="smooth")).endswith("smooth (degree 5)>")
+    assert repr(osc.fit(t, helix(t), method="local")).endswith("local (degree 4)>")

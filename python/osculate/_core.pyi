@@ -6,11 +6,14 @@ import numpy.typing as npt
 
 __version__: str
 KINEMATICS_OUTPUTS: list[str]
+ESTIMATOR_METHODS: list[str]
 __all__ = [
+    "ESTIMATOR_METHODS",
     "KINEMATICS_OUTPUTS",
     "FittedPaths",
     "InputError",
     "__version__",
+    "check_estimator_options",
     "enu_to_geodetic",
     "find_elements",
     "find_speed_changes",
@@ -58,6 +61,7 @@ def kinematics(
     inverse: npt.NDArray[np.uintp] | None = None,
     t_kernel: bool = False,
     out: dict[str, npt.NDArray[np.float64]] | None = None,
+    uncertainty: str | None = None,
 ) -> dict[str, Any]: ...
 def find_turns(
     t: npt.NDArray[np.float64],
@@ -134,22 +138,16 @@ def polyline_arclength(
     positions: npt.NDArray[np.float64],
     offsets: npt.NDArray[np.int64],
 ) -> npt.NDArray[np.float64]: ...
+def check_estimator_options(
+    options: dict[str, Any], *, fit_only: bool = False
+) -> dict[str, Any]: ...
 def fit_paths(
     t: npt.NDArray[np.float64],
     positions: npt.NDArray[np.float64],
     offsets: npt.NDArray[np.int64],
     *,
-    method: str,
-    bc: str = "not-a-knot",
-    bc_start: list[float] | None = None,
-    bc_end: list[float] | None = None,
-    degree: int = 5,
-    smoothing: float | None = None,
-    noise: float | None = None,
-    window: int | None = None,
-    window_span: float | None = None,
+    options: dict[str, Any],
     weights: npt.NDArray[np.float64] | None = None,
-    derivative: int = 2,
     uncertainty: str | None = None,
 ) -> FittedPaths: ...
 

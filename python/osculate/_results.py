@@ -16,7 +16,6 @@ import numpy.typing as npt
 
 from . import _core
 from ._columns import require_pandas
-from ._estimators import EstimatorOptions
 from ._validate import Grouping
 from .flags import Flag
 from .stops import Stops
@@ -458,7 +457,8 @@ def assemble(
     x: F64,
     g: Grouping,
     raw: dict[str, Any],
-    opts: EstimatorOptions,
+    method: str,
+    estimator: str,
     info: dict[str, np.ndarray] | None,
     *,
     grouped: bool,
@@ -490,8 +490,8 @@ def assemble(
         t=t,
         position=x,
         tracks=g.labels[g.row_codes()] if grouped else None,
-        method=opts.method,
-        estimator=opts.describe(),
+        method=method,
+        estimator=estimator,
         fit_info=info,
         frame=frame,
         outputs=computed,

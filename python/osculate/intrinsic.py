@@ -307,27 +307,22 @@ def kinematics(
     >>> hasattr(k, "torsion")  # AttributeError: torsion was not computed
     False
     """
-    opts = EstimatorOptions(
+    # The kernel checks the estimator options (and that the estimator gives curvature).
+    opts = EstimatorOptions.unchecked(
         method,
-        order=order,
-        bc=bc,
-        bc_velocity=bc_velocity,
-        degree=degree,
-        smoothing=smoothing,
-        noise=noise,
-        weights=weights,
-        window=window,
-        window_span=window_span,
-        derivative=derivative,
+        {
+            "order": order,
+            "bc": bc,
+            "bc_velocity": bc_velocity,
+            "degree": degree,
+            "smoothing": smoothing,
+            "noise": noise,
+            "weights": weights,
+            "window": window,
+            "window_span": window_span,
+            "derivative": derivative,
+        },
     )
-    if method == "linear":
-        raise _core.InputError(
-            "method: 'linear' has no curvature; use it with resample() or fit() only"
-        )
-    if method == "local" and opts.degree < 3:
-        raise _core.InputError(
-            f"degree: torsion and jerk need r‴, so local fits need degree >= 3, got {opts.degree}"
-        )
     # Standard errors: for "auto" the fd choice decides the kinematics option, the fallback fit
     # keeps its covariance unless they are refused.
     kind = _uncertainty(uncertainty, "fd" if method == "auto" else method)
@@ -343,7 +338,6 @@ def kinematics(
         "uncertainty": kind is not None,
         "outputs": None if asked is None else sorted({*asked, "position_se"}),
     }
-    estimator = opts.kernel_options(x.shape[1], uncertainty=fit_kind)
     # Integer times are made relative per track (exact differences) in kernel order; the kernel
     # gathers everything else into its order itself.
     exact = ticks_of(t) is not None
@@ -353,27 +347,36 @@ def kinematics(
         kernel_times(t, tt, g)[0] if exact else tt,
         x,
         g.offsets,
-        estimator=estimator,
+        estimator={**opts.options, "weights": opts.weights},
+        uncertainty=fit_kind,
         options=options,
         min_stop=None if min_stop is None else as_real("min_stop", min_stop),
         frame=frame,
         initial=None if initial is None else vector3("initial", initial, x.shape[1]),
-        weights=None if opts.weights is None else opts.kernel_weights(len(tt)),
+        weights=opts.weights_array(len(tt)),
         order=None if g.order is None else g.order.view(np.uintp),
         inverse=None if g.inverse is None else g.inverse.view(np.uintp),
         t_kernel=exact,
         out=_out_buffers(out, len(tt), x.shape[1]),
     )
-    used = raw.pop("method")
+    used, estimator = raw.pop("method"), raw.pop("estimator")
     check_tracks(g.names, raw.pop("stats"), raw["noise"], method, used)
-    if used != opts.method:
-        opts = EstimatorOptions(used)
     info = raw.pop("info", None) or {"noise": raw["noise"]}
     grouped = tracks is not None or offsets is not None
     labels = g.labels if grouped else np.zeros(1, np.int64)
     stops = kernel_stops(tt, raw.pop("stops"), labels, g.order)
     return assemble(
-        tt, x, g, raw, opts, info, grouped=grouped, frame=frame, stops=stops, kernel_order=False
+        tt,
+        x,
+        g,
+        raw,
+        used,
+        estimator,
+        info,
+        grouped=grouped,
+        frame=frame,
+        stops=stops,
+        kernel_order=False,
     )
 
 

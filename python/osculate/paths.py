@@ -8,7 +8,7 @@ import numpy as np
 import numpy.typing as npt
 
 from . import _core
-from ._estimators import FIT_METHODS, EstimatorOptions, fit_core
+from ._estimators import EstimatorOptions, fit_core
 from ._results import OUTPUTS, Kinematics, assemble
 from ._validate import (
     Grouping,
@@ -156,7 +156,10 @@ class Path:
             },
         )
         pos = g.to_caller(raw.pop("position"))
-        return assemble(tq, pos, g, raw, self._opts, self.fit_info, grouped=track is not None)
+        opts = self._opts
+        return assemble(
+            tq, pos, g, raw, opts.method, opts.describe(), self.fit_info, grouped=track is not None
+        )
 
     def arclength(self, t: npt.ArrayLike, *, track: Any = None) -> F64:
         """Arc length from the track's first sample to each time in ``t``."""
@@ -181,8 +184,7 @@ def fit(
     method : {"smooth", "spline", "local"}
         The estimator (see :func:`osculate.kinematics`).
     **options
-        Its options: ``bc``, ``bc_velocity`` (spline); ``degree``, ``smoothing``, ``noise``,
-        ``weights`` (smooth); ``degree``, ``window``, ``window_span`` (local).
+        Its options, as in :func:`osculate.kinematics` (only those of the chosen estimator).
 
     Returns
     -------
@@ -213,9 +215,7 @@ def fit(
     >>> both(1.0, track="b").tolist()
     [[1.0, 1.0]]
     """
-    if method not in FIT_METHODS:
-        raise _core.InputError(f"method: expected one of {FIT_METHODS}, got {method!r}")
-    opts = EstimatorOptions(method, **options)
+    opts = EstimatorOptions.for_fit(method, options)
     tt = as_times(t)
     x = as_positions(positions, len(tt))
     g = group_rows(len(tt), tracks, offsets, tt)

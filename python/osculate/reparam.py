@@ -9,7 +9,7 @@ import numpy as np
 import numpy.typing as npt
 
 from . import _core
-from ._estimators import FIT_METHODS, EstimatorOptions, fit_core
+from ._estimators import EstimatorOptions, fit_core
 from ._validate import (
     as_int,
     as_positions,
@@ -178,12 +178,10 @@ def resample(
     >>> osc.resample([0, 1], [[0, 0], [3, 4]], count=3, method="linear").position.tolist()
     [[0.0, 0.0], [1.5, 2.0], [3.0, 4.0]]
     """
-    if method not in FIT_METHODS:
-        raise _core.InputError(f"method: expected one of {FIT_METHODS}, got {method!r}")
     given = [name for name, v in (("step", step), ("count", count), ("at", at)) if v is not None]
     if len(given) != 1:
         raise _core.InputError(f"step, count, at: give exactly one, got {given or 'none'}")
-    opts = EstimatorOptions(method, **options)
+    opts = EstimatorOptions.for_fit(method, options)
     tt = as_times(t)
     x = as_positions(positions, len(tt))
     g = group_rows(len(tt), tracks, offsets, tt)

@@ -3,15 +3,19 @@
 use super::error::{contiguous, detached, rows};
 use super::kinematics::{kinematics_options, to_dict};
 use crate::diff::FdOrder;
-use crate::fit::{fit_batch, Fits, Method, MethodOptions};
+use crate::error::try_collect;
+use crate::fit::{fit_batch, Estimator, EstimatorOptions, Fits, Method};
+use crate::fit_options::EndVelocities;
 use crate::kinematics::{of_fits, of_fits_at, Options};
 use crate::resample::{resample, Spacing};
 use crate::KernelError;
 use numpy::{
-    IntoPyArray, PyArray1, PyArray2, PyReadonlyArray1, PyReadonlyArray2, PyUntypedArrayMethods,
+    IntoPyArray, PyArray1, PyArray2, PyReadonlyArray1, PyReadonlyArray2, PyReadonlyArrayDyn,
+    PyUntypedArrayMethods,
 };
+use pyo3::exceptions::{PyMemoryError, PyOverflowError, PyTypeError};
 use pyo3::prelude::*;
-use pyo3::types::PyDict;
+use pyo3::types::{PyBool, PyComplex, PyDict};
 
 /// Fitted tracks, evaluable anywhere. Built by `fit_paths`.
 #[pyclass(module = "osculate._core", frozen)]
@@ -23,31 +27,174 @@ fn bad(argument: &'static str, detail: String) -> KernelError {
     KernelError::Option { argument, detail }
 }
 
-/// Fit every track of a batch (arrays validated by the Python layer).
+/// An InputError naming `argument`, like those of the kernel.
+fn input_error(py: Python<'_>, argument: &'static str, detail: String) -> PyErr {
+    // `detached` is the one place that turns kernel errors into exceptions (with the `argument`
+    // attribute set); the closure only returns the error.
+    match detached(py, move || Err::<(), _>(bad(argument, detail))) {
+        Err(e) => e,
+        Ok(()) => PyTypeError::new_err(argument),
+    }
+}
+
+fn repr(v: &Bound<'_, PyAny>) -> String {
+    let r = v.repr().map(|r| r.to_string()).unwrap_or_default();
+    match r.char_indices().nth(80) {
+        Some((i, _)) => format!("{}...", &r[..i]),
+        None => r,
+    }
+}
+
+/// Python's and NumPy's booleans: integers to Python, never an option value here.
+fn is_boolean(v: &Bound<'_, PyAny>) -> bool {
+    v.is_instance_of::<PyBool>()
+        || v.get_type()
+            .fully_qualified_name()
+            .is_ok_and(|n| n.to_string().starts_with("numpy.bool"))
+}
+
+fn text(name: &'static str, v: &Bound<'_, PyAny>) -> PyResult<String> {
+    v.extract::<String>()
+        .map_err(|_| PyTypeError::new_err(format!("{name}: expected a string, got {}", repr(v))))
+}
+
+/// An integer option: Python or NumPy integers (anything with `__index__`), not booleans.
+fn integer(py: Python<'_>, name: &'static str, v: &Bound<'_, PyAny>) -> PyResult<i64> {
+    let typed = !is_boolean(v) && v.get_type().hasattr("__index__")?;
+    match v.extract::<i64>() {
+        Ok(i) if typed => Ok(i),
+        Err(e) if typed && e.is_instance_of::<PyOverflowError>(py) => {
+            Err(input_error(py, name, format!("{} is too large", repr(v))))
+        }
+        _ => Err(PyTypeError::new_err(format!(
+            "{name}: expected an integer, got {}",
+            repr(v)
+        ))),
+    }
+}
+
+/// A real option: anything Python converts with `float()` except booleans and complex numbers.
+fn real(py: Python<'_>, name: &'static str, v: &Bound<'_, PyAny>) -> PyResult<f64> {
+    let complex = v.is_instance_of::<PyComplex>()
+        || v.get_type()
+            .fully_qualified_name()
+            .is_ok_and(|n| n.to_string().starts_with("numpy.complex"));
+    match v.extract::<f64>() {
+        Ok(x) if !complex && !is_boolean(v) => Ok(x),
+        Err(e) if e.is_instance_of::<PyOverflowError>(py) => {
+            Err(input_error(py, name, format!("{} is too large", repr(v))))
+        }
+        _ => Err(PyTypeError::new_err(format!(
+            "{name}: expected a real number, got {}",
+            repr(v)
+        ))),
+    }
+}
+
+/// `bc_velocity` as a float64 array of any shape (the Python layer converts array-likes); the
+/// kernel checks the shape.
+fn end_velocities(v: &Bound<'_, PyAny>) -> PyResult<EndVelocities> {
+    let a = v.extract::<PyReadonlyArrayDyn<'_, f64>>().map_err(|_| {
+        PyTypeError::new_err(format!(
+            "bc_velocity: expected a float64 array, got {}",
+            repr(v)
+        ))
+    })?;
+    let view = a.as_array();
+    Ok(EndVelocities {
+        shape: view.shape().to_vec(),
+        values: try_collect(view.len(), view.iter().copied())
+            .map_err(|e| PyMemoryError::new_err(e.to_string()))?,
+    })
+}
+
+/// The estimator options from a dictionary keyed by the option names of the Python API
+/// (`method`, `order`, `bc`, `bc_velocity`, `degree`, `smoothing`, `noise`, `weights`, `window`,
+/// `window_span`, `derivative`): the one place where they are converted from
+/// Python objects. A missing key or None is an option not given; `weights` only says whether
+/// weights are given (any value but None; the weights travel with the arrays). Type errors name
+/// the option (a bool or a string is not an integer); an unknown key is a TypeError. Ranges,
+/// defaults and which options apply to which method are the kernel's
+/// ([`crate::fit_options::Estimator::from_options`]).
+pub(crate) fn estimator_options(
+    py: Python<'_>,
+    options: &Bound<'_, PyDict>,
+) -> PyResult<EstimatorOptions> {
+    let mut o = EstimatorOptions::default();
+    for (key, value) in options.iter() {
+        let key: String = key.extract()?;
+        if value.is_none() {
+            continue;
+        }
+        let v = &value;
+        match key.as_str() {
+            "method" => o.method = text("method", v)?,
+            "order" => o.order = Some(integer(py, "order", v)?),
+            "bc" => o.bc = Some(text("bc", v)?),
+            "bc_velocity" => o.bc_velocity = Some(end_velocities(v)?),
+            "degree" => o.degree = Some(integer(py, "degree", v)?),
+            "smoothing" => o.smoothing = Some(real(py, "smoothing", v)?),
+            "noise" => o.noise = Some(real(py, "noise", v)?),
+            "weights" => o.weights = true,
+            "window" => o.window = Some(integer(py, "window", v)?),
+            "window_span" => o.window_span = Some(real(py, "window_span", v)?),
+            "derivative" => o.derivative = Some(integer(py, "derivative", v)?),
+            other => {
+                return Err(PyTypeError::new_err(format!(
+                    "unexpected estimator option '{other}'"
+                )))
+            }
+        }
+    }
+    Ok(o)
+}
+
+/// Check estimator options (a dict as in `fit_paths`) before any data is read: the conversion
+/// and the kernel's checks of `fit_paths`, but `bc_velocity` only checked to have 2 or 3
+/// columns. With `fit_only`, "fd" is refused. Returns the estimator's `description` and its
+/// resolved `order` (fd) and `degree` (smooth, local), None where they do not apply.
 #[pyfunction]
-#[pyo3(signature = (t, positions, offsets, *, method, bc="not-a-knot", bc_start=None, bc_end=None,
-    degree=5, smoothing=None, noise=None, window=None, window_span=None, weights=None,
-    derivative=2, uncertainty=None))]
-#[allow(clippy::too_many_arguments)]
+#[pyo3(signature = (options, *, fit_only=false))]
+pub fn check_estimator_options<'py>(
+    py: Python<'py>,
+    options: Bound<'py, PyDict>,
+    fit_only: bool,
+) -> PyResult<Bound<'py, PyDict>> {
+    let o = estimator_options(py, &options)?;
+    let e = detached(py, move || {
+        let e = Estimator::from_options(&o)?;
+        if fit_only {
+            e.clone().into_fit()?;
+        }
+        Ok(e)
+    })?;
+    let out = PyDict::new(py);
+    out.set_item("description", e.describe())?;
+    out.set_item("order", e.order())?;
+    out.set_item("degree", e.degree())?;
+    Ok(out)
+}
+
+/// Fit every track of a batch (arrays validated by the Python layer; `options` as in
+/// [`estimator_options`], `weights` one per row, `uncertainty` "sampling" or "posterior" to keep
+/// what the standard errors need).
+#[pyfunction]
+#[pyo3(signature = (t, positions, offsets, *, options, weights=None, uncertainty=None))]
 pub fn fit_paths<'py>(
     py: Python<'py>,
     t: PyReadonlyArray1<'py, f64>,
     positions: PyReadonlyArray2<'py, f64>,
     offsets: PyReadonlyArray1<'py, i64>,
-    method: &str,
-    bc: &str,
-    bc_start: Option<Vec<f64>>,
-    bc_end: Option<Vec<f64>>,
-    degree: usize,
-    smoothing: Option<f64>,
-    noise: Option<f64>,
-    window: Option<usize>,
-    window_span: Option<f64>,
+    options: Bound<'py, PyDict>,
     weights: Option<PyReadonlyArray1<'py, f64>>,
-    derivative: usize,
     uncertainty: Option<String>,
 ) -> PyResult<FittedPaths> {
     let dim = positions.shape()[1];
+    let mut o = estimator_options(py, &options)?;
+    o.weights = weights.is_some();
+    if uncertainty.is_some() {
+        o.uncertainty = uncertainty;
+    }
     let t = contiguous("t", t.as_slice())?;
     let x = contiguous("positions", positions.as_slice())?;
     let off = contiguous("offsets", offsets.as_slice())?;
@@ -55,21 +202,8 @@ pub fn fit_paths<'py>(
         Some(w) => Some(contiguous("weights", w.as_slice())?),
         None => None,
     };
-    let options = MethodOptions {
-        name: method,
-        bc,
-        bc_start,
-        bc_end,
-        degree,
-        smoothing,
-        noise,
-        window,
-        window_span,
-        derivative,
-        uncertainty: uncertainty.as_deref(),
-    };
     let fits = detached(py, move || {
-        let m = Method::from_options(options)?;
+        let m = Method::from_options(&o, dim)?;
         fit_batch(t, x, dim, off, w, &m)
     })?;
     Ok(FittedPaths { fits })

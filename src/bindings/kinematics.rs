@@ -3,7 +3,7 @@
 
 use super::error::{contiguous, detached, rows, to_pyerr};
 use crate::diff::FdOrder;
-use crate::kinematics::pipeline::{run_in, Finished, Frame, Request};
+use crate::kinematics::pipeline::{run_in, Estimator, Finished, Frame, Request};
 use crate::kinematics::{Kinematics, Lend, Options, Outputs};
 use crate::KernelError;
 use numpy::{
@@ -186,8 +186,8 @@ fn columns_dict<'py>(py: Python<'py>, cols: Vec<(&str, Vec<f64>)>) -> PyResult<B
 }
 
 /// The whole kinematics of concatenated tracks in one call (see
-/// `crate::kinematics::pipeline::run`): `estimator` a dict of the estimator options (`method`
-/// "fd", "auto" or a fitting method, and that method's options), `options` as in
+/// `crate::kinematics::pipeline::run`): `estimator` a dict of the estimator options as in
+/// `bindings::fit::estimator_options` (`uncertainty`: the covariance a fit keeps), `options` as in
 /// [`kinematics_options`], `min_stop` (None: default; inf: no stops), `frame` "frenet" or
 /// "rotation-minimizing" with `initial`, and `weights`. `order` (kernel row i is caller row
 /// `order[i]`) and `inverse` (its inverse) relate the caller's rows to the kernel's, None when
@@ -197,7 +197,7 @@ fn columns_dict<'py>(py: Python<'py>, cols: Vec<(&str, Vec<f64>)>) -> PyResult<B
 #[pyfunction]
 #[pyo3(name = "kinematics", signature = (t, positions, offsets, *, estimator, options=None,
     min_stop=None, frame="frenet", initial=None, weights=None, order=None, inverse=None,
-    t_kernel=false, out=None))]
+    t_kernel=false, out=None, uncertainty=None))]
 #[allow(clippy::too_many_arguments)]
 pub fn kinematics_call<'py>(
     py: Python<'py>,
@@ -214,6 +214,7 @@ pub fn kinematics_call<'py>(
     inverse: Option<PyReadonlyArray1<'py, usize>>,
     t_kernel: bool,
     out: Option<Bound<'py, PyDict>>,
+    uncertainty: Option<String>,
 ) -> PyResult<Bound<'py, PyDict>> {
     let dim = positions.shape()[1];
     let (t, x, off) = (
@@ -233,7 +234,9 @@ pub fn kinematics_call<'py>(
         Some(i) => Some(contiguous("order", i.as_slice())?),
         None => None,
     };
-    let est = estimator_tmp(py, &estimator)?;
+    let mut est = super::fit::estimator_options(py, &estimator)?;
+    est.uncertainty = uncertainty;
+    let est = detached(py, || Estimator::for_dim(&est, dim))?;
     let opts = kinematics_options(py, options.as_ref(), FdOrder::Two)?;
     // Caller's buffers for some outputs, borrowed writable for the whole call.
     let mut lent: Vec<(&'static str, Bound<'py, PyAny>)> = Vec::new();
@@ -314,14 +317,15 @@ pub fn kinematics_call<'py>(
         info: fit_info,
         stats: s,
         fd_swamped,
-        method,
+        used,
         ..
     } = f;
     let out = to_dict_lent(py, k, opts.outputs, &lent)?;
     if rmf {
         out.set_item("twist", twist.into_pyarray(py))?;
     }
-    out.set_item("method", method)?;
+    out.set_item("method", used.name())?;
+    out.set_item("estimator", used.describe())?;
     let to_i64 = |v: &[usize]| v.iter().map(|&r| r as i64).collect::<Vec<i64>>();
     let stops = PyDict::new(py);
     stops.set_item("first", to_i64(&stop_rows.first).into_pyarray(py))?;
@@ -362,64 +366,4 @@ pub fn kinematics_call<'py>(
         out.set_item("info", info)?;
     }
     Ok(out)
-}
-
-/// TEMPORARY: estimator options from a dict (replaced by the estimator conversion of bindings/fit.rs).
-fn estimator_tmp(
-    py: Python<'_>,
-    d: &Bound<'_, PyDict>,
-) -> PyResult<crate::kinematics::pipeline::Estimator> {
-    use crate::fit::{Method, MethodOptions};
-    use crate::kinematics::pipeline::Estimator;
-    let get = |k: &str| d.get_item(k).ok().flatten().filter(|v| !v.is_none());
-    let name: String = get("method")
-        .map(|v| v.extract())
-        .transpose()?
-        .unwrap_or_else(|| "fd".into());
-    let order: i64 = get("order").map(|v| v.extract()).transpose()?.unwrap_or(2);
-    let order = detached(py, || {
-        FdOrder::from_int(order).ok_or_else(|| KernelError::Option {
-            argument: "order",
-            detail: format!("must be 2 or 4, got {order}"),
-        })
-    })?;
-    if name == "fd" {
-        return Ok(Estimator::Fd(order));
-    }
-    let unc: Option<String> = get("uncertainty").map(|v| v.extract()).transpose()?;
-    let bcv: Option<Vec<Vec<f64>>> = get("bc_velocity").map(|v| v.extract()).transpose()?;
-    let (bc_start, bc_end) = match bcv {
-        Some(v) if v.len() == 2 => (Some(v[0].clone()), Some(v[1].clone())),
-        _ => (None, None),
-    };
-    let bc: String = get("bc")
-        .map(|v| v.extract())
-        .transpose()?
-        .unwrap_or_else(|| "not-a-knot".into());
-    let auto = name == "auto";
-    let o = MethodOptions {
-        name: if auto { "smooth" } else { name.as_str() },
-        bc: bc.as_str(),
-        bc_start,
-        bc_end,
-        degree: get("degree")
-            .map(|v| v.extract())
-            .transpose()?
-            .unwrap_or(if name == "local" { 4 } else { 5 }),
-        smoothing: get("smoothing").map(|v| v.extract()).transpose()?,
-        noise: get("noise").map(|v| v.extract()).transpose()?,
-        window: get("window").map(|v| v.extract()).transpose()?,
-        window_span: get("window_span").map(|v| v.extract()).transpose()?,
-        derivative: get("derivative")
-            .map(|v| v.extract())
-            .transpose()?
-            .unwrap_or(0),
-        uncertainty: unc.as_deref(),
-    };
-    let m = detached(py, || Method::from_options(o))?;
-    Ok(if auto {
-        Estimator::Auto { order, fallback: m }
-    } else {
-        Estimator::Fit(m)
-    })
 }

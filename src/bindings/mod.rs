@@ -34,6 +34,8 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(turns::find_turns, m)?)?;
     m.add_function(wrap_pyfunction!(turns::find_speed_changes, m)?)?;
     m.add_function(wrap_pyfunction!(fit::fit_paths, m)?)?;
+    m.add_function(wrap_pyfunction!(fit::check_estimator_options, m)?)?;
+    m.add("ESTIMATOR_METHODS", crate::fit_options::METHODS)?;
     m.add_class::<fit::FittedPaths>()?;
     m.add_function(wrap_pyfunction!(geodesy::geodetic_to_enu, m)?)?;
     m.add_function(wrap_pyfunction!(geodesy::enu_to_geodetic, m)?)?;

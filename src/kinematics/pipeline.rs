@@ -12,25 +12,9 @@ use crate::diagnose::{fd_swamped, track_stats, TrackStats};
 use crate::diff::FdOrder;
 use crate::error::{try_collect, try_copy, KernelError, Result};
 use crate::fit::{fit_batch, FitInfo, Method};
+pub use crate::fit_options::Estimator;
 use crate::frame::flag;
 use crate::stops::{centres, find_stops, held_mask, StopRows};
-
-/// Which estimator gives the derivatives.
-#[derive(Debug, Clone, PartialEq)]
-pub enum Estimator {
-    /// Finite differences of the given order.
-    Fd(FdOrder),
-    /// A fitted path.
-    Fit(Method),
-    /// Finite differences, unless on some track the noise makes their accelerations mostly
-    /// noise ([`fd_swamped`]); then `fallback` (a smoothing spline) for the whole batch.
-    Auto {
-        /// Order of the finite differences.
-        order: FdOrder,
-        /// The estimator used when finite differences would give noise.
-        fallback: Method,
-    },
-}
 
 /// Which normal and binormal are returned.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -93,8 +77,8 @@ pub struct Finished<'a> {
     pub stats: TrackStats,
     /// Whether finite differences would give accelerations that are mostly noise, per track.
     pub fd_swamped: Vec<bool>,
-    /// The estimator used ("fd", "spline", "smooth", "local").
-    pub method: &'static str,
+    /// The estimator used (for "auto", the one chosen).
+    pub used: Estimator,
 }
 
 /// Shortest moving stretch that is refitted on its own (shorter ones keep the whole-track fit).
@@ -149,6 +133,7 @@ pub fn run_in<'a>(
     req: &Request,
     lend: Lend<'a>,
 ) -> Result<Finished<'a>> {
+    check_estimator(&req.estimator)?;
     let off = check_offsets(offsets, t.len())?;
     let rmf = matches!(req.frame, Frame::RotationMinimizing(_));
     let mut opts = req.options;
@@ -231,8 +216,29 @@ pub fn run_in<'a>(
         info,
         stats,
         fd_swamped: swamped,
-        method: fits_method.map_or("fd", |m| m.name()),
+        used: match (fits_method, &req.estimator) {
+            (Some(m), _) => Estimator::Fit(m.clone()),
+            (None, Estimator::Fd(o) | Estimator::Auto { order: o, .. }) => Estimator::Fd(*o),
+            (None, Estimator::Fit(m)) => Estimator::Fit(m.clone()),
+        },
     })
+}
+
+/// The estimators that give every quantity of the kinematics.
+fn check_estimator(e: &Estimator) -> Result<()> {
+    match e {
+        Estimator::Fit(Method::Linear) => Err(KernelError::Option {
+            argument: "method",
+            detail: "'linear' has no curvature; use it with resample() or fit() only".into(),
+        }),
+        Estimator::Fit(Method::Local { degree, .. }) if *degree < 3 => Err(KernelError::Option {
+            argument: "degree",
+            detail: format!(
+                "torsion and jerk need r‴, so local fits need degree >= 3, got {degree}"
+            ),
+        }),
+        _ => Ok(()),
+    }
 }
 
 fn fd<'a>(
@@ -533,7 +539,7 @@ mod tests {
         }
         // Standing still adds no length: the arc length over the stop is constant.
         assert_eq!(f.k.arclength[a], f.k.arclength[b]);
-        assert_eq!(f.method, "fd");
+        assert_eq!(f.used.name(), "fd");
         assert!(f.info.is_empty());
     }
 
@@ -589,7 +595,7 @@ mod tests {
         };
         let exact = run(&t, &x, 2, &[0, 240], &request(auto.clone())).unwrap();
         let fd = run(&t, &x, 2, &[0, 240], &request(Estimator::Fd(FdOrder::Two))).unwrap();
-        assert_eq!(exact.method, "fd");
+        assert_eq!(exact.used.name(), "fd");
         let bits = |v: &[f64]| v.iter().map(|x| x.to_bits()).collect::<Vec<_>>();
         assert!(bits(&exact.k.curvature) == bits(&fd.k.curvature));
         assert!(bits(&exact.k.accel_tangential) == bits(&fd.k.accel_tangential));
@@ -598,7 +604,7 @@ mod tests {
         // against |r″| = 1 on the circle (closed form).
         let (t, x) = stop_and_go(0.02);
         let noisy = run(&t, &x, 2, &[0, 240], &request(auto)).unwrap();
-        assert_eq!(noisy.method, "smooth");
+        assert_eq!(noisy.used.name(), "smooth");
         assert_eq!(noisy.fd_swamped, vec![true]);
         assert_eq!(noisy.info.len(), 1);
     }
