@@ -33,7 +33,7 @@ class EstimatorOptions:
 
     @classmethod
     def unchecked(cls, method: str, given: dict[str, Any]) -> EstimatorOptions:
-        """The options as given, for a kernel call that checks them itself (no call here)."""
+        """Return the options as given, for a kernel call that checks them itself."""
         opts = cls.__new__(cls)
         opts.method = method
         opts.options = {"method": method}
