@@ -74,6 +74,8 @@ class Path:
                     f"track: this path holds {len(self.tracks)} tracks; say which one per query"
                 )
             codes = np.zeros(len(tq), dtype=np.intp)
+            # One track, queries in the caller's order: nothing to group.
+            g = Grouping(np.array([0, len(tq)], dtype=np.int64), None, self.tracks, codes=codes)
         else:
             ids = np.asarray(track)
             ids = np.broadcast_to(ids, tq.shape) if ids.ndim == 0 else ids
@@ -87,7 +89,7 @@ class Path:
                 row = int(np.flatnonzero(bad)[0])
                 label = ids[row].item() if isinstance(ids[row], np.generic) else ids[row]
                 raise _core.InputError(f"track: row {row}: unknown track {label!r}")
-        g = Grouping.from_codes(codes, self.tracks)
+            g = Grouping.from_codes(codes, self.tracks)
         order = np.arange(len(tq)) if g.order is None else g.order
         if self._origin is None:
             return tq, g, np.ascontiguousarray(tq[order])
