@@ -30,6 +30,7 @@ pub mod resample;
 pub mod rmf;
 pub mod smooth;
 pub mod spline;
+pub mod stops;
 pub mod summary;
 pub mod turns;
 pub mod uncertainty;

@@ -15,6 +15,7 @@ __all__ = [
     "fd_kinematics",
     "find_elements",
     "find_speed_changes",
+    "find_stops",
     "find_turns",
     "fit_paths",
     "fresnel",
@@ -95,6 +96,14 @@ def find_speed_changes(
     z_off: float = 1.0,
     min_samples: int = 3,
 ) -> dict[str, npt.NDArray[Any]]: ...
+def find_stops(
+    t: npt.NDArray[np.float64],
+    positions: npt.NDArray[np.float64],
+    flags: npt.NDArray[np.uint8],
+    offsets: npt.NDArray[np.int64],
+    noise: npt.NDArray[np.float64],
+    min_stop: float | None = None,
+) -> tuple[npt.NDArray[np.int64], npt.NDArray[np.int64], npt.NDArray[np.int64]]: ...
 def find_elements(
     t: npt.NDArray[np.float64],
     arclength: npt.NDArray[np.float64],

@@ -446,14 +446,9 @@ def _thresholds(
 def _find_stops(
     raw: dict[str, Any], t: F64, x: F64, g: Grouping, min_stop: float | None
 ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """Stop intervals (kernel rows) from the flags of ``raw``."""
+    """Stop intervals (kernel rows) from the flags of ``raw`` (the kernel checks ``min_stop``)."""
     if min_stop is not None:
         min_stop = as_real("min_stop", min_stop)
-        if not min_stop >= 0:
-            raise _core.InputError(f"min_stop: must be >= 0 (inf: none), got {min_stop!r}")
-        if min_stop == np.inf:  # none asked for: no temporaries
-            none = np.zeros(0, np.intp)
-            return none, none, none
     return find_stops(t, x, raw["flags"], g.offsets, raw["noise"], min_stop)
 
 

@@ -1,0 +1,522 @@
+//! Stop intervals: where a track stands still, from its STOPPED samples and held positions.
+//!
+//! One track at a time (a stop never crosses tracks), tracks in parallel:
+//!
+//! 1. runs of samples flagged STOPPED and not INVALID; moving runs of at most
+//!    [`MERGE_SAMPLES`] samples between two stopped runs are bridged;
+//! 2. consecutive runs join when every sample between them, and the centre of the shorter run,
+//!    lie within [`HOLD_NOISE`] noise levels of the centre of the longer run (after an abrupt
+//!    halt a spline's speed can ring just above the significance threshold and split a stop);
+//! 3. runs shorter than `min_stop` (default [`MIN_STOP_STEPS`] mean time steps of the track) go;
+//! 4. the ends of each stop are trimmed inwards to samples within [`HOLD_NOISE`] noise levels of
+//!    its centre, and consecutive stops that then touch (at most [`MERGE_SAMPLES`] samples apart)
+//!    or lie at the same place (centres within that distance) merge.
+//!
+//! Unknown noise (NaN) means no joining, no trimming and merging by place only for centres that
+//! coincide. Distances are Euclidean norms folded with `hypot` from 0 (scale-safe: coordinates
+//! near 1e300 do not overflow), the rule of NumPy's `np.hypot.reduce`. A centre is the mean of
+//! the finite rows of its interval, taken as the difference of the running sums over the whole
+//! batch (as NumPy's `cumsum` forms them), so that the results are the same bits as the NumPy
+//! implementation this kernel replaced; the running sums at the track starts are found in one
+//! sequential pass first, so the results do not depend on the number of threads either.
+
+use crate::batch::{check_query_offsets, track_rows};
+use crate::error::{try_collect, try_filled, KernelError, Result};
+use crate::frame::flag;
+use rayon::prelude::*;
+use std::ops::Range;
+
+/// Runs of moving samples at most this long between two stopped runs are bridged; stops at most
+/// this many samples apart (after trimming) merge.
+pub const MERGE_SAMPLES: usize = 2;
+/// Minimum stop duration, in mean time steps of the track, when none is given.
+pub const MIN_STOP_STEPS: f64 = 5.0;
+/// A sample holds a stop's position when it lies within this many noise levels of its centre.
+pub const HOLD_NOISE: f64 = 3.0;
+
+/// Stop intervals of a batch, in kernel row order (tracks contiguous).
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct StopRows {
+    /// Global row of the first sample of each stop.
+    pub first: Vec<usize>,
+    /// Global row of the last sample of each stop.
+    pub last: Vec<usize>,
+    /// Track (position in the batch) of each stop.
+    pub track: Vec<usize>,
+}
+
+impl StopRows {
+    /// Number of stops.
+    pub fn len(&self) -> usize {
+        self.first.len()
+    }
+
+    /// Whether there are no stops.
+    pub fn is_empty(&self) -> bool {
+        self.first.is_empty()
+    }
+}
+
+/// Stop intervals of tracks stored contiguously.
+///
+/// `t` (n), `x` (n × `dim`, row-major), `flags` (n) hold every row, tracks contiguous;
+/// `offsets` (m + 1 entries from 0 to n, non-decreasing: empty tracks allowed) split them;
+/// `noise` (m) is the position noise of each track (NaN: unknown). `min_stop` is the shortest
+/// stop in time units (`None`: [`MIN_STOP_STEPS`] mean time steps of the track; must be ≥ 0;
+/// infinity: no stops, found without any work).
+///
+/// # Examples
+///
+/// ```
+/// use osculate::stops::{find_stops, StopRows};
+/// // 1 s clock, positions (t, 0) m, rows 20..=39 STOPPED (flag 1), row 30 INVALID (flag 16).
+/// let n = 60;
+/// let t: Vec<f64> = (0..n).map(|i| i as f64).collect();
+/// let x: Vec<f64> = t.iter().flat_map(|&v| [v, 0.0]).collect();
+/// let mut flags = vec![0u8; n];
+/// flags[20..40].iter_mut().for_each(|f| *f = 1);
+/// flags[30] = 17;
+/// let found = find_stops(&t, &x, 2, &flags, &[0, n as i64], &[f64::NAN], None).unwrap();
+/// // The INVALID row is a moving gap of one sample: bridged.
+/// assert_eq!(found, StopRows { first: vec![20], last: vec![39], track: vec![0] });
+/// // Shortest stop 30 s: none; infinity: none either.
+/// let short = find_stops(&t, &x, 2, &flags, &[0, n as i64], &[f64::NAN], Some(30.0)).unwrap();
+/// assert!(short.is_empty());
+/// let none = find_stops(&t, &x, 2, &flags, &[0, n as i64], &[f64::NAN], Some(f64::INFINITY));
+/// assert!(none.unwrap().is_empty());
+/// // A negative shortest stop names the argument.
+/// let err = find_stops(&t, &x, 2, &flags, &[0, n as i64], &[f64::NAN], Some(-1.0)).unwrap_err();
+/// assert_eq!(err.to_string(), "min_stop: must be >= 0 (inf: none), got -1.0");
+/// ```
+pub fn find_stops(
+    t: &[f64],
+    x: &[f64],
+    dim: usize,
+    flags: &[u8],
+    offsets: &[i64],
+    noise: &[f64],
+    min_stop: Option<f64>,
+) -> Result<StopRows> {
+    let n = t.len();
+    check_positions(x, dim, n)?;
+    if flags.len() != n {
+        return Err(shape(
+            "flags",
+            format!("expected {n} rows (one per time), got {}", flags.len()),
+        ));
+    }
+    let offsets = batch_offsets(offsets, n)?;
+    let m = offsets.len() - 1;
+    if noise.len() != m {
+        return Err(shape(
+            "noise",
+            format!("expected one value per track ({m}), got {}", noise.len()),
+        ));
+    }
+    if let Some(v) = min_stop {
+        if !(v >= 0.0) {
+            return Err(KernelError::Option {
+                argument: "min_stop",
+                detail: format!("must be >= 0 (inf: none), got {v:?}"),
+            });
+        }
+        if v == f64::INFINITY {
+            return Ok(StopRows::default());
+        }
+    }
+    let data = Data {
+        t,
+        x,
+        dim,
+        flags,
+        noise,
+        min_stop,
+    };
+    let starts = start_sums(x, dim, &offsets)?;
+    let per: Vec<Result<Vec<(usize, usize)>>> = (0..m)
+        .into_par_iter()
+        .map(|k| data.track(k, track_rows(&offsets, k), &starts[k * dim..(k + 1) * dim]))
+        .collect();
+    let mut out = StopRows::default();
+    for (k, stops) in per.into_iter().enumerate() {
+        let stops = stops?;
+        for v in [&mut out.first, &mut out.last, &mut out.track] {
+            v.try_reserve(stops.len())
+                .map_err(|_| KernelError::OutOfMemory {
+                    bytes: stops.len().saturating_mul(8),
+                })?;
+        }
+        for (a, b) in stops {
+            out.first.push(a);
+            out.last.push(b);
+            out.track.push(k);
+        }
+    }
+    Ok(out)
+}
+
+/// Mask of the rows inside the stops (`n` rows).
+///
+/// # Examples
+///
+/// ```
+/// use osculate::stops::{held_mask, StopRows};
+/// let stops = StopRows { first: vec![1, 4], last: vec![2, 4], track: vec![0, 0] };
+/// assert_eq!(held_mask(&stops, 6).unwrap(), [false, true, true, false, true, false]);
+/// ```
+pub fn held_mask(stops: &StopRows, n: usize) -> Result<Vec<bool>> {
+    check_stops(stops, n)?;
+    let mut mask = try_filled(n, false)?;
+    for (&a, &b) in stops.first.iter().zip(&stops.last) {
+        mask[a..=b].fill(true);
+    }
+    Ok(mask)
+}
+
+/// Mean finite position of each stop (stops × `dim`, row-major); NaN for a stop without a
+/// finite row, inf or NaN where the running sums overflow.
+///
+/// The means are differences of the running sums over all rows (the centres [`find_stops`]
+/// uses, and the same bits as NumPy's `cumsum` differences).
+///
+/// # Examples
+///
+/// ```
+/// use osculate::stops::{centres, StopRows};
+/// // Rows (0, 0), (2, 4), (NaN, 1), (4, 8): the stop over rows 1..=3 skips the NaN row.
+/// let x = [0.0, 0.0, 2.0, 4.0, f64::NAN, 1.0, 4.0, 8.0];
+/// let stops = StopRows { first: vec![1], last: vec![3], track: vec![0] };
+/// assert_eq!(centres(&x, 2, &stops).unwrap(), [3.0, 6.0]);
+/// ```
+pub fn centres(x: &[f64], dim: usize, stops: &StopRows) -> Result<Vec<f64>> {
+    if dim == 0 || x.len() % dim != 0 {
+        return Err(shape(
+            "positions",
+            format!("expected rows of {dim} coordinates, got {} values", x.len()),
+        ));
+    }
+    let n = x.len() / dim;
+    check_stops(stops, n)?;
+    let s = stops.len();
+    // Boundaries (row, slot): slot 2i is the start of stop i, 2i + 1 the row after its end.
+    let mut at: Vec<(usize, usize)> = try_collect(
+        2 * s,
+        (0..s).flat_map(|i| [(stops.first[i], 2 * i), (stops.last[i] + 1, 2 * i + 1)]),
+    )?;
+    at.sort_unstable();
+    let mut sums = try_filled(2 * s * dim, 0.0)?;
+    let mut counts = try_filled(2 * s, 0usize)?;
+    let mut run = Running::new(x, dim, 0, &try_filled(dim, -0.0)?)?;
+    for (row, slot) in at {
+        run.advance(row);
+        counts[slot] = run.at(&mut sums[slot * dim..(slot + 1) * dim]);
+    }
+    let mut out = try_filled(s * dim, 0.0)?;
+    for i in 0..s {
+        let cnt = (counts[2 * i + 1] - counts[2 * i]) as f64;
+        for j in 0..dim {
+            out[i * dim + j] = (sums[(2 * i + 1) * dim + j] - sums[2 * i * dim + j]) / cnt;
+        }
+    }
+    Ok(out)
+}
+
+fn shape(argument: &'static str, detail: String) -> KernelError {
+    KernelError::Shape { argument, detail }
+}
+
+fn check_positions(x: &[f64], dim: usize, n: usize) -> Result<()> {
+    if dim == 0 || n.checked_mul(dim) != Some(x.len()) {
+        return Err(shape(
+            "positions",
+            format!(
+                "expected {n} rows (one per time) of dim {dim} >= 1, got {} values",
+                x.len()
+            ),
+        ));
+    }
+    Ok(())
+}
+
+/// Offsets of `n` rows; tracks may be empty.
+fn batch_offsets(offsets: &[i64], n: usize) -> Result<Vec<usize>> {
+    if offsets.is_empty() {
+        return Err(KernelError::Offsets {
+            detail: "need at least one entry".into(),
+        });
+    }
+    check_query_offsets(offsets, n, offsets.len() - 1)
+}
+
+fn check_stops(stops: &StopRows, n: usize) -> Result<()> {
+    let s = stops.first.len();
+    if stops.last.len() != s || stops.track.len() != s {
+        return Err(shape(
+            "stops",
+            format!(
+                "first, last and track differ in length ({s}, {}, {})",
+                stops.last.len(),
+                stops.track.len()
+            ),
+        ));
+    }
+    if let Some(i) = (0..s).find(|&i| !(stops.first[i] <= stops.last[i] && stops.last[i] < n)) {
+        return Err(shape(
+            "stops",
+            format!(
+                "stop {i} runs over rows {}..={}, not inside 0..{n}",
+                stops.first[i], stops.last[i]
+            ),
+        ));
+    }
+    Ok(())
+}
+
+/// Euclidean norm of `a − b`, folded with `hypot` from 0 (NumPy's `np.hypot.reduce`).
+#[inline]
+fn distance(a: &[f64], b: &[f64]) -> f64 {
+    a.iter()
+        .zip(b)
+        .fold(0.0_f64, |acc, (&p, &q)| acc.hypot(p - q))
+}
+
+/// Running sums of the finite rows of `x` (non-finite rows add 0), as NumPy's `cumsum` of the
+/// rows forms them, with the count of finite rows.
+struct Running<'a> {
+    x: &'a [f64],
+    dim: usize,
+    /// Rows summed so far: `0..row`.
+    row: usize,
+    sum: Vec<f64>,
+    count: usize,
+}
+
+impl<'a> Running<'a> {
+    /// Sums `start` over rows `0..row` (start from −0, the additive identity, at row 0).
+    fn new(x: &'a [f64], dim: usize, row: usize, start: &[f64]) -> Result<Self> {
+        let mut sum = try_filled(dim, 0.0)?;
+        sum.copy_from_slice(start);
+        Ok(Running {
+            x,
+            dim,
+            row,
+            sum,
+            count: 0,
+        })
+    }
+
+    /// Add the rows up to (not including) `row` (not before the rows already summed).
+    #[inline]
+    fn advance(&mut self, row: usize) {
+        let d = self.dim;
+        for p in self.x[self.row * d..row * d].chunks_exact(d) {
+            if p.iter().all(|v| v.is_finite()) {
+                self.count += 1;
+                for (s, &v) in self.sum.iter_mut().zip(p) {
+                    *s += v;
+                }
+            } else {
+                for s in self.sum.iter_mut() {
+                    *s += 0.0;
+                }
+            }
+        }
+        self.row = row;
+    }
+
+    /// Write the sums over rows `0..row` into `out` and return the count (a row-local count:
+    /// only differences of counts are used).
+    #[inline]
+    fn at(&self, out: &mut [f64]) -> usize {
+        if self.row == 0 {
+            out.fill(0.0); // NumPy's sums start with a row of +0
+        } else {
+            out.copy_from_slice(&self.sum);
+        }
+        self.count
+    }
+}
+
+/// The running sums at the first row of every track (m × dim): one sequential pass.
+fn start_sums(x: &[f64], dim: usize, offsets: &[usize]) -> Result<Vec<f64>> {
+    let m = offsets.len() - 1;
+    let mut out = try_filled(m * dim, 0.0)?;
+    let mut run = Running::new(x, dim, 0, &try_filled(dim, -0.0)?)?;
+    for k in 0..m {
+        run.advance(offsets[k]);
+        out[k * dim..(k + 1) * dim].copy_from_slice(&run.sum);
+    }
+    Ok(out)
+}
+
+/// A run of stopped samples: rows `first..=last`.
+struct Piece {
+    first: usize,
+    last: usize,
+}
+
+/// Inputs of one batch.
+struct Data<'a> {
+    t: &'a [f64],
+    x: &'a [f64],
+    dim: usize,
+    flags: &'a [u8],
+    noise: &'a [f64],
+    min_stop: Option<f64>,
+}
+
+/// A stop candidate: runs `runs.start..runs.end` of a track.
+#[derive(Clone)]
+struct Group {
+    runs: Range<usize>,
+}
+
+/// Push fallibly (amortized growth).
+fn push<T>(v: &mut Vec<T>, item: T) -> Result<()> {
+    v.try_reserve(1).map_err(|_| KernelError::OutOfMemory {
+        bytes: v.len().saturating_mul(2 * std::mem::size_of::<T>()),
+    })?;
+    v.push(item);
+    Ok(())
+}
+
+impl Data<'_> {
+    fn row(&self, i: usize) -> &[f64] {
+        &self.x[i * self.dim..(i + 1) * self.dim]
+    }
+
+    /// Runs of stopped samples of rows `rows`, moving gaps of at most [`MERGE_SAMPLES`] bridged.
+    fn runs(&self, rows: Range<usize>) -> Result<Vec<Piece>> {
+        let mut runs: Vec<Piece> = Vec::new();
+        let mut i = rows.start;
+        while i < rows.end {
+            let stopped = |i: usize| {
+                let f = self.flags[i];
+                f & flag::STOPPED != 0 && f & flag::INVALID == 0
+            };
+            if !stopped(i) {
+                i += 1;
+                continue;
+            }
+            let first = i;
+            while i < rows.end && stopped(i) {
+                i += 1;
+            }
+            match runs.last_mut() {
+                Some(prev) if first - prev.last - 1 <= MERGE_SAMPLES => prev.last = i - 1,
+                _ => push(&mut runs, Piece { first, last: i - 1 })?,
+            }
+        }
+        Ok(runs)
+    }
+
+    /// Stops of track `k` (rows `rows`, running sums `start` at its first row).
+    fn track(&self, k: usize, rows: Range<usize>, start: &[f64]) -> Result<Vec<(usize, usize)>> {
+        let runs = self.runs(rows.clone())?;
+        if runs.is_empty() {
+            return Ok(Vec::new());
+        }
+        let d = self.dim;
+        let r = runs.len();
+        // Running sums and finite counts at each run's first row (lo) and after its last (hi).
+        let mut lo = try_filled(r * d, 0.0)?;
+        let mut hi = try_filled(r * d, 0.0)?;
+        let mut lo_n = try_filled(r, 0usize)?;
+        let mut hi_n = try_filled(r, 0usize)?;
+        let mut run = Running::new(self.x, d, rows.start, start)?;
+        for (j, p) in runs.iter().enumerate() {
+            run.advance(p.first);
+            lo_n[j] = run.at(&mut lo[j * d..(j + 1) * d]);
+            run.advance(p.last + 1);
+            hi_n[j] = run.at(&mut hi[j * d..(j + 1) * d]);
+        }
+        // Mean finite position of runs a..=b.
+        let centre = |a: usize, b: usize, out: &mut [f64]| {
+            let cnt = (hi_n[b] - lo_n[a]) as f64;
+            for j in 0..d {
+                out[j] = (hi[b * d + j] - lo[a * d + j]) / cnt;
+            }
+        };
+        let noise = HOLD_NOISE * self.noise[k];
+
+        // Join consecutive runs that hold one position.
+        let mut c = try_filled(r * d, 0.0)?;
+        for j in 0..r {
+            centre(j, j, &mut c[j * d..(j + 1) * d]);
+        }
+        let cen = |j: usize| &c[j * d..(j + 1) * d];
+        let mut groups: Vec<Group> = Vec::new();
+        let mut g0 = 0;
+        for j in 1..r {
+            let (a, b) = (&runs[j - 1], &runs[j]);
+            let reference = if b.last - b.first > a.last - a.first {
+                j
+            } else {
+                j - 1
+            };
+            let far =
+                (a.last + 1..b.first).any(|i| !(distance(self.row(i), cen(reference)) <= noise));
+            if far || !(distance(cen(j), cen(j - 1)) <= noise) {
+                push(&mut groups, Group { runs: g0..j })?;
+                g0 = j;
+            }
+        }
+        push(&mut groups, Group { runs: g0..r })?;
+        drop(c);
+
+        // Long enough.
+        let t = self.t;
+        let shortest = match self.min_stop {
+            Some(v) => v,
+            None if rows.len() > 1 => {
+                let step = (t[rows.end - 1] - t[rows.start]) / ((rows.len() - 1) as f64);
+                MIN_STOP_STEPS * step
+            }
+            None => f64::NAN,
+        };
+        let ends = |g: &Group| (runs[g.runs.start].first, runs[g.runs.end - 1].last);
+        groups.retain(|g| {
+            let (a, b) = ends(g);
+            t[b] - t[a] >= shortest
+        });
+
+        // Trim the ends to samples that hold the centre.
+        let radius = if noise.is_finite() {
+            noise
+        } else {
+            f64::INFINITY
+        };
+        let mut kept: Vec<(usize, usize)> = Vec::new();
+        let mut kc: Vec<f64> = Vec::new();
+        let mut cg = try_filled(d, 0.0)?;
+        for g in &groups {
+            centre(g.runs.start, g.runs.end - 1, &mut cg);
+            let holds = |i: &usize| distance(self.row(*i), &cg) <= radius;
+            let (a, b) = ends(g);
+            let Some(na) = (a..=b).find(holds) else {
+                continue;
+            };
+            let nb = (a..=b).rev().find(holds).unwrap_or(na);
+            push(&mut kept, (na, nb))?;
+            kc.try_reserve(d).map_err(|_| KernelError::OutOfMemory {
+                bytes: kc.len().saturating_mul(16),
+            })?;
+            kc.extend_from_slice(&cg);
+        }
+
+        // Merge stops that touch or lie at one place.
+        let near = if noise.is_finite() { noise } else { 0.0 };
+        let mut out: Vec<(usize, usize)> = Vec::new();
+        for (j, &(a, b)) in kept.iter().enumerate() {
+            if let Some(prev) = out.last_mut() {
+                let place = distance(&kc[j * d..(j + 1) * d], &kc[(j - 1) * d..j * d]);
+                if a <= prev.1 + MERGE_SAMPLES + 1 || place <= near {
+                    prev.1 = prev.1.max(b);
+                    continue;
+                }
+            }
+            push(&mut out, (a, b))?;
+        }
+        Ok(out)
+    }
+}
