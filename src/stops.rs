@@ -114,7 +114,7 @@ pub fn find_stops(
         ));
     }
     if let Some(v) = min_stop {
-        if !(v >= 0.0) {
+        if v.is_nan() || v < 0.0 {
             return Err(KernelError::Option {
                 argument: "min_stop",
                 detail: format!("must be >= 0 (inf: none), got {v:?}"),
@@ -278,6 +278,12 @@ fn distance(a: &[f64], b: &[f64]) -> f64 {
     a.iter()
         .zip(b)
         .fold(0.0_f64, |acc, (&p, &q)| acc.hypot(p - q))
+}
+
+/// `d <= r`: false when either is NaN.
+#[inline]
+fn within(d: f64, r: f64) -> bool {
+    d <= r
 }
 
 /// Running sums of the finite rows of `x` (non-finite rows add 0), as NumPy's `cumsum` of the
@@ -454,9 +460,9 @@ impl Data<'_> {
             } else {
                 j - 1
             };
-            let far =
-                (a.last + 1..b.first).any(|i| !(distance(self.row(i), cen(reference)) <= noise));
-            if far || !(distance(cen(j), cen(j - 1)) <= noise) {
+            let far = (a.last + 1..b.first)
+                .any(|i| !within(distance(self.row(i), cen(reference)), noise));
+            if far || !within(distance(cen(j), cen(j - 1)), noise) {
                 push(&mut groups, Group { runs: g0..j })?;
                 g0 = j;
             }
@@ -518,5 +524,177 @@ impl Data<'_> {
             push(&mut out, (a, b))?;
         }
         Ok(out)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// A 1 s clock over `n` rows at positions (t, 0), STOPPED at `stopped`.
+    fn track(n: usize, stopped: impl IntoIterator<Item = usize>) -> (Vec<f64>, Vec<f64>, Vec<u8>) {
+        let t: Vec<f64> = (0..n).map(|i| i as f64).collect();
+        let x = t.iter().flat_map(|&v| [v, 0.0]).collect();
+        let mut flags = vec![0u8; n];
+        stopped.into_iter().for_each(|i| flags[i] = flag::STOPPED);
+        (t, x, flags)
+    }
+
+    fn found(t: &[f64], x: &[f64], flags: &[u8], noise: f64) -> Vec<(usize, usize)> {
+        let s = find_stops(t, x, 2, flags, &[0, t.len() as i64], &[noise], None).unwrap();
+        s.first.into_iter().zip(s.last).collect()
+    }
+
+    // Expected rows below follow from the rules in the module notes and the construction.
+
+    #[test]
+    fn one_stop_in_the_middle() {
+        let (t, x, f) = track(100, 20..40);
+        assert_eq!(found(&t, &x, &f, f64::NAN), [(20, 39)]);
+    }
+
+    #[test]
+    fn moving_gaps_of_two_samples_are_bridged_three_are_not() {
+        let (t, x, f) = track(100, (20..30).chain(32..46));
+        assert_eq!(found(&t, &x, &f, f64::NAN), [(20, 45)]);
+        let (t, x, f) = track(100, (20..30).chain(33..46));
+        assert_eq!(found(&t, &x, &f, f64::NAN), [(20, 29), (33, 45)]);
+    }
+
+    #[test]
+    fn too_short_runs_are_dropped() {
+        // Mean step 1 s: 6 samples span 5 s = five steps and stay, 5 samples span 4 s and go.
+        let (t, x, f) = track(100, (20..26).chain(50..55));
+        assert_eq!(found(&t, &x, &f, f64::NAN), [(20, 25)]);
+    }
+
+    #[test]
+    fn ends_are_trimmed_and_stops_at_one_place_merge() {
+        // Noise 1 cm, radius 3 cm. Rows 20..=39 stand at (3, 4) except rows 20 and 21, 5 cm
+        // short in x: centre 3 − 0.1/20 = 2.995, rows 20, 21 lie 4.5 cm from it (trimmed).
+        // Rows 60..=79 stand at (50, 0).
+        let (t, mut x, f) = track(100, (20..40).chain(60..80));
+        for i in 20..40 {
+            x[2 * i..2 * i + 2].copy_from_slice(&[if i < 22 { 2.95 } else { 3.0 }, 4.0]);
+        }
+        for i in 60..80 {
+            x[2 * i..2 * i + 2].copy_from_slice(&[50.0, 0.0]);
+        }
+        assert_eq!(found(&t, &x, &f, 0.01), [(22, 39), (60, 79)]);
+        assert_eq!(found(&t, &x, &f, f64::NAN), [(20, 39), (60, 79)]); // unknown: no trimming
+                                                                       // Rows 60..=79 back at (3, 4): the two stops lie at one place and merge.
+        for i in 60..80 {
+            x[2 * i..2 * i + 2].copy_from_slice(&[3.0, 4.0]);
+        }
+        assert_eq!(found(&t, &x, &f, 0.01), [(22, 79)]);
+    }
+
+    #[test]
+    fn runs_that_hold_one_position_join() {
+        // Runs 20..=23 and 27..=30 (3 s each, shorter than five steps) with rows 24..=26 moving
+        // (not bridged), every row at (3, 4): with noise 1 cm they join into one stop of 10 s;
+        // with unknown noise they do not join and both are too short.
+        let (t, mut x, f) = track(100, (20..24).chain(27..31));
+        for i in 20..31 {
+            x[2 * i..2 * i + 2].copy_from_slice(&[3.0, 4.0]);
+        }
+        assert_eq!(found(&t, &x, &f, 0.01), [(20, 30)]);
+        assert_eq!(found(&t, &x, &f, f64::NAN), []);
+        // Row 25 at (3, 4.1), 10 cm away: no join.
+        x[51] = 4.1;
+        assert_eq!(found(&t, &x, &f, 0.01), []);
+    }
+
+    #[test]
+    fn tracks_apart_invalid_rows_not_stopped_and_edge_cases() {
+        let (mut t, x, mut f) = track(100, 40..60);
+        t[50..].iter_mut().for_each(|v| *v -= 50.0);
+        let s = find_stops(&t, &x, 2, &f, &[0, 50, 50, 100], &[f64::NAN; 3], None).unwrap();
+        assert_eq!(
+            (s.first, s.last, s.track),
+            (vec![40, 50], vec![49, 59], vec![0, 2])
+        );
+        f[45..48].iter_mut().for_each(|v| *v |= flag::INVALID);
+        let s = find_stops(&t, &x, 2, &f, &[0, 50, 50, 100], &[f64::NAN; 3], Some(0.0)).unwrap();
+        assert_eq!((s.first, s.last), (vec![40, 48, 50], vec![44, 49, 59]));
+        // No rows, no tracks.
+        assert!(find_stops(&[], &[], 3, &[], &[0], &[], None)
+            .unwrap()
+            .is_empty());
+    }
+
+    #[test]
+    fn bad_arguments_are_named() {
+        let (t, x, f) = track(10, 0..10);
+        let arg = |o: &[i64], noise: &[f64], min: Option<f64>| {
+            find_stops(&t, &x, 2, &f, o, noise, min)
+                .unwrap_err()
+                .argument()
+        };
+        assert_eq!(arg(&[0, 10], &[0.1], Some(f64::NAN)), "min_stop");
+        assert_eq!(arg(&[0, 10], &[0.1], Some(-0.5)), "min_stop");
+        assert_eq!(arg(&[0, 9], &[0.1], None), "offsets");
+        assert_eq!(arg(&[0, 10], &[0.1, 0.2], None), "noise");
+        assert!(find_stops(&t, &x, 3, &f, &[0, 10], &[0.1], None).is_err());
+        let bad = StopRows {
+            first: vec![3],
+            last: vec![10],
+            track: vec![0],
+        };
+        assert_eq!(held_mask(&bad, 10).unwrap_err().argument(), "stops");
+    }
+
+    #[test]
+    fn distances_are_scale_safe() {
+        // |(1e300, 1e300)| = √2 · 1e300 (closed form; a sum of squares would overflow).
+        let d = distance(&[1e300, 1e300], &[0.0, 0.0]);
+        assert!((d / 1e300 - 2f64.sqrt()).abs() < 1e-15);
+        assert_eq!(distance(&[-3.0], &[0.0]), 3.0); // folded from 0, as np.hypot.reduce
+    }
+
+    #[test]
+    fn the_same_on_any_number_of_threads() {
+        // A deterministic batch of 300 tracks with random flags and positions (xorshift).
+        let mut state = 0x9e37_79b9_7f4a_7c15_u64;
+        let mut next = || {
+            state ^= state << 13;
+            state ^= state >> 7;
+            state ^= state << 17;
+            (state >> 11) as f64 / (1u64 << 53) as f64
+        };
+        let mut offsets = vec![0i64];
+        let (mut t, mut x, mut f) = (Vec::new(), Vec::new(), Vec::new());
+        for _ in 0..300 {
+            let len = (next() * 200.0) as usize;
+            for i in 0..len {
+                t.push(i as f64 + 0.5 * next());
+                x.extend([(i / 10) as f64 + 0.01 * next(), 0.02 * next()]);
+                f.push(u8::from(next() < 0.7) | (u8::from(next() < 0.02) * flag::INVALID));
+            }
+            offsets.push(t.len() as i64);
+        }
+        let noise: Vec<f64> = (0..300).map(|k| [0.01, f64::NAN, 0.0][k % 3]).collect();
+        let run = |threads: usize| {
+            let pool = rayon::ThreadPoolBuilder::new()
+                .num_threads(threads)
+                .build()
+                .unwrap();
+            pool.install(|| find_stops(&t, &x, 2, &f, &offsets, &noise, None).unwrap())
+        };
+        let one = run(1);
+        assert!(one.len() > 100);
+        assert_eq!(one, run(3));
+    }
+
+    #[test]
+    fn masks_and_centres() {
+        let stops = StopRows {
+            first: vec![0, 3],
+            last: vec![1, 3],
+            track: vec![0, 0],
+        };
+        assert_eq!(held_mask(&stops, 4).unwrap(), [true, true, false, true]);
+        let x = [1.0, 2.0, 3.0, f64::INFINITY, 5.0, 6.0, 7.0, 8.0];
+        assert_eq!(centres(&x, 2, &stops).unwrap(), [1.0, 2.0, 7.0, 8.0]);
     }
 }
