@@ -132,10 +132,24 @@ pub fn find_stops(
         noise,
         min_stop,
     };
-    let starts = start_sums(x, dim, &offsets)?;
-    let per: Vec<Result<Vec<(usize, usize)>>> = (0..m)
+    // Runs of every track (in parallel), the running sums at their ends (one sequential pass,
+    // up to the last run of the batch), then the rest of every track (in parallel).
+    let runs: Vec<Result<Runs>> = (0..m)
         .into_par_iter()
-        .map(|k| data.track(k, track_rows(&offsets, k), &starts[k * dim..(k + 1) * dim]))
+        .map(|k| data.runs(track_rows(&offsets, k)))
+        .collect();
+    let mut runs: Vec<Runs> = runs.into_iter().collect::<Result<_>>()?;
+    if runs.iter().all(|r| r.pieces.is_empty()) {
+        return Ok(StopRows::default());
+    }
+    let mut sums = Running::new(x, dim)?;
+    for r in runs.iter_mut() {
+        r.sum_ends(&mut sums);
+    }
+    let per: Vec<Result<Vec<(usize, usize)>>> = runs
+        .into_par_iter()
+        .enumerate()
+        .map(|(k, r)| data.track(k, track_rows(&offsets, k), &r))
         .collect();
     let mut out = StopRows::default();
     for (k, stops) in per.into_iter().enumerate() {
@@ -206,7 +220,7 @@ pub fn centres(x: &[f64], dim: usize, stops: &StopRows) -> Result<Vec<f64>> {
     at.sort_unstable();
     let mut sums = try_filled(2 * s * dim, 0.0)?;
     let mut counts = try_filled(2 * s, 0usize)?;
-    let mut run = Running::new(x, dim, 0, &try_filled(dim, -0.0)?)?;
+    let mut run = Running::new(x, dim)?;
     for (row, slot) in at {
         run.advance(row);
         counts[slot] = run.at(&mut sums[slot * dim..(slot + 1) * dim]);
@@ -272,12 +286,14 @@ fn check_stops(stops: &StopRows, n: usize) -> Result<()> {
     Ok(())
 }
 
-/// Euclidean norm of `a − b`, folded with `hypot` from 0 (NumPy's `np.hypot.reduce`).
+/// Euclidean norm of `a − b`, folded with `hypot` from 0 (NumPy's `np.hypot.reduce`; the first
+/// step, hypot(0, v) = |v|, is exact and taken as such).
 #[inline]
 fn distance(a: &[f64], b: &[f64]) -> f64 {
-    a.iter()
-        .zip(b)
-        .fold(0.0_f64, |acc, (&p, &q)| acc.hypot(p - q))
+    a[1..]
+        .iter()
+        .zip(&b[1..])
+        .fold((a[0] - b[0]).abs(), |acc, (&p, &q)| acc.hypot(p - q))
 }
 
 /// `d <= r`: false when either is NaN.
@@ -298,15 +314,13 @@ struct Running<'a> {
 }
 
 impl<'a> Running<'a> {
-    /// Sums `start` over rows `0..row` (start from −0, the additive identity, at row 0).
-    fn new(x: &'a [f64], dim: usize, row: usize, start: &[f64]) -> Result<Self> {
-        let mut sum = try_filled(dim, 0.0)?;
-        sum.copy_from_slice(start);
+    /// No rows summed yet (the sums start from −0, the additive identity).
+    fn new(x: &'a [f64], dim: usize) -> Result<Self> {
         Ok(Running {
             x,
             dim,
-            row,
-            sum,
+            row: 0,
+            sum: try_filled(dim, -0.0)?,
             count: 0,
         })
     }
@@ -315,15 +329,17 @@ impl<'a> Running<'a> {
     #[inline]
     fn advance(&mut self, row: usize) {
         let d = self.dim;
-        for p in self.x[self.row * d..row * d].chunks_exact(d) {
-            if p.iter().all(|v| v.is_finite()) {
-                self.count += 1;
-                for (s, &v) in self.sum.iter_mut().zip(p) {
-                    *s += v;
-                }
-            } else {
-                for s in self.sum.iter_mut() {
-                    *s += 0.0;
+        let rows = &self.x[self.row * d..row * d];
+        match d {
+            2 => add_rows::<2>(&mut self.sum, &mut self.count, rows),
+            3 => add_rows::<3>(&mut self.sum, &mut self.count, rows),
+            _ => {
+                for p in rows.chunks_exact(d) {
+                    let finite = p.iter().all(|v| v.is_finite());
+                    self.count += usize::from(finite);
+                    for (s, &v) in self.sum.iter_mut().zip(p) {
+                        *s += if finite { v } else { 0.0 };
+                    }
                 }
             }
         }
@@ -343,22 +359,60 @@ impl<'a> Running<'a> {
     }
 }
 
-/// The running sums at the first row of every track (m × dim): one sequential pass.
-fn start_sums(x: &[f64], dim: usize, offsets: &[usize]) -> Result<Vec<f64>> {
-    let m = offsets.len() - 1;
-    let mut out = try_filled(m * dim, 0.0)?;
-    let mut run = Running::new(x, dim, 0, &try_filled(dim, -0.0)?)?;
-    for k in 0..m {
-        run.advance(offsets[k]);
-        out[k * dim..(k + 1) * dim].copy_from_slice(&run.sum);
+/// [`Running::advance`] for `D` coordinates: the same additions in the same order, unrolled.
+#[inline]
+fn add_rows<const D: usize>(sum: &mut [f64], count: &mut usize, rows: &[f64]) {
+    let mut s = [0.0; D];
+    s.copy_from_slice(sum);
+    let mut c = *count;
+    for p in rows.chunks_exact(D) {
+        let finite = p.iter().all(|v| v.is_finite());
+        c += usize::from(finite);
+        for j in 0..D {
+            // A non-finite row adds +0, as NumPy adds the 0 that replaced it.
+            s[j] += if finite { p[j] } else { 0.0 };
+        }
     }
-    Ok(out)
+    sum.copy_from_slice(&s);
+    *count = c;
 }
 
 /// A run of stopped samples: rows `first..=last`.
 struct Piece {
     first: usize,
     last: usize,
+}
+
+/// The runs of one track with the running sums and finite counts at each run's first row (`lo`)
+/// and after its last (`hi`), `dim` sums per run.
+struct Runs {
+    pieces: Vec<Piece>,
+    lo: Vec<f64>,
+    hi: Vec<f64>,
+    lo_n: Vec<usize>,
+    hi_n: Vec<usize>,
+}
+
+impl Runs {
+    /// Record the sums at the ends of the runs (`sums` not past the first run yet).
+    fn sum_ends(&mut self, sums: &mut Running) {
+        let d = sums.dim;
+        for (j, p) in self.pieces.iter().enumerate() {
+            sums.advance(p.first);
+            self.lo_n[j] = sums.at(&mut self.lo[j * d..(j + 1) * d]);
+            sums.advance(p.last + 1);
+            self.hi_n[j] = sums.at(&mut self.hi[j * d..(j + 1) * d]);
+        }
+    }
+
+    /// Mean finite position of runs `a..=b` into `out`.
+    fn centre(&self, a: usize, b: usize, out: &mut [f64]) {
+        let d = out.len();
+        let cnt = (self.hi_n[b] - self.lo_n[a]) as f64;
+        for j in 0..d {
+            out[j] = (self.hi[b * d + j] - self.lo[a * d + j]) / cnt;
+        }
+    }
 }
 
 /// Inputs of one batch.
@@ -392,57 +446,42 @@ impl Data<'_> {
     }
 
     /// Runs of stopped samples of rows `rows`, moving gaps of at most [`MERGE_SAMPLES`] bridged.
-    fn runs(&self, rows: Range<usize>) -> Result<Vec<Piece>> {
+    fn runs(&self, rows: Range<usize>) -> Result<Runs> {
+        let f = &self.flags[rows.clone()];
+        let stopped = |v: &u8| v & (flag::STOPPED | flag::INVALID) == flag::STOPPED;
         let mut runs: Vec<Piece> = Vec::new();
-        let mut i = rows.start;
-        while i < rows.end {
-            let stopped = |i: usize| {
-                let f = self.flags[i];
-                f & flag::STOPPED != 0 && f & flag::INVALID == 0
-            };
-            if !stopped(i) {
-                i += 1;
-                continue;
-            }
-            let first = i;
-            while i < rows.end && stopped(i) {
-                i += 1;
-            }
+        let mut i = 0;
+        while let Some(p) = f[i..].iter().position(stopped) {
+            let first = i + p;
+            i = f[first..]
+                .iter()
+                .position(|v| !stopped(v))
+                .map_or(f.len(), |q| first + q);
+            let (first, last) = (rows.start + first, rows.start + i - 1);
             match runs.last_mut() {
-                Some(prev) if first - prev.last - 1 <= MERGE_SAMPLES => prev.last = i - 1,
-                _ => push(&mut runs, Piece { first, last: i - 1 })?,
+                Some(prev) if first - prev.last - 1 <= MERGE_SAMPLES => prev.last = last,
+                _ => push(&mut runs, Piece { first, last })?,
             }
         }
-        Ok(runs)
+        let (r, d) = (runs.len(), self.dim);
+        Ok(Runs {
+            pieces: runs,
+            lo: try_filled(r * d, 0.0)?,
+            hi: try_filled(r * d, 0.0)?,
+            lo_n: try_filled(r, 0)?,
+            hi_n: try_filled(r, 0)?,
+        })
     }
 
-    /// Stops of track `k` (rows `rows`, running sums `start` at its first row).
-    fn track(&self, k: usize, rows: Range<usize>, start: &[f64]) -> Result<Vec<(usize, usize)>> {
-        let runs = self.runs(rows.clone())?;
+    /// Stops of track `k` (rows `rows`) from its runs and their sums.
+    fn track(&self, k: usize, rows: Range<usize>, sums: &Runs) -> Result<Vec<(usize, usize)>> {
+        let runs = &sums.pieces;
         if runs.is_empty() {
             return Ok(Vec::new());
         }
         let d = self.dim;
         let r = runs.len();
-        // Running sums and finite counts at each run's first row (lo) and after its last (hi).
-        let mut lo = try_filled(r * d, 0.0)?;
-        let mut hi = try_filled(r * d, 0.0)?;
-        let mut lo_n = try_filled(r, 0usize)?;
-        let mut hi_n = try_filled(r, 0usize)?;
-        let mut run = Running::new(self.x, d, rows.start, start)?;
-        for (j, p) in runs.iter().enumerate() {
-            run.advance(p.first);
-            lo_n[j] = run.at(&mut lo[j * d..(j + 1) * d]);
-            run.advance(p.last + 1);
-            hi_n[j] = run.at(&mut hi[j * d..(j + 1) * d]);
-        }
-        // Mean finite position of runs a..=b.
-        let centre = |a: usize, b: usize, out: &mut [f64]| {
-            let cnt = (hi_n[b] - lo_n[a]) as f64;
-            for j in 0..d {
-                out[j] = (hi[b * d + j] - lo[a * d + j]) / cnt;
-            }
-        };
+        let centre = |a: usize, b: usize, out: &mut [f64]| sums.centre(a, b, out);
         let noise = HOLD_NOISE * self.noise[k];
 
         // Join consecutive runs that hold one position.
