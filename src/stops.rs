@@ -12,13 +12,12 @@
 //!    its centre, and consecutive stops that then touch (at most [`MERGE_SAMPLES`] samples apart)
 //!    or lie at the same place (centres within that distance) merge.
 //!
-//! Unknown noise (NaN) means no joining, no trimming and merging by place only for centres that
-//! coincide. Distances are Euclidean norms folded with `hypot` from 0 (scale-safe: coordinates
-//! near 1e300 do not overflow), the rule of NumPy's `np.hypot.reduce`. A centre is the mean of
-//! the finite rows of its interval, taken as the difference of the running sums over the whole
-//! batch (as NumPy's `cumsum` forms them), so that the results are the same bits as the NumPy
-//! implementation this kernel replaced; the running sums at the track starts are found in one
-//! sequential pass first, so the results do not depend on the number of threads either.
+//! Unknown noise (NaN): no joining, no trimming, merging by place only where centres coincide.
+//! Distances are Euclidean norms folded with `hypot` from 0 as NumPy's `np.hypot.reduce` does
+//! (scale-safe near 1e300). A centre is the mean of the finite rows of its interval, taken as a
+//! difference of running sums over the whole batch (as NumPy's `cumsum` forms them): the results
+//! are the same bits as the NumPy implementation this kernel replaced. A sequential pass between
+//! the two parallel ones takes the sums at the run ends: the same bits on any number of threads.
 
 use crate::batch::{check_query_offsets, track_rows};
 use crate::error::{try_collect, try_filled, KernelError, Result};
@@ -99,20 +98,10 @@ pub fn find_stops(
 ) -> Result<StopRows> {
     let n = t.len();
     check_positions(x, dim, n)?;
-    if flags.len() != n {
-        return Err(shape(
-            "flags",
-            format!("expected {n} rows (one per time), got {}", flags.len()),
-        ));
-    }
+    check_len("flags", flags.len(), n, "rows (one per time)")?;
     let offsets = batch_offsets(offsets, n)?;
     let m = offsets.len() - 1;
-    if noise.len() != m {
-        return Err(shape(
-            "noise",
-            format!("expected one value per track ({m}), got {}", noise.len()),
-        ));
-    }
+    check_len("noise", noise.len(), m, "values (one per track)")?;
     if let Some(v) = min_stop {
         if v.is_nan() || v < 0.0 {
             return Err(KernelError::Option {
@@ -151,22 +140,14 @@ pub fn find_stops(
         .enumerate()
         .map(|(k, r)| data.track(k, track_rows(&offsets, k), &r))
         .collect();
-    let mut out = StopRows::default();
-    for (k, stops) in per.into_iter().enumerate() {
-        let stops = stops?;
-        for v in [&mut out.first, &mut out.last, &mut out.track] {
-            v.try_reserve(stops.len())
-                .map_err(|_| KernelError::OutOfMemory {
-                    bytes: stops.len().saturating_mul(8),
-                })?;
-        }
-        for (a, b) in stops {
-            out.first.push(a);
-            out.last.push(b);
-            out.track.push(k);
-        }
-    }
-    Ok(out)
+    let per: Vec<Vec<(usize, usize)>> = per.into_iter().collect::<Result<_>>()?;
+    let total = per.iter().map(Vec::len).sum();
+    let all = || (per.iter().enumerate()).flat_map(|(k, v)| v.iter().map(move |&(a, b)| (a, b, k)));
+    Ok(StopRows {
+        first: try_collect(total, all().map(|s| s.0))?,
+        last: try_collect(total, all().map(|s| s.1))?,
+        track: try_collect(total, all().map(|s| s.2))?,
+    })
 }
 
 /// Mask of the rows inside the stops (`n` rows).
@@ -239,6 +220,16 @@ fn shape(argument: &'static str, detail: String) -> KernelError {
     KernelError::Shape { argument, detail }
 }
 
+fn check_len(argument: &'static str, have: usize, want: usize, what: &str) -> Result<()> {
+    match have == want {
+        true => Ok(()),
+        false => Err(shape(
+            argument,
+            format!("expected {want} {what}, got {have}"),
+        )),
+    }
+}
+
 fn check_positions(x: &[f64], dim: usize, n: usize) -> Result<()> {
     if dim == 0 || n.checked_mul(dim) != Some(x.len()) {
         return Err(shape(
@@ -264,16 +255,13 @@ fn batch_offsets(offsets: &[i64], n: usize) -> Result<Vec<usize>> {
 
 fn check_stops(stops: &StopRows, n: usize) -> Result<()> {
     let s = stops.first.len();
-    if stops.last.len() != s || stops.track.len() != s {
-        return Err(shape(
-            "stops",
-            format!(
-                "first, last and track differ in length ({s}, {}, {})",
-                stops.last.len(),
-                stops.track.len()
-            ),
-        ));
-    }
+    check_len(
+        "stops",
+        stops.last.len(),
+        s,
+        "last rows (one per first row)",
+    )?;
+    check_len("stops", stops.track.len(), s, "tracks (one per first row)")?;
     if let Some(i) = (0..s).find(|&i| !(stops.first[i] <= stops.last[i] && stops.last[i] < n)) {
         return Err(shape(
             "stops",
@@ -294,12 +282,6 @@ fn distance(a: &[f64], b: &[f64]) -> f64 {
         .iter()
         .zip(&b[1..])
         .fold((a[0] - b[0]).abs(), |acc, (&p, &q)| acc.hypot(p - q))
-}
-
-/// `d <= r`: false when either is NaN.
-#[inline]
-fn within(d: f64, r: f64) -> bool {
-    d <= r
 }
 
 /// Running sums of the finite rows of `x` (non-finite rows add 0), as NumPy's `cumsum` of the
@@ -425,12 +407,6 @@ struct Data<'a> {
     min_stop: Option<f64>,
 }
 
-/// A stop candidate: runs `runs.start..runs.end` of a track.
-#[derive(Clone)]
-struct Group {
-    runs: Range<usize>,
-}
-
 /// Push fallibly (amortized growth).
 fn push<T>(v: &mut Vec<T>, item: T) -> Result<()> {
     v.try_reserve(1).map_err(|_| KernelError::OutOfMemory {
@@ -474,13 +450,13 @@ impl Data<'_> {
     }
 
     /// Stops of track `k` (rows `rows`) from its runs and their sums.
+    #[allow(clippy::neg_cmp_op_on_partial_ord)] // !(d <= r): a NaN distance or radius is far
     fn track(&self, k: usize, rows: Range<usize>, sums: &Runs) -> Result<Vec<(usize, usize)>> {
         let runs = &sums.pieces;
         if runs.is_empty() {
             return Ok(Vec::new());
         }
-        let d = self.dim;
-        let r = runs.len();
+        let (d, r) = (self.dim, runs.len());
         let centre = |a: usize, b: usize, out: &mut [f64]| sums.centre(a, b, out);
         let noise = HOLD_NOISE * self.noise[k];
 
@@ -490,23 +466,21 @@ impl Data<'_> {
             centre(j, j, &mut c[j * d..(j + 1) * d]);
         }
         let cen = |j: usize| &c[j * d..(j + 1) * d];
-        let mut groups: Vec<Group> = Vec::new();
+        // Stop candidates: runs g.start..g.end.
+        let mut groups: Vec<Range<usize>> = Vec::new();
         let mut g0 = 0;
         for j in 1..r {
             let (a, b) = (&runs[j - 1], &runs[j]);
-            let reference = if b.last - b.first > a.last - a.first {
-                j
-            } else {
-                j - 1
-            };
-            let far = (a.last + 1..b.first)
-                .any(|i| !within(distance(self.row(i), cen(reference)), noise));
-            if far || !within(distance(cen(j), cen(j - 1)), noise) {
-                push(&mut groups, Group { runs: g0..j })?;
+            // The longer run (the earlier one on a tie).
+            let reference = j - usize::from(b.last - b.first <= a.last - a.first);
+            let far =
+                (a.last + 1..b.first).any(|i| !(distance(self.row(i), cen(reference)) <= noise));
+            if far || !(distance(cen(j), cen(j - 1)) <= noise) {
+                push(&mut groups, g0..j)?;
                 g0 = j;
             }
         }
-        push(&mut groups, Group { runs: g0..r })?;
+        push(&mut groups, g0..r)?;
         drop(c);
 
         // Long enough.
@@ -519,23 +493,20 @@ impl Data<'_> {
             }
             None => f64::NAN,
         };
-        let ends = |g: &Group| (runs[g.runs.start].first, runs[g.runs.end - 1].last);
+        let ends = |g: &Range<usize>| (runs[g.start].first, runs[g.end - 1].last);
         groups.retain(|g| {
             let (a, b) = ends(g);
             t[b] - t[a] >= shortest
         });
 
         // Trim the ends to samples that hold the centre.
-        let radius = if noise.is_finite() {
-            noise
-        } else {
-            f64::INFINITY
-        };
+        let known = |otherwise: f64| if noise.is_finite() { noise } else { otherwise };
+        let radius = known(f64::INFINITY);
         let mut kept: Vec<(usize, usize)> = Vec::new();
         let mut kc: Vec<f64> = Vec::new();
         let mut cg = try_filled(d, 0.0)?;
         for g in &groups {
-            centre(g.runs.start, g.runs.end - 1, &mut cg);
+            centre(g.start, g.end - 1, &mut cg);
             let holds = |i: &usize| distance(self.row(*i), &cg) <= radius;
             let (a, b) = ends(g);
             let Some(na) = (a..=b).find(holds) else {
@@ -543,14 +514,13 @@ impl Data<'_> {
             };
             let nb = (a..=b).rev().find(holds).unwrap_or(na);
             push(&mut kept, (na, nb))?;
-            kc.try_reserve(d).map_err(|_| KernelError::OutOfMemory {
-                bytes: kc.len().saturating_mul(16),
-            })?;
-            kc.extend_from_slice(&cg);
+            for &v in &cg {
+                push(&mut kc, v)?;
+            }
         }
 
         // Merge stops that touch or lie at one place.
-        let near = if noise.is_finite() { noise } else { 0.0 };
+        let near = known(0.0);
         let mut out: Vec<(usize, usize)> = Vec::new();
         for (j, &(a, b)) in kept.iter().enumerate() {
             if let Some(prev) = out.last_mut() {
@@ -577,6 +547,10 @@ mod tests {
         let mut flags = vec![0u8; n];
         stopped.into_iter().for_each(|i| flags[i] = flag::STOPPED);
         (t, x, flags)
+    }
+
+    fn put(x: &mut [f64], rows: Range<usize>, p: [f64; 2]) {
+        rows.for_each(|i| x[2 * i..2 * i + 2].copy_from_slice(&p));
     }
 
     fn found(t: &[f64], x: &[f64], flags: &[u8], noise: f64) -> Vec<(usize, usize)> {
@@ -611,20 +585,15 @@ mod tests {
     fn ends_are_trimmed_and_stops_at_one_place_merge() {
         // Noise 1 cm, radius 3 cm. Rows 20..=39 stand at (3, 4) except rows 20 and 21, 5 cm
         // short in x: centre 3 − 0.1/20 = 2.995, rows 20, 21 lie 4.5 cm from it (trimmed).
-        // Rows 60..=79 stand at (50, 0).
+        // Rows 60..=79 stand at (50, 0); unknown noise: no trimming.
         let (t, mut x, f) = track(100, (20..40).chain(60..80));
-        for i in 20..40 {
-            x[2 * i..2 * i + 2].copy_from_slice(&[if i < 22 { 2.95 } else { 3.0 }, 4.0]);
-        }
-        for i in 60..80 {
-            x[2 * i..2 * i + 2].copy_from_slice(&[50.0, 0.0]);
-        }
+        put(&mut x, 20..40, [3.0, 4.0]);
+        put(&mut x, 20..22, [2.95, 4.0]);
+        put(&mut x, 60..80, [50.0, 0.0]);
         assert_eq!(found(&t, &x, &f, 0.01), [(22, 39), (60, 79)]);
-        assert_eq!(found(&t, &x, &f, f64::NAN), [(20, 39), (60, 79)]); // unknown: no trimming
-                                                                       // Rows 60..=79 back at (3, 4): the two stops lie at one place and merge.
-        for i in 60..80 {
-            x[2 * i..2 * i + 2].copy_from_slice(&[3.0, 4.0]);
-        }
+        assert_eq!(found(&t, &x, &f, f64::NAN), [(20, 39), (60, 79)]);
+        // Rows 60..=79 back at (3, 4): the two stops lie at one place and merge.
+        put(&mut x, 60..80, [3.0, 4.0]);
         assert_eq!(found(&t, &x, &f, 0.01), [(22, 79)]);
     }
 
@@ -634,13 +603,10 @@ mod tests {
         // (not bridged), every row at (3, 4): with noise 1 cm they join into one stop of 10 s;
         // with unknown noise they do not join and both are too short.
         let (t, mut x, f) = track(100, (20..24).chain(27..31));
-        for i in 20..31 {
-            x[2 * i..2 * i + 2].copy_from_slice(&[3.0, 4.0]);
-        }
+        put(&mut x, 20..31, [3.0, 4.0]);
         assert_eq!(found(&t, &x, &f, 0.01), [(20, 30)]);
         assert_eq!(found(&t, &x, &f, f64::NAN), []);
-        // Row 25 at (3, 4.1), 10 cm away: no join.
-        x[51] = 4.1;
+        put(&mut x, 25..26, [3.0, 4.1]); // 10 cm away: no join
         assert_eq!(found(&t, &x, &f, 0.01), []);
     }
 
@@ -649,17 +615,15 @@ mod tests {
         let (mut t, x, mut f) = track(100, 40..60);
         t[50..].iter_mut().for_each(|v| *v -= 50.0);
         let s = find_stops(&t, &x, 2, &f, &[0, 50, 50, 100], &[f64::NAN; 3], None).unwrap();
-        assert_eq!(
-            (s.first, s.last, s.track),
-            (vec![40, 50], vec![49, 59], vec![0, 2])
-        );
+        // Two tracks of 50 rows (and an empty one between): each holds its part of rows 40..60.
+        assert_eq!((s.first, s.last), (vec![40, 50], vec![49, 59]));
+        assert_eq!(s.track, [0, 2]);
         f[45..48].iter_mut().for_each(|v| *v |= flag::INVALID);
         let s = find_stops(&t, &x, 2, &f, &[0, 50, 50, 100], &[f64::NAN; 3], Some(0.0)).unwrap();
+        // INVALID rows 45..=47 are a moving gap of 3: not bridged (any length stays: min_stop 0).
         assert_eq!((s.first, s.last), (vec![40, 48, 50], vec![44, 49, 59]));
-        // No rows, no tracks.
-        assert!(find_stops(&[], &[], 3, &[], &[0], &[], None)
-            .unwrap()
-            .is_empty());
+        let none = find_stops(&[], &[], 3, &[], &[0], &[], None);
+        assert!(none.unwrap().is_empty()); // no rows, no tracks
     }
 
     #[test]
@@ -675,11 +639,8 @@ mod tests {
         assert_eq!(arg(&[0, 9], &[0.1], None), "offsets");
         assert_eq!(arg(&[0, 10], &[0.1, 0.2], None), "noise");
         assert!(find_stops(&t, &x, 3, &f, &[0, 10], &[0.1], None).is_err());
-        let bad = StopRows {
-            first: vec![3],
-            last: vec![10],
-            track: vec![0],
-        };
+        let mut bad = StopRows::default();
+        (bad.first, bad.last, bad.track) = (vec![3], vec![10], vec![0]);
         assert_eq!(held_mask(&bad, 10).unwrap_err().argument(), "stops");
     }
 
@@ -727,11 +688,8 @@ mod tests {
 
     #[test]
     fn masks_and_centres() {
-        let stops = StopRows {
-            first: vec![0, 3],
-            last: vec![1, 3],
-            track: vec![0, 0],
-        };
+        let mut stops = StopRows::default();
+        (stops.first, stops.last, stops.track) = (vec![0, 3], vec![1, 3], vec![0, 0]);
         assert_eq!(held_mask(&stops, 4).unwrap(), [true, true, false, true]);
         let x = [1.0, 2.0, 3.0, f64::INFINITY, 5.0, 6.0, 7.0, 8.0];
         assert_eq!(centres(&x, 2, &stops).unwrap(), [1.0, 2.0, 7.0, 8.0]);
