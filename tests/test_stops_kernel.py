@@ -130,7 +130,7 @@ def random_batch(rng):
         xs.append(x)
         fs.append(f)
     offsets = np.concatenate([[0], np.cumsum(lengths)]).astype(np.int64)
-    noise = rng.choice([np.nan, 0.0, 0.005, 0.01, 0.03, 0.2], m)
+    noise = rng.choice([np.nan, np.inf, 0.0, 0.005, 0.01, 0.03, 0.2], m)
     return np.concatenate(ts), np.concatenate(xs), np.concatenate(fs), offsets, noise
 
 
