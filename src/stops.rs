@@ -99,7 +99,10 @@ pub fn find_stops(
     let n = t.len();
     check_positions(x, dim, n)?;
     check_len("flags", flags.len(), n, "rows (one per time)")?;
-    let offsets = batch_offsets(offsets, n)?;
+    if offsets.is_empty() {
+        let detail = "need at least one entry".into();
+        return Err(KernelError::Offsets { detail });
+    }
     let m = offsets.len() - 1;
     check_len("noise", noise.len(), m, "values (one per track)")?;
     if let Some(v) = min_stop {
@@ -110,9 +113,10 @@ pub fn find_stops(
             });
         }
         if v == f64::INFINITY {
-            return Ok(StopRows::default());
+            return Ok(StopRows::default()); // none asked for: no temporaries
         }
     }
+    let offsets = check_query_offsets(offsets, n, m)?;
     let data = Data {
         t,
         x,
@@ -241,16 +245,6 @@ fn check_positions(x: &[f64], dim: usize, n: usize) -> Result<()> {
         ));
     }
     Ok(())
-}
-
-/// Offsets of `n` rows; tracks may be empty.
-fn batch_offsets(offsets: &[i64], n: usize) -> Result<Vec<usize>> {
-    if offsets.is_empty() {
-        return Err(KernelError::Offsets {
-            detail: "need at least one entry".into(),
-        });
-    }
-    check_query_offsets(offsets, n, offsets.len() - 1)
 }
 
 fn check_stops(stops: &StopRows, n: usize) -> Result<()> {
