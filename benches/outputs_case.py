@@ -20,6 +20,8 @@ one (1e6 and 1e7 samples of one 3-D track, ``data.one_track``; ``--quick``: 1e5 
       as in ``reference.py``, then the four formulas of ``reference.frenet``; nothing else);
     * ``floor``: the memory traffic of the same call, read t and x once and write fresh arrays of
       the same output bytes (four float64 arrays and the uint8 flags);
+    * ``four_out``: ``four`` writing into the same four arrays every call (``out=``, what a
+      caller who loops does), and ``floor_out``: the floor writing into the same arrays too;
     * ``full``: ``osc.kinematics(t, x, ...)`` with every output (what asking for less saves);
     * ``derivatives``: ``osc.derivatives(t, x, ...)`` (r′, r″, r‴ and flags only).
 
@@ -115,6 +117,20 @@ FORMULA_ULPS = 16.0
 
 def ours_four(t: np.ndarray, x: np.ndarray) -> Any:
     return osc.kinematics(t, x, outputs=FOUR, **OPTIONS)
+
+
+def ours_four_out(t: np.ndarray, x: np.ndarray, out: dict[str, np.ndarray]) -> Any:
+    return osc.kinematics(t, x, outputs=FOUR, out=out, **OPTIONS)
+
+
+def floor_four_out(t: np.ndarray, x: np.ndarray, out: dict[str, np.ndarray]) -> None:
+    """Read the inputs once, write the same bytes as ``ours_four_out`` into the same arrays."""
+    np.add.reduce(t)
+    np.add.reduce(x, axis=None)
+    for a in out.values():
+        a.fill(0.0)
+    flags = np.empty(len(t), dtype=np.uint8)  # the flags are the kernel's own array
+    flags.fill(0)
 
 
 def ours_full(t: np.ndarray, x: np.ndarray) -> Any:
@@ -258,9 +274,13 @@ def _status(measured: float, target: float, higher_is_better: bool) -> dict[str,
 def case_one(n: int, budget_s: float, min_rounds: int) -> dict[str, Any]:
     t, x = data.one_track(n)
     checked = check_four(t, x)
+    bufs = {name: np.zeros(n) for name in FOUR}
+    floor_bufs = {name: np.zeros(n) for name in FOUR}
     gc.collect()
     fns = {
         "four": lambda: ours_four(t, x),
+        "four_out": lambda: ours_four_out(t, x, bufs),
+        "floor_out": lambda: floor_four_out(t, x, floor_bufs),
         "numpy": lambda: numpy_four(t, x),
         "floor": lambda: floor_four(t, x),
         "full": lambda: ours_full(t, x),
@@ -275,6 +295,10 @@ def case_one(n: int, budget_s: float, min_rounds: int) -> dict[str, Any]:
         **timed,
         "four_vs_numpy": _status(med["numpy"] / med["four"], TARGETS["vs_numpy"], True),
         "four_over_floor": _status(med["four"] / med["floor"], TARGETS["vs_floor"], False),
+        "four_out_vs_numpy": _status(med["numpy"] / med["four_out"], TARGETS["vs_numpy"], True),
+        "four_out_over_floor_out": _status(
+            med["four_out"] / med["floor_out"], TARGETS["vs_floor"], False
+        ),
         "full_over_four": med["full"] / med["four"],
         "full_over_derivatives": med["full"] / med["derivatives"],
         "cpu_numpy_over_four": cpu["numpy"] / cpu["four"],

@@ -172,6 +172,57 @@ pub fn track_stats(
     })
 }
 
+/// Finite differences are useless on a track when the standard error of their r″ exceeds this
+/// fraction of the track's typical |r″| (a choice of ours: beyond it the headline
+/// accelerations of a summary are mostly noise).
+pub const FD_NOISE_RATIO: f64 = 0.3;
+
+/// Per track, whether finite differences would give accelerations that are mostly noise: the
+/// 3-point r″ of a uniform grid has the weights (1, −2, 1)/h², standard error √6 σ/h², compared
+/// with [`FD_NOISE_RATIO`] × the median |r″| of [`TrackStats::accel`]. Noise at the level of
+/// rounding — below 1e-9 of the median step, or within 16 ε of the track's largest coordinate
+/// (positions far from the origin, ECEF metres) — does not count, nor do tracks of fewer than 10
+/// rows.
+///
+/// # Examples
+///
+/// ```
+/// use osculate::diagnose::{fd_swamped, track_stats};
+/// // A straight line at 10 m/s, 10 Hz, with ±5 cm of alternating noise: |r″| is all noise.
+/// let t: Vec<f64> = (0..50).map(|i| i as f64 * 0.1).collect();
+/// let x: Vec<f64> = (0..50)
+///     .flat_map(|i| [t[i] * 10.0, if i % 2 == 0 { 0.05 } else { -0.05 }])
+///     .collect();
+/// let s = track_stats(&t, &x, 2, &[0, 50], &vec![0; 50]).unwrap();
+/// assert_eq!(fd_swamped(&s, &[0.05], &x, 2, &[0, 50]), vec![true]);
+/// // Exact data (noise estimate 0) never is.
+/// assert_eq!(fd_swamped(&s, &[0.0], &x, 2, &[0, 50]), vec![false]);
+/// ```
+pub fn fd_swamped(
+    stats: &TrackStats,
+    noise: &[f64],
+    x: &[f64],
+    dim: usize,
+    offsets: &[usize],
+) -> Vec<bool> {
+    (0..offsets.len() - 1)
+        .into_par_iter()
+        .map(|k| {
+            let (a, b) = (offsets[k], offsets[k + 1]);
+            let (sigma, step, dt) = (noise[k], stats.step[k], stats.dt[k]);
+            let real = sigma > 1e-9 * step && step > 0.0 && b - a >= 10;
+            if !(real && 6f64.sqrt() * sigma / (dt * dt) > FD_NOISE_RATIO * stats.accel[k]) {
+                return false;
+            }
+            let scale = x[a * dim..b * dim]
+                .iter()
+                .filter(|v| !v.is_nan())
+                .fold(0.0f64, |m, v| m.max(v.abs()));
+            sigma > 16.0 * f64::EPSILON * scale
+        })
+        .collect()
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

@@ -131,6 +131,29 @@ pub fn take_rows<T: Copy + Send + Sync + Default>(
     width: usize,
     index: &[usize],
 ) -> Result<Vec<T>> {
+    let mut out = try_filled(index.len() * width, T::default())?;
+    gather_rows(src, width, index, &mut out)?;
+    Ok(out)
+}
+
+/// `dst[i] = src[index[i]]` for rows of `width` values, in parallel, into a buffer of
+/// `index.len() * width` values; `index` must hold row numbers of `src` (checked).
+///
+/// # Examples
+///
+/// ```
+/// use osculate::grouping::gather_rows;
+/// let mut dst = [0.0; 2];
+/// gather_rows(&[1.0, 2.0, 3.0], 1, &[2, 0], &mut dst).unwrap();
+/// assert_eq!(dst, [3.0, 1.0]);
+/// assert!(gather_rows(&[1.0], 1, &[0, 0], &mut dst[..1]).is_err()); // wrong length
+/// ```
+pub fn gather_rows<T: Copy + Send + Sync>(
+    src: &[T],
+    width: usize,
+    index: &[usize],
+    out: &mut [T],
+) -> Result<()> {
     let rows = src.len().checked_div(width).unwrap_or(0);
     if let Some(pos) = index.iter().position(|&r| r >= rows) {
         return Err(KernelError::Shape {
@@ -138,9 +161,14 @@ pub fn take_rows<T: Copy + Send + Sync + Default>(
             detail: format!("entry {pos} is row {} of {rows}", index[pos]),
         });
     }
-    let mut out = try_filled(index.len() * width, T::default())?;
+    if out.len() != index.len() * width {
+        return Err(KernelError::Shape {
+            argument: "out",
+            detail: format!("has {} values, expected {}", out.len(), index.len() * width),
+        });
+    }
     if width == 0 {
-        return Ok(out);
+        return Ok(());
     }
     out.par_chunks_mut(CHUNK * width)
         .zip(index.par_chunks(CHUNK))
@@ -155,7 +183,7 @@ pub fn take_rows<T: Copy + Send + Sync + Default>(
                 }
             }
         });
-    Ok(out)
+    Ok(())
 }
 
 #[cfg(test)]

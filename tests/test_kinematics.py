@@ -261,3 +261,38 @@ def test_accessor_columns_ask_the_kernel_for_their_quantities():
     assert list(res.columns) == ["speed", "tangent_x"]
     # Same kernel arithmetic: exact equality with the full run.
     np.testing.assert_array_equal(res["tangent_x"], full["tangent_x"])
+
+
+def test_out_buffers_are_written_in_place():
+    # Reference: the same call without out= (same kernel, tolerance 0).
+    t = np.linspace(0.0, 4.0, 2001)
+    xy = 2.0 * np.column_stack([np.cos(1.5 * t), np.sin(1.5 * t)])
+    asked = ["speed", "curvature", "tangent"]
+    for tracks in (None, np.arange(len(t)) % 3):  # the caller's order, and interleaved tracks
+        ref = osc.kinematics(t, xy, tracks=tracks, outputs=asked)
+        buf = {"speed": np.full(len(t), 7.0), "tangent": np.zeros((len(t), 2))}
+        k = osc.kinematics(t, xy, tracks=tracks, outputs=asked, out=buf)
+        assert k.speed is buf["speed"] and k.tangent is buf["tangent"]
+        np.testing.assert_array_equal(buf["speed"], ref.speed)
+        np.testing.assert_array_equal(buf["tangent"], ref.tangent)
+        np.testing.assert_array_equal(k.curvature, ref.curvature)
+
+
+def test_out_buffers_are_checked():
+    t = np.linspace(0.0, 4.0, 50)
+    xy = np.column_stack([t, t**2])
+    n = len(t)
+    bad = [
+        ({"curvature": np.empty(n)}, osc.InputError, "not one of the outputs asked"),
+        ({"speed": np.empty(n, np.float32)}, TypeError, "writeable float64"),
+        ({"speed": np.empty(2 * n)[::2]}, TypeError, "C-contiguous"),
+        ({"tangent": np.empty((2, n))}, osc.InputError, r"shape \(2, 50\), expected \(50, 2\)"),
+        ({"speed": [0.0] * n}, TypeError, "NumPy array"),
+    ]
+    for out, error, message in bad:
+        with pytest.raises(error, match=message):
+            osc.kinematics(t, xy, outputs=["speed", "tangent"], out=out)
+    frozen = np.empty(n)
+    frozen.flags.writeable = False
+    with pytest.raises(TypeError, match="writeable"):
+        osc.kinematics(t, xy, outputs=["speed"], out={"speed": frozen})

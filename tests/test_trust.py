@@ -365,3 +365,80 @@ def test_warnings_from_the_accessor_name_the_callers_tracks():
     df = pd.concat(frames, ignore_index=True)
     with pytest.warns(osc.SuspectDataWarning, match=r"track\(s\) north, south: with noise"):
         df.osc.kinematics(time="t", position=["x", "y"], by="car")
+
+
+def test_auto_keeps_fd_on_exact_data_bit_for_bit():
+    # Exact samples of a circle (closed form): "auto" is finite differences, to the last bit.
+    t = np.arange(400) * 0.05
+    x = np.column_stack([20 * np.cos(0.2 * t), 20 * np.sin(0.2 * t)])
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        auto = osc.kinematics(t, x, method="auto", order=4)
+    fd = osc.kinematics(t, x, method="fd", order=4)
+    assert auto.method == "fd"
+    for name in ("curvature", "accel_tangential", "accel_normal", "speed"):
+        np.testing.assert_array_equal(getattr(auto, name), getattr(fd, name))  # tolerance 0
+
+
+def test_auto_smooths_noisy_logs_and_says_so():
+    # The stop-and-go vehicle with 5 cm noise (construction above): "auto" chooses the smoothing
+    # spline, equal to the last bit to asking for it, and the warning names the choice.
+    rng = np.random.default_rng(7)
+    t, x, _, _ = _stop_and_go(rng)
+    with pytest.warns(osc.SuspectDataWarning, match="method='auto' used 'smooth'") as rec:
+        auto = osc.kinematics(t, x, method="auto")
+    assert rec[0].filename == __file__  # the warning points at the caller's line
+    smooth = osc.kinematics(t, x, method="smooth")
+    assert auto.method == "smooth" and auto.estimator == smooth.estimator
+    np.testing.assert_array_equal(auto.curvature, smooth.curvature)  # tolerance 0
+    assert len(auto.stops) == 2
+
+
+def test_tables_of_the_accessor_default_to_auto_on_noisy_logs():
+    # Two stop-and-go vehicles (construction above: cruising 8 m/s, ramps of 2 m/s², one
+    # R = 20 m quarter turn each, 5 cm noise) in one log, rows in time order. At the defaults the
+    # summary's headline is the smoothing spline's: |a_t| within 50 % of the 2 m/s² ramps (it
+    # was 30–47 m/s² from finite differences), two stops each, and a minimum radius within 10 %.
+    pd = pytest.importorskip("pandas")
+    frames = []
+    for name, seed in (("north", 1), ("south", 2)):
+        t, x, _, _ = _stop_and_go(np.random.default_rng(seed))
+        frames.append(pd.DataFrame({"t": t, "x": x[:, 0], "y": x[:, 1], "car": name}))
+    df = pd.concat(frames, ignore_index=True).sort_values("t", kind="stable")
+    with pytest.warns(osc.SuspectDataWarning, match="method='auto'") as rec:
+        s = df.osc.summary(time="t", position=["x", "y"], by="car")
+    assert all(w.filename == __file__ for w in rec)
+    assert (s["max_abs_accel_tangential"] <= 3.0).all()
+    assert (s["stops"] == 2).all()
+    np.testing.assert_allclose(s["min_radius"], 20.0, rtol=0.1)
+
+
+def test_one_kernel_call_per_kinematics(monkeypatch):
+    # Every stage — estimate, data checks, stops, refit between stops, held rows, the
+    # rotation-minimizing frame, the caller's row order — runs inside one call into Rust when
+    # the tracks are given by offsets (ids add the grouping call).
+    rng = np.random.default_rng(1)
+    t, x, _, _ = _stop_and_go(rng)
+    n = len(t)
+    calls = []
+    for name in dir(osc._core):
+        fn = getattr(osc._core, name)
+        if callable(fn) and not isinstance(fn, type) and not name.startswith("_"):
+
+            def counted(*a, _fn=fn, _name=name, **kw):
+                calls.append(_name)
+                return _fn(*a, **kw)
+
+            monkeypatch.setattr(osc._core, name, counted)
+    x3 = np.column_stack([x, 0.01 * t])
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", osc.SuspectDataWarning)
+        osc.kinematics(t, x3, method="smooth", frame="rotation-minimizing", offsets=[0, n])
+        assert calls == ["kinematics"]
+        calls.clear()
+        osc.frames(t, x3, method="smooth", offsets=[0, n])
+        assert calls == ["kinematics"]
+        calls.clear()
+        ids = np.arange(n) % 2  # two interleaved "tracks"
+        osc.kinematics(t, x3, method="smooth", tracks=ids)
+        assert calls == ["group_rows", "kinematics"]

@@ -12,7 +12,6 @@ __all__ = [
     "InputError",
     "__version__",
     "enu_to_geodetic",
-    "fd_kinematics",
     "find_elements",
     "find_speed_changes",
     "find_stops",
@@ -22,16 +21,15 @@ __all__ = [
     "geodetic_to_enu",
     "grid_eval",
     "group_rows",
+    "kinematics",
     "line_integral_grid",
     "line_integral_sampled",
     "line_integral_values",
     "line_power",
     "polyline_arclength",
-    "rotation_minimizing",
     "segment_nodes",
     "summarize",
     "take_rows",
-    "track_stats",
 ]
 
 class InputError(ValueError):
@@ -46,20 +44,22 @@ def group_rows(
     key: npt.NDArray[np.float64] | npt.NDArray[np.int64] | None = None,
 ) -> tuple[npt.NDArray[np.uintp] | None, npt.NDArray[np.uintp] | None, npt.NDArray[np.uintp]]: ...
 def take_rows(a: npt.NDArray[Any], index: npt.NDArray[np.uintp]) -> npt.NDArray[Any]: ...
-def fd_kinematics(
+def kinematics(
     t: npt.NDArray[np.float64],
     positions: npt.NDArray[np.float64],
     offsets: npt.NDArray[np.int64],
     *,
-    order: int,
+    estimator: dict[str, Any],
     options: dict[str, Any] | None = None,
+    min_stop: float | None = None,
+    frame: str = "frenet",
+    initial: tuple[float, float, float] | None = None,
+    weights: npt.NDArray[np.float64] | None = None,
+    order: npt.NDArray[np.uintp] | None = None,
+    inverse: npt.NDArray[np.uintp] | None = None,
+    t_kernel: bool = False,
+    out: dict[str, npt.NDArray[np.float64]] | None = None,
 ) -> dict[str, Any]: ...
-def track_stats(
-    t: npt.NDArray[np.float64],
-    positions: npt.NDArray[np.float64],
-    offsets: npt.NDArray[np.int64],
-    flags: npt.NDArray[np.uint8],
-) -> dict[str, npt.NDArray[np.float64]]: ...
 def find_turns(
     t: npt.NDArray[np.float64],
     s: npt.NDArray[np.float64],
@@ -190,14 +190,6 @@ class FittedPaths:
     ) -> dict[str, npt.NDArray[np.float64] | npt.NDArray[np.int64]]: ...
     def info(self) -> dict[str, npt.NDArray[np.float64]]: ...
 
-def rotation_minimizing(
-    positions: npt.NDArray[np.float64],
-    tangent: npt.NDArray[np.float64],
-    frenet_normal: npt.NDArray[np.float64],
-    offsets: npt.NDArray[np.int64],
-    *,
-    initial: tuple[float, float, float] | None = None,
-) -> dict[str, npt.NDArray[np.float64]]: ...
 def geodetic_to_enu(
     llh: npt.NDArray[np.float64],
     offsets: npt.NDArray[np.int64],

@@ -41,6 +41,11 @@ F64 = npt.NDArray[np.float64]
 _SKIP = ("t", "position")  # the caller's own input
 
 
+#: Estimator of the per-track tables (summaries, stops, turns, elements, speed changes) when none
+#: is given: logs are usually noisy, and finite differences would headline noise there.
+TABLE_METHOD = "auto"
+
+
 def _quantities(k: Kinematics) -> list[tuple[str, np.ndarray]]:
     """Per-sample results of ``k`` (any estimator), in field order, without the input."""
     n = len(k)
@@ -153,6 +158,7 @@ def summary_and_stops(
     ``tables`` names the turn, speed-change and element tables to make as well (see
     :func:`events`): from the same run, or from the positions when summarising results.
     """
+    options = {"method": TABLE_METHOD, **options}
     prep = Prepared(df, time, position, by, crs, origin)
     if from_results and prep.n:
         k = _from_results(prep, df)
@@ -284,6 +290,7 @@ def events(
     and :func:`osculate.elements.elements_of`.
     """
     prep = Prepared(df, time, position, by, crs, origin)
+    options = {"method": TABLE_METHOD, **options}
     k = prep.run(options) if prep.n else synthetic_run(prep, options)
     return _tables_of(prep, k, by, rules)
 

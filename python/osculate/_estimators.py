@@ -12,8 +12,8 @@ from ._validate import Grouping, as_int, as_real, call_kernel
 
 __all__ = ["FIT_METHODS", "METHODS", "EstimatorOptions", "fit_core"]
 
-METHODS = ("fd", "spline", "smooth", "local", "linear")
-FIT_METHODS = METHODS[1:]
+METHODS = ("fd", "spline", "smooth", "local", "linear", "auto")
+FIT_METHODS = ("spline", "smooth", "local", "linear")
 _BCS = ("not-a-knot", "natural", "clamped")
 
 
@@ -55,6 +55,8 @@ class EstimatorOptions:
             "smooth": {"degree", "smoothing", "noise", "weights", "derivative"},
             "local": {"degree", "window", "window_span"},
             "linear": set(),
+            # fd's order, and the smoothing spline's options for when it is chosen.
+            "auto": {"order", "degree", "smoothing", "noise", "weights", "derivative"},
         }[method]
         for name, value in given.items():
             if value is not None and name not in allowed:
@@ -71,7 +73,7 @@ class EstimatorOptions:
         if (self.bc == "clamped") != (bc_velocity is not None):
             raise _core.InputError('bc_velocity: give it exactly when bc="clamped"')
         self.bc_velocity = bc_velocity
-        default_degree = 5 if method == "smooth" else 4
+        default_degree = 5 if method in ("smooth", "auto") else 4
         self.degree = default_degree if degree is None else as_int("degree", degree, 0, 10**6)
         if method == "smooth" and self.degree not in (3, 5):
             raise _core.InputError(f"degree: must be 3 or 5 for method='smooth', got {degree}")
@@ -90,9 +92,37 @@ class EstimatorOptions:
             return f"fd (order {self.order})"
         if self.method == "spline":
             return f"spline (bc {self.bc})"
-        if self.method == "linear":
-            return "linear"
+        if self.method in ("linear", "auto"):
+            return self.method
         return f"{self.method} (degree {self.degree})"
+
+    def kernel_options(self, dim: int, uncertainty: Optional[str] = None) -> dict[str, Any]:
+        """Return the options as the kernels take them (``uncertainty``: the covariance kept)."""
+        start = end = None
+        if self.bc_velocity is not None:
+            start, end = _end_velocities(self.bc_velocity, dim)
+        return {
+            "method": self.method,
+            "order": self.order,
+            "bc": self.bc,
+            "bc_velocity": None if start is None else [start, end],
+            "degree": self.degree,
+            "smoothing": self.smoothing,
+            "noise": self.noise,
+            "window": self.window,
+            "window_span": self.window_span,
+            "derivative": self.derivative,
+            "uncertainty": uncertainty,
+        }
+
+    def kernel_weights(self, n: int) -> npt.NDArray[np.float64]:
+        """Return the weights as a float64 vector of ``n`` rows (caller order)."""
+        w = np.asarray(self.weights)
+        if w.dtype.kind not in "fiu":
+            raise TypeError(f"weights: expected real numbers, got dtype {w.dtype}")
+        if w.shape != (n,):
+            raise _core.InputError(f"weights: expected shape ({n},), got {w.shape}")
+        return np.ascontiguousarray(w, dtype=np.float64)
 
 
 def _end_velocities(v: Any, dim: int) -> tuple[list[float], list[float]]:

@@ -8,7 +8,7 @@ from __future__ import annotations
 
 import dataclasses
 import types
-from collections.abc import Mapping
+from collections.abc import Callable, Mapping
 from typing import TYPE_CHECKING, Any, NamedTuple, Optional
 
 import numpy as np
@@ -30,7 +30,7 @@ __all__ = ["OUTPUTS", "OUTPUT_SET", "Derivatives", "Frames", "Kinematics", "asse
 
 F64 = npt.NDArray[np.float64]
 
-_VECTORS = ("velocity", "acceleration", "jerk", "tangent", "normal", "binormal", "center")
+VECTORS = ("velocity", "acceleration", "jerk", "tangent", "normal", "binormal", "center")
 _SCALARS = (
     "speed",
     "arclength",
@@ -192,7 +192,7 @@ class Kinematics:
         if self.tracks is not None:
             cols["track"] = self.tracks
         cols["t"] = self.t
-        for name in ("position", *(q for q in (*_VECTORS, *_SCALARS) if q in self.outputs)):
+        for name in ("position", *(q for q in (*VECTORS, *_SCALARS) if q in self.outputs)):
             a = getattr(self, name)
             if a.ndim == 1:
                 cols[name] = a
@@ -464,8 +464,11 @@ def assemble(
     grouped: bool,
     frame: str = "frenet",
     stops: Stops | None = None,
+    kernel_order: bool = True,
 ) -> Kinematics:
-    """Kinematics on the caller's rows from the kernel's dictionary (kernel row order).
+    """Kinematics on the caller's rows from the kernel's dictionary.
+
+    The dictionary's rows are in kernel order, unless ``kernel_order`` is False.
 
     ``raw`` is emptied: its arrays are handed over (or freed as their caller-order copies are
     made), so the outputs are held once plus one array, not twice.
@@ -473,13 +476,14 @@ def assemble(
     raw.pop("noise", None)
     se_raw = raw.pop("se", None)
     res = {}
+    to_caller = g.to_caller if kernel_order else (lambda a: a)
     for name in list(raw):
-        res[name] = g.to_caller(raw.pop(name))
+        res[name] = to_caller(raw.pop(name))
     res.setdefault("twist", None)
     computed = tuple(q for q in OUTPUTS if q in res)
     for q in OUTPUTS:
         res.setdefault(q, None)
-    se = None if se_raw is None else _se_mapping(se_raw, g, x.shape[1])
+    se = None if se_raw is None else _se_mapping(se_raw, to_caller, x.shape[1])
     return Kinematics(
         se=se,
         stops=Stops.none(x.shape[1]) if stops is None else stops,
@@ -496,11 +500,13 @@ def assemble(
     )
 
 
-def _se_mapping(se: dict[str, np.ndarray], g: Grouping, dim: int) -> Mapping[str, np.ndarray]:
+def _se_mapping(
+    se: dict[str, np.ndarray], to_caller: Callable[[np.ndarray], np.ndarray], dim: int
+) -> Mapping[str, np.ndarray]:
     """Read-only standard errors on the caller's rows; vector ones shaped (n, dim)."""
     out: dict[str, np.ndarray] = {}
     for name, a in se.items():
-        a = g.to_caller(a)
+        a = to_caller(a)
         if name in ("position", "velocity", "acceleration", "jerk"):
             a = np.broadcast_to(a[:, None], (len(a), dim))
         else:

@@ -220,7 +220,7 @@ class Grouping:
     ``naming`` (for DataFrame callers) tells :func:`relabel` the columns and row labels.
     """
 
-    __slots__ = ("inverse", "labels", "naming", "offsets", "order")
+    __slots__ = ("codes", "inverse", "labels", "naming", "offsets", "order")
 
     def __init__(
         self,
@@ -229,8 +229,11 @@ class Grouping:
         labels: np.ndarray,
         inverse: np.ndarray | None = None,
         naming: Naming | None = None,
+        codes: np.ndarray | None = None,
     ) -> None:
         self.offsets = offsets
+        # Track position of every caller row, when the caller gave one per row.
+        self.codes = codes
         self.order = None if order is None else _as_rows(order)
         if self.order is not None and inverse is None:
             inverse = np.empty_like(self.order)
@@ -263,10 +266,9 @@ class Grouping:
             key_arr = np.asarray(key)
             kind = key_arr.dtype.kind
             key_arr = np.ascontiguousarray(key_arr, np.int64 if kind in "iuMm" else np.float64)
-        order, inverse, off = _core.group_rows(
-            np.ascontiguousarray(codes, dtype=np.int64), len(labels), key_arr
-        )
-        return cls(off.astype(np.int64), order, labels, inverse)
+        codes = np.ascontiguousarray(codes, dtype=np.int64)
+        order, inverse, off = _core.group_rows(codes, len(labels), key_arr)
+        return cls(off.astype(np.int64), order, labels, inverse, codes=codes.view(np.intp))
 
     @property
     def n_tracks(self) -> int:
@@ -298,6 +300,8 @@ class Grouping:
 
     def row_codes(self) -> npt.NDArray[np.intp]:
         """Track position (0 .. n_tracks - 1) of every caller row."""
+        if self.codes is not None:
+            return self.codes
         codes = np.repeat(np.arange(self.n_tracks), np.diff(self.offsets))
         return self.to_caller(codes)
 

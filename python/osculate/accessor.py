@@ -190,7 +190,9 @@ class OscAccessor:
         Parameters
         ----------
         time, position, by, crs, origin, **options
-            As in :meth:`kinematics`.
+            As in :meth:`kinematics`, except that ``method`` defaults to ``"auto"``: finite
+            differences, or a smoothing spline where the noise would swamp their accelerations
+            (see :func:`osculate.kinematics`).
 
         Returns
         -------
@@ -238,7 +240,8 @@ class OscAccessor:
         Parameters
         ----------
         time, position, by, crs, origin, **options
-            As in :meth:`kinematics` (``method="smooth"`` is the usual choice for logs).
+            As in :meth:`kinematics`, except that ``method`` defaults to ``"auto"`` (see
+            :func:`osculate.kinematics`; ``"smooth"`` is the usual choice for logs).
         up, significance, hold, min_heading, merge, core
             As in :meth:`osculate.Kinematics.turns` (for geodetic input, up defaults to the
             local vertical).
@@ -288,7 +291,8 @@ class OscAccessor:
         Parameters
         ----------
         time, position, by, crs, origin, **options
-            As in :meth:`kinematics` (``method="smooth"`` is the usual choice for logs); the
+            As in :meth:`kinematics`, except that ``method`` defaults to ``"auto"`` (see
+            :func:`osculate.kinematics`; ``"smooth"`` is the usual choice for logs); the
             element options ``significance``, ``resolution``, ``refine`` and
             ``max_iterations`` go to :func:`osculate.elements.elements_of`.
         up, penalty, min_length
@@ -343,7 +347,9 @@ class OscAccessor:
         Parameters
         ----------
         time, position, by, crs, origin, **options
-            As in :meth:`kinematics`.
+            As in :meth:`kinematics`, except that ``method`` defaults to ``"auto"``: finite
+            differences, or a smoothing spline where the noise would swamp their accelerations
+            (see :func:`osculate.kinematics`).
         threshold, release, significance, hold, min_samples
             As in :meth:`osculate.Kinematics.speed_changes`.
 
@@ -386,7 +392,9 @@ class OscAccessor:
         Parameters
         ----------
         time, position, by, crs, origin, **options
-            As in :meth:`kinematics`.
+            As in :meth:`kinematics`, except that ``method`` defaults to ``"auto"``: finite
+            differences, or a smoothing spline where the noise would swamp their accelerations
+            (see :func:`osculate.kinematics`).
 
         Returns
         -------

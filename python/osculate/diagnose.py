@@ -2,12 +2,12 @@
 
 from __future__ import annotations
 
+import os
+import sys
 import warnings
 
 import numpy as np
 import numpy.typing as npt
-
-from . import _core
 
 __all__ = ["SuspectDataWarning", "check_tracks", "track_names"]
 
@@ -21,8 +21,6 @@ MAX_PLAUSIBLE_SPEED = 12_000.0
 INTERLEAVED_RATIO = 0.2
 #: The most objects whose interleaved rows are recognised (the kernel's search depth).
 INTERLEAVED_LAG = 6
-#: fd is useless when the noise of its r″ exceeds this fraction of the typical |r″|.
-FD_NOISE_RATIO = 0.3
 #: Share of a track flagged VAGUE or GAP beyond which the track is reported (INVALID rows are
 #: the input's own NaN, visible to the caller already).
 MOSTLY_FLAGGED = 0.5
@@ -44,71 +42,66 @@ def track_names(labels: np.ndarray, bad: npt.NDArray[np.bool_]) -> str:
 
 
 def check_tracks(
-    t: npt.NDArray[np.float64],
-    x: npt.NDArray[np.float64],
-    offsets: npt.NDArray[np.int64],
     labels: np.ndarray,
-    flags: npt.NDArray[np.uint8],
+    stats: dict[str, np.ndarray],
     noise: npt.NDArray[np.float64],
     method: str,
+    used: str,
 ) -> None:
-    """Warn (:class:`SuspectDataWarning`) about tracks whose data look wrong (kernel row order).
+    """Warn (:class:`SuspectDataWarning`) about tracks whose data look wrong.
 
     Parameters
     ----------
-    t, x, flags
-        Times, measured positions and flags of every row, tracks contiguous.
-    offsets : ndarray of int
-        Row offsets of the tracks.
     labels : ndarray
         Track labels, for the messages.
+    stats : dict of ndarray
+        The kernel's per-track statistics (``step``, ``back``, ``speed``, ``flagged``, and
+        ``fd_swamped``: finite differences would give accelerations that are mostly noise).
     noise : ndarray
         Position noise per track seen by the estimator (NaN: unknown).
-    method : str
-        The estimator.
+    method, used : str
+        The estimator asked for and the one used (they differ when ``"auto"`` chose).
     """
-    m = len(offsets) - 1
-    if m == 0 or len(t) < 3:
+    if len(labels) == 0:
         return
     with np.errstate(all="ignore"):  # huge or tiny coordinates: the comparisons stay valid
-        findings = _findings(t, x, offsets, flags, noise, method)
+        findings = _findings(stats, noise, method, used)
     for bad, message in findings:
         if bad.any():
             warning = SuspectDataWarning(f"track(s) {track_names(labels, bad)}: {message}")
             # Batch positions and reason, for callers that name the tracks their own way.
             warning.tracks, warning.reason = np.flatnonzero(bad), message
-            warnings.warn(warning, stacklevel=3)
+            warnings.warn(warning, stacklevel=_caller_level())
+
+
+def _caller_level() -> int:
+    """``stacklevel`` of the first frame outside this package (the caller's own line)."""
+    package = os.path.dirname(os.path.abspath(__file__))
+    frame, level = sys._getframe(1), 1
+    while frame is not None and os.path.abspath(frame.f_code.co_filename).startswith(package):
+        frame, level = frame.f_back, level + 1
+    return level
 
 
 def _findings(
-    t: npt.NDArray[np.float64],
-    x: npt.NDArray[np.float64],
-    offsets: npt.NDArray[np.int64],
-    flags: npt.NDArray[np.uint8],
-    noise: npt.NDArray[np.float64],
-    method: str,
+    st: dict[str, np.ndarray], noise: npt.NDArray[np.float64], method: str, used: str
 ) -> list[tuple[npt.NDArray[np.bool_], str]]:
     """Per check, the tracks that fail it and what to tell the caller."""
-    st = _core.track_stats(t, x, offsets, np.ascontiguousarray(flags, dtype=np.uint8))
-    m = len(offsets) - 1
-    counts = np.diff(offsets)
+    counts = st["count"]
     step = st["step"]
     interleaved = (counts >= 10) & (step > 0) & (st["back"] < INTERLEAVED_RATIO * step)
     fast = st["speed"] > MAX_PLAUSIBLE_SPEED
-    noisy_fd = np.zeros(m, bool)
-    if method == "fd":
-        # Noise at the level of rounding (exact or simulated data) is no reason to warn. The
-        # 3-point r″ of a uniform grid has the weights (1, −2, 1)/h²: standard error √6 σ/h².
-        real = (noise > 1e-9 * step) & (step > 0) & (counts >= 10)
-        noisy_fd = real & (np.sqrt(6.0) * noise / st["dt"] ** 2 > FD_NOISE_RATIO * st["accel"])
-        if noisy_fd.any():
-            # Positions far from the origin (ECEF metres) carry rounding of about ε·|x|; noise
-            # within 16 times that is rounding too (looked at only when the check would fire).
-            has = counts > 0
-            mag = np.fmax.reduce(np.abs(x), axis=1) if len(x) else np.zeros(0)
-            scale = np.zeros(m)
-            scale[has] = np.fmax.reduceat(mag, offsets[:-1][has])
-            noisy_fd &= noise > 16.0 * np.finfo(np.float64).eps * scale
+    swamped = st["fd_swamped"] & (method in ("fd", "auto"))
+    noisy = (
+        f"with noise of up to {np.nanmax(noise, initial=0):.3g} position units, finite "
+        "differences give accelerations that are mostly noise (their standard error is over "
+        "30 % of the typical |r″|); "
+        + (
+            "use method='smooth' or 'local'"
+            if method == "fd"
+            else f"method='auto' used {used!r} for every track of this call (choose with method=)"
+        )
+    )
     mostly = (st["flagged"] > MOSTLY_FLAGGED) & (counts >= 20)
     return [
         (
@@ -124,12 +117,7 @@ def _findings(
             "position units per time unit, faster than anything tracked in metres per second; "
             "check the units (millimetres given as metres, or milliseconds as seconds?)",
         ),
-        (
-            noisy_fd,
-            f"with noise of up to {np.nanmax(noise, initial=0):.3g} position units, finite "
-            "differences give accelerations that are mostly noise (their standard error is over "
-            "30 % of the typical |r″|); use method='smooth' or 'local'",
-        ),
+        (swamped, noisy),
         (
             mostly,
             "more than half of the samples are flagged VAGUE or GAP; the figures of these tracks "

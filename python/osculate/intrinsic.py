@@ -2,28 +2,27 @@
 
 from __future__ import annotations
 
-from collections.abc import Sequence
+from collections.abc import Mapping, Sequence
 from typing import TYPE_CHECKING, Any, Optional, Union
 
 import numpy as np
 import numpy.typing as npt
 
 from . import _core
-from ._estimators import EstimatorOptions, fit_core
-from ._results import OUTPUT_SET, OUTPUTS, Derivatives, Frames, Kinematics, assemble
-from ._stopgo import hold_stops, refit_moving, stop_rows
+from ._estimators import EstimatorOptions
+from ._results import OUTPUT_SET, OUTPUTS, VECTORS, Derivatives, Frames, Kinematics, assemble
 from ._validate import (
-    Grouping,
     as_positions,
     as_real,
     as_times,
     call_kernel,
     group_rows,
     kernel_times,
+    ticks_of,
 )
 from .diagnose import check_tracks
 from .flags import Flag
-from .stops import find_stops, stop_table
+from .stops import kernel_stops
 
 if TYPE_CHECKING:
     pass
@@ -90,6 +89,7 @@ def kinematics(
     max_relative_se: float = 0.25,
     min_stop: float | None = None,
     outputs: Sequence[str] | None = None,
+    out: Mapping[str, np.ndarray] | None = None,
 ) -> Kinematics:
     """Speed, Frenet frame, curvature, torsion and acceleration split of sampled paths.
 
@@ -104,8 +104,16 @@ def kinematics(
         Positions (pandas nullable columns accepted; a missing value is an error naming its
         row). Rows with a NaN or infinite coordinate are flagged INVALID and skipped; their
         neighbours are estimated from the finite rows around them and flagged GAP.
-    method : {"fd", "spline", "smooth", "local"}
+    method : {"fd", "auto", "spline", "smooth", "local"}
         Derivative estimator. ``"fd"``: finite differences on the non-uniform grid (exact data).
+        ``"auto"`` (the default of the per-track tables: summaries, stops, turns, elements):
+        ``"fd"``, unless on some track the noise would make finite-difference accelerations
+        mostly noise (the standard error of the 3-point r″, √6 σ/h², over 30 % of the track's
+        median |r″|, with σ the difference-based noise of the Notes); then ``"smooth"`` for
+        every track of the call, with a :class:`SuspectDataWarning` saying so and ``k.method``
+        telling which was used. It takes ``order`` and the options of ``"smooth"``, each used
+        when that estimator is chosen. Exact and simulated data keep ``"fd"`` (noise at rounding
+        level does not count).
         ``"spline"``: interpolating cubic spline (exact data; r‴ is piecewise constant).
         ``"smooth"``: penalized smoothing spline, λ chosen by generalized cross-validation unless
         ``smoothing`` or ``noise`` is given (noisy data). ``"local"``: local polynomial least
@@ -195,6 +203,12 @@ def kinematics(
         the writing of the others (most of the cost: 249 bytes per planar sample for all);
         ``flags``, ``t``, ``position`` and ``stops`` are always there, and standard errors come
         with their quantities. Reading a quantity not asked for raises AttributeError.
+    out : mapping of str to ndarray, optional
+        Arrays to write some of the quantities asked for into, in place, instead of new ones:
+        writeable C-contiguous float64 of shape (n,), (n, dim) or (n, 3) for the binormal. For
+        callers who loop over same-sized batches: memory already in use costs no page faults
+        (fresh output pages cost the operating system one each). The result's attributes are
+        these arrays.
 
     Returns
     -------
@@ -310,73 +324,75 @@ def kinematics(
         raise _core.InputError(
             "method: 'linear' has no curvature; use it with resample() or fit() only"
         )
-    if frame not in ("frenet", "rotation-minimizing"):
-        raise _core.InputError(f"frame: expected 'frenet' or 'rotation-minimizing', got {frame!r}")
-    if initial is not None and frame != "rotation-minimizing":
-        raise _core.InputError("initial: only applies to frame='rotation-minimizing'")
     if method == "local" and opts.degree < 3:
         raise _core.InputError(
             f"degree: torsion and jerk need r‴, so local fits need degree >= 3, got {opts.degree}"
         )
-    kind = _uncertainty(uncertainty, method)
+    # Standard errors: for "auto" the fd choice decides the kinematics option, the fallback fit
+    # keeps its covariance unless they are refused.
+    kind = _uncertainty(uncertainty, "fd" if method == "auto" else method)
+    fit_kind = _uncertainty(uncertainty, "smooth") if method == "auto" else kind
     tt = as_times(t)
     x = as_positions(positions, len(tt))
     g = group_rows(len(tt), tracks, offsets, tt)
     asked = _outputs(outputs)
-    rmf = frame == "rotation-minimizing"
     options = {
         **_thresholds(min_speed, min_curvature, significance, max_relative_se),
         "gap_factor": as_real("gap_factor", gap_factor),
         "up": up_vector(up, x.shape[1]),
         "uncertainty": kind is not None,
-        # The rotation-minimizing frame is carried along the tangents and the (fitted) positions.
-        "outputs": None
-        if asked is None and not rmf
-        else sorted(
-            {*(OUTPUTS if asked is None else asked), "position_se"}
-            | ({"tangent", "normal", "position"} if rmf else set())
-        ),
+        "outputs": None if asked is None else sorted({*asked, "position_se"}),
     }
-    tk, xk = kernel_times(t, tt, g)[0], g.to_kernel(x)
-    if method == "fd":
-        raw = call_kernel(
-            g, _core.fd_kinematics, tk, xk, g.offsets, order=opts.order, options=options
-        )
-        info = {"noise": raw["noise"]}
-    else:
-        fitted = fit_core(opts, g, tk, xk, uncertainty=kind)
-        raw = call_kernel(g, fitted.kinematics, options=options)
-        info = fitted.info()
-    check_tracks(tk, xk, g.offsets, g.names, raw["flags"], raw["noise"], method)
-    first, last, code = _find_stops(raw, tk, xk, g, min_stop)
-    held = stop_rows(first, last, len(tk))
-    if method in ("smooth", "local"):
-        refit_moving(opts, kind, options, tk, xk, g, raw, info, held)
-    hold_stops(raw, held)
-    if rmf:
-        # The frame is carried along the fitted path (the samples themselves for "fd").
-        start = None if initial is None else vector3("initial", initial, x.shape[1])
-        raw.update(
-            call_kernel(
-                g,
-                _core.rotation_minimizing,
-                raw.pop("position"),
-                raw["tangent"],
-                raw["normal"],
-                g.offsets,
-                initial=start,
-            )
-        )
+    estimator = opts.kernel_options(x.shape[1], uncertainty=fit_kind)
+    # Integer times are made relative per track (exact differences) in kernel order; the kernel
+    # gathers everything else into its order itself.
+    exact = ticks_of(t) is not None
+    raw = call_kernel(
+        g,
+        _core.kinematics,
+        kernel_times(t, tt, g)[0] if exact else tt,
+        x,
+        g.offsets,
+        estimator=estimator,
+        options=options,
+        min_stop=None if min_stop is None else as_real("min_stop", min_stop),
+        frame=frame,
+        initial=None if initial is None else vector3("initial", initial, x.shape[1]),
+        weights=None if opts.weights is None else opts.kernel_weights(len(tt)),
+        order=None if g.order is None else g.order.view(np.uintp),
+        inverse=None if g.inverse is None else g.inverse.view(np.uintp),
+        t_kernel=exact,
+        out=_out_buffers(out, len(tt), x.shape[1]),
+    )
+    used = raw.pop("method")
+    check_tracks(g.names, raw.pop("stats"), raw["noise"], method, used)
+    if used != opts.method:
+        opts = EstimatorOptions(used)
+    info = raw.pop("info", None) or {"noise": raw["noise"]}
     grouped = tracks is not None or offsets is not None
     labels = g.labels if grouped else np.zeros(1, np.int64)
-    stops = stop_table(g.to_kernel(tt), xk, first, last, code, labels, g.order)
-    del tk, xk  # the kernel-order copies of the inputs are not needed while outputs are ordered
-    if asked is not None:
-        for name in set(raw) - {*asked, "flags", "se", "normal", "binormal", "twist", "noise"}:
-            del raw[name]  # asked for by the frame, not by the caller
-        if "normal" not in asked:
-            raw.pop("normal", None), raw.pop("binormal", None)
-    return assemble(tt, x, g, raw, opts, info, grouped=grouped, frame=frame, stops=stops)
+    stops = kernel_stops(tt, raw.pop("stops"), labels, g.order)
+    return assemble(
+        tt, x, g, raw, opts, info, grouped=grouped, frame=frame, stops=stops, kernel_order=False
+    )
+
+
+def _out_buffers(
+    out: Mapping[str, np.ndarray] | None, n: int, dim: int
+) -> dict[str, np.ndarray] | None:
+    """Check the shapes of the caller's output buffers (dtype, layout and names: the kernel)."""
+    if out is None:
+        return None
+    if not isinstance(out, Mapping):
+        raise TypeError(f"out: expected a mapping of output names to arrays, got {type(out)}")
+    for name, a in out.items():
+        if not isinstance(a, np.ndarray):
+            raise TypeError(f"out: {name!r} must be a NumPy array, got {type(a).__name__}")
+        width = 3 if name == "binormal" else dim if name in VECTORS else 1
+        shape = (n,) if width == 1 else (n, width)
+        if a.shape != shape:
+            raise _core.InputError(f"out: {name!r} has shape {a.shape}, expected {shape}")
+    return dict(out)
 
 
 def _outputs(outputs: Sequence[str] | None) -> tuple[str, ...] | None:
@@ -441,15 +457,6 @@ def _thresholds(
         "significance": as_real("significance", significance),
         "max_relative_se": as_real("max_relative_se", max_relative_se),
     }
-
-
-def _find_stops(
-    raw: dict[str, Any], t: F64, x: F64, g: Grouping, min_stop: float | None
-) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """Stop intervals (kernel rows) from the flags of ``raw`` (the kernel checks ``min_stop``)."""
-    if min_stop is not None:
-        min_stop = as_real("min_stop", min_stop)
-    return find_stops(t, x, raw["flags"], g.offsets, raw["noise"], min_stop)
 
 
 def derivatives(

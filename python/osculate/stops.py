@@ -10,7 +10,7 @@ import numpy.typing as npt
 
 from . import _core
 
-__all__ = ["Stops", "find_stops", "stop_table"]
+__all__ = ["Stops", "find_stops", "kernel_stops", "stop_table"]
 
 
 @dataclasses.dataclass(frozen=True)
@@ -168,6 +168,34 @@ def stop_table(
         first_row=np.asarray(caller(first), np.int64),
         last_row=np.asarray(caller(last), np.int64),
         track_index=code.astype(np.int64),
+    )
+
+
+def kernel_stops(
+    t: np.ndarray, found: dict[str, np.ndarray], labels: np.ndarray, order: np.ndarray | None
+) -> Stops:
+    """Return the stops the kinematics kernel found as a table.
+
+    ``found`` holds kernel rows ``first`` and ``last``, track codes ``track`` and mean positions
+    ``centre``; ``t`` is on the caller's rows and ``order`` maps kernel → caller rows (None: the
+    same).
+    """
+    first, last, code = found["first"], found["last"], found["track"]
+    if len(first) == 0:
+        return Stops.none(found["centre"].shape[1])
+    first_row = first if order is None else order[first].astype(np.int64)
+    last_row = last if order is None else order[last].astype(np.int64)
+    start, end = t[first_row], t[last_row]
+    return Stops(
+        track=labels[code],
+        start=start,
+        end=end,
+        duration=end - start,
+        position=found["centre"],
+        samples=last - first + 1,
+        first_row=first_row,
+        last_row=last_row,
+        track_index=code,
     )
 
 

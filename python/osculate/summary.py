@@ -134,5 +134,8 @@ def _summarize(k: Kinematics) -> dict[str, np.ndarray]:
     out["flagged"] = figures["flagged"]
     info = dict(k.fit_info or {})
     out["noise"] = info.pop("noise", np.full(m, np.nan))
-    out.update(info)
-    return out
+    # The documented order (COLUMNS), then the estimator's own choices.
+    ordered = {"track": out.pop("track"), **{c: out.pop(c) for c in COLUMNS if c in out}}
+    ordered.update(out)
+    ordered.update(info)
+    return ordered

@@ -13,7 +13,8 @@ pyo3::create_exception!(
     "Input that osculate cannot use. Attributes `argument`, `track` and `row` locate the problem."
 );
 
-fn to_pyerr(py: Python<'_>, e: KernelError) -> PyErr {
+/// The Python exception of a kernel error (`InputError` with its location, or `MemoryError`).
+pub(crate) fn to_pyerr(py: Python<'_>, e: KernelError) -> PyErr {
     if let KernelError::OutOfMemory { .. } = e {
         return PyMemoryError::new_err(e.to_string());
     }

@@ -201,29 +201,3 @@ impl FittedPaths {
         Ok(out)
     }
 }
-
-/// Rotation-minimizing frames from positions, tangents and Frenet normals (kernel order).
-#[pyfunction]
-#[pyo3(signature = (positions, tangent, frenet_normal, offsets, *, initial=None))]
-pub fn rotation_minimizing<'py>(
-    py: Python<'py>,
-    positions: PyReadonlyArray2<'py, f64>,
-    tangent: PyReadonlyArray2<'py, f64>,
-    frenet_normal: PyReadonlyArray2<'py, f64>,
-    offsets: PyReadonlyArray1<'py, i64>,
-    initial: Option<[f64; 3]>,
-) -> PyResult<Bound<'py, PyDict>> {
-    let d = positions.shape()[1];
-    let x = contiguous("positions", positions.as_slice())?;
-    let t = contiguous("tangent", tangent.as_slice())?;
-    let nf = contiguous("frenet_normal", frenet_normal.as_slice())?;
-    let off = contiguous("offsets", offsets.as_slice())?;
-    let r = detached(py, || {
-        crate::rmf::rotation_minimizing(x, t, nf, d, off, initial)
-    })?;
-    let out = PyDict::new(py);
-    out.set_item("normal", rows(py, r.normal, d)?)?;
-    out.set_item("binormal", rows(py, r.binormal, 3)?)?;
-    out.set_item("twist", r.twist.into_pyarray(py))?;
-    Ok(out)
-}

@@ -1,10 +1,15 @@
-//! Bindings of the finite-difference kinematics and polyline arc length kernels.
+//! Bindings of the kinematics pipeline (one call: estimate, stops, frame, caller order) and of
+//! polyline arc length.
 
-use super::error::{contiguous, detached, rows};
+use super::error::{contiguous, detached, rows, to_pyerr};
 use crate::diff::FdOrder;
-use crate::kinematics::{kinematics, Kinematics, Options, Outputs};
+use crate::kinematics::pipeline::{run_in, Finished, Frame, Request};
+use crate::kinematics::{Kinematics, Lend, Options, Outputs};
 use crate::KernelError;
-use numpy::{IntoPyArray, PyArray1, PyReadonlyArray1, PyReadonlyArray2, PyUntypedArrayMethods};
+use numpy::{
+    IntoPyArray, PyArray1, PyReadonlyArray1, PyReadonlyArray2, PyReadwriteArrayDyn,
+    PyUntypedArrayMethods,
+};
 use pyo3::exceptions::PyTypeError;
 use pyo3::prelude::*;
 use pyo3::types::PyDict;
@@ -25,11 +30,21 @@ fn column<'py>(
 
 /// The columns asked for (`outputs`), the flags, the noise per track and, when computed, the
 /// standard errors of the columns asked for.
-pub(crate) fn to_dict(
-    py: Python<'_>,
-    k: Kinematics,
+pub(crate) fn to_dict<'py>(
+    py: Python<'py>,
+    k: Kinematics<'_>,
     outputs: Outputs,
-) -> PyResult<Bound<'_, PyDict>> {
+) -> PyResult<Bound<'py, PyDict>> {
+    to_dict_lent(py, k, outputs, &[])
+}
+
+/// [`to_dict`] where the columns written into lent buffers are the caller's arrays `lent`.
+fn to_dict_lent<'py>(
+    py: Python<'py>,
+    k: Kinematics<'_>,
+    outputs: Outputs,
+    lent: &[(&'static str, Bound<'py, PyAny>)],
+) -> PyResult<Bound<'py, PyDict>> {
     let (n, d) = (k.n, k.dim);
     let out = PyDict::new(py);
     let vectors = [
@@ -54,7 +69,14 @@ pub(crate) fn to_dict(
     ];
     for (name, v, w) in vectors {
         if outputs.has(name) {
-            out.set_item(name, column(py, v, n, w)?)?;
+            match v.into_vec() {
+                Some(v) => out.set_item(name, column(py, v, n, w)?)?,
+                None => {
+                    if let Some((_, a)) = lent.iter().find(|(l, _)| *l == name) {
+                        out.set_item(name, a)?;
+                    }
+                }
+            }
         }
     }
     out.set_item("flags", k.flags.into_pyarray(py))?;
@@ -81,7 +103,7 @@ pub(crate) fn to_dict(
                 name
             };
             if outputs.has(asked) || (name == "curvature" && outputs.has("signed_curvature")) {
-                se.set_item(name, v.into_pyarray(py))?;
+                se.set_item(name, v.into_vec().unwrap_or_default().into_pyarray(py))?;
             }
         }
         out.set_item("se", se)?;
@@ -134,35 +156,6 @@ pub(crate) fn kinematics_options(
     Ok(o)
 }
 
-/// Finite-difference kinematics of concatenated tracks (validated arrays from the Python layer;
-/// `options` as in [`kinematics_options`]).
-#[pyfunction]
-#[pyo3(signature = (t, positions, offsets, *, order, options=None))]
-pub fn fd_kinematics<'py>(
-    py: Python<'py>,
-    t: PyReadonlyArray1<'py, f64>,
-    positions: PyReadonlyArray2<'py, f64>,
-    offsets: PyReadonlyArray1<'py, i64>,
-    order: i64,
-    options: Option<Bound<'py, PyDict>>,
-) -> PyResult<Bound<'py, PyDict>> {
-    let dim = positions.shape()[1];
-    let (t, x, off) = (
-        contiguous("t", t.as_slice())?,
-        contiguous("positions", positions.as_slice())?,
-        contiguous("offsets", offsets.as_slice())?,
-    );
-    let order = detached(py, || {
-        FdOrder::from_int(order).ok_or_else(|| KernelError::Option {
-            argument: "order",
-            detail: format!("must be 2 or 4, got {order}"),
-        })
-    })?;
-    let opts = kinematics_options(py, options.as_ref(), order)?;
-    let result = detached(py, || kinematics(t, x, dim, off, &opts))?;
-    to_dict(py, result, opts.outputs)
-}
-
 /// Cumulative polyline length per track, after checking the times.
 #[pyfunction]
 pub fn polyline_arclength<'py>(
@@ -183,27 +176,250 @@ pub fn polyline_arclength<'py>(
     Ok(s.into_pyarray(py))
 }
 
-/// Per-track medians behind the data checks (kernel order; see `osculate.diagnose`).
+/// Per-track numbers as a dictionary of arrays.
+fn columns_dict<'py>(py: Python<'py>, cols: Vec<(&str, Vec<f64>)>) -> PyResult<Bound<'py, PyDict>> {
+    let out = PyDict::new(py);
+    for (name, v) in cols {
+        out.set_item(name, v.into_pyarray(py))?;
+    }
+    Ok(out)
+}
+
+/// The whole kinematics of concatenated tracks in one call (see
+/// `crate::kinematics::pipeline::run`): `estimator` a dict of the estimator options (`method`
+/// "fd", "auto" or a fitting method, and that method's options), `options` as in
+/// [`kinematics_options`], `min_stop` (None: default; inf: no stops), `frame` "frenet" or
+/// "rotation-minimizing" with `initial`, and `weights`. `order` (kernel row i is caller row
+/// `order[i]`) and `inverse` (its inverse) relate the caller's rows to the kernel's, None when
+/// they agree: positions, weights and — unless `t_kernel` says they already are — times are
+/// gathered into kernel order here, and per-row results come back on the caller's rows. Stop
+/// rows stay kernel rows.
 #[pyfunction]
-pub fn track_stats<'py>(
+#[pyo3(name = "kinematics", signature = (t, positions, offsets, *, estimator, options=None,
+    min_stop=None, frame="frenet", initial=None, weights=None, order=None, inverse=None,
+    t_kernel=false, out=None))]
+#[allow(clippy::too_many_arguments)]
+pub fn kinematics_call<'py>(
     py: Python<'py>,
     t: PyReadonlyArray1<'py, f64>,
     positions: PyReadonlyArray2<'py, f64>,
     offsets: PyReadonlyArray1<'py, i64>,
-    flags: PyReadonlyArray1<'py, u8>,
+    estimator: Bound<'py, PyDict>,
+    options: Option<Bound<'py, PyDict>>,
+    min_stop: Option<f64>,
+    frame: &str,
+    initial: Option<[f64; 3]>,
+    weights: Option<PyReadonlyArray1<'py, f64>>,
+    order: Option<PyReadonlyArray1<'py, usize>>,
+    inverse: Option<PyReadonlyArray1<'py, usize>>,
+    t_kernel: bool,
+    out: Option<Bound<'py, PyDict>>,
 ) -> PyResult<Bound<'py, PyDict>> {
     let dim = positions.shape()[1];
-    let t = contiguous("t", t.as_slice())?;
-    let x = contiguous("positions", positions.as_slice())?;
-    let off = contiguous("offsets", offsets.as_slice())?;
-    let f = contiguous("flags", flags.as_slice())?;
-    let s = detached(py, || crate::diagnose::track_stats(t, x, dim, off, f))?;
-    let out = PyDict::new(py);
-    out.set_item("step", s.step.into_pyarray(py))?;
-    out.set_item("back", s.back.into_pyarray(py))?;
-    out.set_item("speed", s.speed.into_pyarray(py))?;
-    out.set_item("dt", s.dt.into_pyarray(py))?;
-    out.set_item("accel", s.accel.into_pyarray(py))?;
-    out.set_item("flagged", s.flagged.into_pyarray(py))?;
+    let (t, x, off) = (
+        contiguous("t", t.as_slice())?,
+        contiguous("positions", positions.as_slice())?,
+        contiguous("offsets", offsets.as_slice())?,
+    );
+    let w = match &weights {
+        Some(w) => Some(contiguous("weights", w.as_slice())?),
+        None => None,
+    };
+    let inv = match &inverse {
+        Some(i) => Some(contiguous("inverse", i.as_slice())?),
+        None => None,
+    };
+    let ord = match &order {
+        Some(i) => Some(contiguous("order", i.as_slice())?),
+        None => None,
+    };
+    let est = estimator_tmp(py, &estimator)?;
+    let opts = kinematics_options(py, options.as_ref(), FdOrder::Two)?;
+    // Caller's buffers for some outputs, borrowed writable for the whole call.
+    let mut lent: Vec<(&'static str, Bound<'py, PyAny>)> = Vec::new();
+    let mut guards: Vec<(&'static str, PyReadwriteArrayDyn<'py, f64>)> = Vec::new();
+    for (key, value) in out.iter().flat_map(|d| d.iter()) {
+        let key: String = key.extract()?;
+        let name = Outputs::NAMES
+            .iter()
+            .copied()
+            .find(|n| *n == key && *n != "position" && *n != "position_se")
+            .filter(|n| opts.outputs.has(n))
+            .ok_or_else(|| {
+                to_pyerr(
+                    py,
+                    KernelError::Option {
+                        argument: "out",
+                        detail: format!("{key:?} is not one of the outputs asked for"),
+                    },
+                )
+            })?;
+        let guard = value
+            .extract::<PyReadwriteArrayDyn<'py, f64>>()
+            .map_err(|_| {
+                PyTypeError::new_err(format!(
+                    "out: {key:?} must be a writeable float64 NumPy array not in use elsewhere"
+                ))
+            })?;
+        lent.push((name, value.clone()));
+        guards.push((name, guard));
+    }
+    let mut lend = Lend::default();
+    for (name, g) in guards.iter_mut() {
+        let buf = g.as_slice_mut().map_err(|_| {
+            PyTypeError::new_err(format!("out: {name:?} must be a C-contiguous array"))
+        })?;
+        lend.lend(name, buf);
+    }
+    let frame = detached(py, || Frame::from_options(frame, initial))?;
+    let rmf = matches!(frame, Frame::RotationMinimizing(_));
+    let (f, twist) = detached(py, || {
+        let gather = |a: &[f64], width: usize| match ord {
+            Some(o) => crate::grouping::take_rows(a, width, o).map(Some),
+            None => Ok(None),
+        };
+        let tk = if t_kernel { None } else { gather(t, 1)? };
+        let xk = gather(x, dim)?;
+        let wk = match w {
+            Some(w) => gather(w, 1)?,
+            None => None,
+        };
+        let request = Request {
+            estimator: est,
+            weights: wk.as_deref().or(w),
+            options: opts,
+            min_stop,
+            frame,
+        };
+        let (t, x) = (tk.as_deref().unwrap_or(t), xk.as_deref().unwrap_or(x));
+        // Lent buffers take the kernel's writes directly when no reordering follows.
+        let (mut f, mut lend) = match inv {
+            None => (run_in(t, x, dim, off, &request, lend)?, Lend::default()),
+            Some(_) => (run_in(t, x, dim, off, &request, Lend::default())?, lend),
+        };
+        drop((tk, xk, wk));
+        let mut twist = std::mem::take(&mut f.twist);
+        if let Some(inv) = inv {
+            f.k = f.k.into_rows_in(inv, &mut lend)?;
+            if rmf {
+                twist = crate::grouping::take_rows(&twist, 1, inv)?;
+            }
+        }
+        Ok((f, twist))
+    })?;
+    let Finished {
+        k,
+        stops: stop_rows,
+        stop_centres,
+        info: fit_info,
+        stats: s,
+        fd_swamped,
+        method,
+        ..
+    } = f;
+    let out = to_dict_lent(py, k, opts.outputs, &lent)?;
+    if rmf {
+        out.set_item("twist", twist.into_pyarray(py))?;
+    }
+    out.set_item("method", method)?;
+    let to_i64 = |v: &[usize]| v.iter().map(|&r| r as i64).collect::<Vec<i64>>();
+    let stops = PyDict::new(py);
+    stops.set_item("first", to_i64(&stop_rows.first).into_pyarray(py))?;
+    stops.set_item("last", to_i64(&stop_rows.last).into_pyarray(py))?;
+    stops.set_item("track", to_i64(&stop_rows.track).into_pyarray(py))?;
+    stops.set_item("centre", rows(py, stop_centres, dim)?)?;
+    out.set_item("stops", stops)?;
+    let stats = columns_dict(
+        py,
+        vec![
+            ("step", s.step),
+            ("back", s.back),
+            ("speed", s.speed),
+            ("dt", s.dt),
+            ("accel", s.accel),
+            ("flagged", s.flagged),
+        ],
+    )?;
+    stats.set_item("fd_swamped", fd_swamped.into_pyarray(py))?;
+    let count: Vec<i64> = off.windows(2).map(|w| w[1] - w[0]).collect();
+    stats.set_item("count", count.into_pyarray(py))?;
+    out.set_item("stats", stats)?;
+    if !fit_info.is_empty() {
+        let col = |g: fn(&crate::fit::FitInfo) -> f64| fit_info.iter().map(g).collect::<Vec<_>>();
+        let info = columns_dict(
+            py,
+            vec![
+                ("smoothing", col(|i| i.smoothing)),
+                ("edf", col(|i| i.edf)),
+                ("criterion", col(|i| i.criterion)),
+                ("window", col(|i| i.window)),
+                ("length_error", col(|i| i.length_error)),
+                ("noise", col(|i| i.noise)),
+                ("jerk_smoothing", col(|i| i.jerk_smoothing)),
+                ("bandwidth", col(|i| i.bandwidth)),
+            ],
+        )?;
+        out.set_item("info", info)?;
+    }
     Ok(out)
+}
+
+/// TEMPORARY: estimator options from a dict (replaced by the estimator conversion of bindings/fit.rs).
+fn estimator_tmp(
+    py: Python<'_>,
+    d: &Bound<'_, PyDict>,
+) -> PyResult<crate::kinematics::pipeline::Estimator> {
+    use crate::fit::{Method, MethodOptions};
+    use crate::kinematics::pipeline::Estimator;
+    let get = |k: &str| d.get_item(k).ok().flatten().filter(|v| !v.is_none());
+    let name: String = get("method")
+        .map(|v| v.extract())
+        .transpose()?
+        .unwrap_or_else(|| "fd".into());
+    let order: i64 = get("order").map(|v| v.extract()).transpose()?.unwrap_or(2);
+    let order = detached(py, || {
+        FdOrder::from_int(order).ok_or_else(|| KernelError::Option {
+            argument: "order",
+            detail: format!("must be 2 or 4, got {order}"),
+        })
+    })?;
+    if name == "fd" {
+        return Ok(Estimator::Fd(order));
+    }
+    let unc: Option<String> = get("uncertainty").map(|v| v.extract()).transpose()?;
+    let bcv: Option<Vec<Vec<f64>>> = get("bc_velocity").map(|v| v.extract()).transpose()?;
+    let (bc_start, bc_end) = match bcv {
+        Some(v) if v.len() == 2 => (Some(v[0].clone()), Some(v[1].clone())),
+        _ => (None, None),
+    };
+    let bc: String = get("bc")
+        .map(|v| v.extract())
+        .transpose()?
+        .unwrap_or_else(|| "not-a-knot".into());
+    let auto = name == "auto";
+    let o = MethodOptions {
+        name: if auto { "smooth" } else { name.as_str() },
+        bc: bc.as_str(),
+        bc_start,
+        bc_end,
+        degree: get("degree")
+            .map(|v| v.extract())
+            .transpose()?
+            .unwrap_or(if name == "local" { 4 } else { 5 }),
+        smoothing: get("smoothing").map(|v| v.extract()).transpose()?,
+        noise: get("noise").map(|v| v.extract()).transpose()?,
+        window: get("window").map(|v| v.extract()).transpose()?,
+        window_span: get("window_span").map(|v| v.extract()).transpose()?,
+        derivative: get("derivative")
+            .map(|v| v.extract())
+            .transpose()?
+            .unwrap_or(0),
+        uncertainty: unc.as_deref(),
+    };
+    let m = detached(py, || Method::from_options(o))?;
+    Ok(if auto {
+        Estimator::Auto { order, fallback: m }
+    } else {
+        Estimator::Fit(m)
+    })
 }

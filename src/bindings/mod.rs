@@ -27,9 +27,8 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add("InputError", m.py().get_type::<InputError>())?;
     m.add_function(wrap_pyfunction!(grouping::group_rows, m)?)?;
     m.add_function(wrap_pyfunction!(grouping::take_rows, m)?)?;
-    m.add_function(wrap_pyfunction!(kinematics::fd_kinematics, m)?)?;
+    m.add_function(wrap_pyfunction!(kinematics::kinematics_call, m)?)?;
     m.add_function(wrap_pyfunction!(kinematics::polyline_arclength, m)?)?;
-    m.add_function(wrap_pyfunction!(kinematics::track_stats, m)?)?;
     m.add_function(wrap_pyfunction!(summary::summarize, m)?)?;
     m.add_function(wrap_pyfunction!(stops::find_stops, m)?)?;
     m.add_function(wrap_pyfunction!(elements::find_elements, m)?)?;
@@ -38,7 +37,6 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(turns::find_speed_changes, m)?)?;
     m.add_function(wrap_pyfunction!(fit::fit_paths, m)?)?;
     m.add_class::<fit::FittedPaths>()?;
-    m.add_function(wrap_pyfunction!(fit::rotation_minimizing, m)?)?;
     m.add_function(wrap_pyfunction!(geodesy::geodetic_to_enu, m)?)?;
     m.add_function(wrap_pyfunction!(geodesy::enu_to_geodetic, m)?)?;
     m.add_function(wrap_pyfunction!(line_integral::line_integral_sampled, m)?)?;

@@ -5,7 +5,7 @@
 //! flagged GAP, so no estimate is silently poisoned and none silently bridges a hole.
 
 use super::emit::Sample;
-use super::{accumulate_arclength, check_options, Kinematics, Options, Rows};
+use super::{accumulate_arclength, check_options, Kinematics, Lend, Options, Rows};
 use crate::batch::{self, partition, plan_jobs, track_rows};
 use crate::diff::{derivatives_with, reach};
 use crate::error::{try_collect, KernelError, Result};
@@ -44,10 +44,22 @@ pub fn kinematics(
     dim: usize,
     offsets: &[i64],
     opts: &Options,
-) -> Result<Kinematics> {
+) -> Result<Kinematics<'static>> {
+    kinematics_in(t, x, dim, offsets, opts, Lend::default())
+}
+
+/// [`kinematics`] writing the columns `lend` has buffers for into them, in place.
+pub fn kinematics_in<'a>(
+    t: &[f64],
+    x: &[f64],
+    dim: usize,
+    offsets: &[i64],
+    opts: &Options,
+    lend: Lend<'a>,
+) -> Result<Kinematics<'a>> {
     match dim {
-        2 => run::<2>(t, x, offsets, opts),
-        3 => run::<3>(t, x, offsets, opts),
+        2 => run::<2>(t, x, offsets, opts, lend),
+        3 => run::<3>(t, x, offsets, opts, lend),
         _ => Err(KernelError::Shape {
             argument: "positions",
             detail: format!("must have 2 or 3 columns, got {dim}"),
@@ -55,12 +67,13 @@ pub fn kinematics(
     }
 }
 
-fn run<const D: usize>(
+fn run<'a, const D: usize>(
     t: &[f64],
     x: &[f64],
     offsets: &[i64],
     opts: &Options,
-) -> Result<Kinematics> {
+    mut lend: Lend<'a>,
+) -> Result<Kinematics<'a>> {
     let n = t.len();
     if x.len() != n * D {
         return Err(KernelError::Shape {
@@ -95,7 +108,8 @@ fn run<const D: usize>(
         })
         .collect::<Result<Vec<_>>>()?;
 
-    let mut out = Kinematics::alloc_zeroed(n, D, opts.uncertainty, opts.outputs)?;
+    // Every row is written (emit or fill_nan): zeroed pages or lent buffers need no filling.
+    let mut out = Kinematics::alloc_in(n, D, opts.uncertainty, opts.outputs, &mut lend, None)?;
     let jobs = plan_jobs(&offsets, |k| prep[k].has_invalid);
     let parts = partition(out.rows(), jobs.iter().map(|j| j.rows.len()));
     jobs.par_iter()

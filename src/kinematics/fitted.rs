@@ -2,7 +2,7 @@
 //! at any time.
 
 use super::emit::Sample;
-use super::{accumulate_arclength, check_options, Kinematics, Options};
+use super::{accumulate_arclength, check_options, Kinematics, Lend, Options};
 use crate::batch::{self, partition};
 use crate::error::{KernelError, Result};
 use crate::fit::{Fits, TrackFit};
@@ -29,10 +29,15 @@ use rayon::prelude::*;
 /// let k = of_fits(&fits, &Options::default()).unwrap();
 /// assert!((k.curvature[30] - 0.5).abs() < 1e-3 && (k.speed[30] - 2.0).abs() < 1e-5);
 /// ```
-pub fn of_fits(fits: &Fits, opts: &Options) -> Result<Kinematics> {
+pub fn of_fits(fits: &Fits, opts: &Options) -> Result<Kinematics<'static>> {
+    of_fits_in(fits, opts, Lend::default())
+}
+
+/// [`of_fits`] writing the columns `lend` has buffers for into them, in place.
+pub fn of_fits_in<'a>(fits: &Fits, opts: &Options, lend: Lend<'a>) -> Result<Kinematics<'a>> {
     match fits.dim {
-        2 => of_fits_dim::<2>(fits, opts),
-        3 => of_fits_dim::<3>(fits, opts),
+        2 => of_fits_dim::<2>(fits, opts, lend),
+        3 => of_fits_dim::<3>(fits, opts, lend),
         d => Err(KernelError::Shape {
             argument: "positions",
             detail: format!("must have 2 or 3 columns, got {d}"),
@@ -40,14 +45,18 @@ pub fn of_fits(fits: &Fits, opts: &Options) -> Result<Kinematics> {
     }
 }
 
-fn of_fits_dim<const D: usize>(fits: &Fits, opts: &Options) -> Result<Kinematics> {
+fn of_fits_dim<'a, const D: usize>(
+    fits: &Fits,
+    opts: &Options,
+    mut lend: Lend<'a>,
+) -> Result<Kinematics<'a>> {
     let up = check_options(opts)?;
     let up = if D == 2 { Some(Vector3::z()) } else { up };
     let offsets = &fits.offsets;
     let n = offsets[offsets.len() - 1];
     let m = offsets.len() - 1;
     let se = opts.uncertainty && fits.tracks.iter().any(|f| f.gram(0).is_some());
-    let mut out = Kinematics::alloc(n, D, se, opts.outputs)?;
+    let mut out = Kinematics::alloc_in(n, D, se, opts.outputs, &mut lend, Some(f64::NAN))?;
     let parts = partition(out.rows(), (0..m).map(|k| offsets[k + 1] - offsets[k]));
     parts.into_par_iter().enumerate().for_each(|(k, mut rows)| {
         let fit = &fits.tracks[k];
@@ -126,7 +135,7 @@ pub fn of_fits_at(
     t: &[f64],
     query_offsets: &[i64],
     opts: &Options,
-) -> Result<Kinematics> {
+) -> Result<Kinematics<'static>> {
     let q = batch::check_query_offsets(query_offsets, t.len(), fits.tracks.len())?;
     match fits.dim {
         2 => of_fits_at_dim::<2>(fits, t, &q, opts),
@@ -139,7 +148,7 @@ fn of_fits_at_dim<const D: usize>(
     t: &[f64],
     q: &[usize],
     opts: &Options,
-) -> Result<Kinematics> {
+) -> Result<Kinematics<'static>> {
     let up = check_options(opts)?;
     let up = if D == 2 { Some(Vector3::z()) } else { up };
     let m = q.len() - 1;

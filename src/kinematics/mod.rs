@@ -9,14 +9,16 @@
 mod emit;
 pub mod fd;
 pub mod fitted;
+pub mod pipeline;
 
-pub use fd::kinematics;
-pub use fitted::{of_fits, of_fits_at};
+pub use fd::{kinematics, kinematics_in};
+pub use fitted::{of_fits, of_fits_at, of_fits_in};
 
 use crate::batch::{partition, SplitRows};
 use crate::diff::FdOrder;
 use crate::error::{try_filled, try_zeroed, KernelError, Result};
-use crate::frame::Thresholds;
+use crate::frame::{flag, Thresholds};
+use crate::grouping::{gather_rows, take_rows};
 use crate::uncertainty::Significance;
 use nalgebra::Vector3;
 use rayon::prelude::*;
@@ -153,19 +155,117 @@ macro_rules! width {
     };
 }
 
+/// One output column: allocated by the kernel, or a caller's buffer written in place.
+#[derive(Debug, PartialEq)]
+pub enum Col<'a> {
+    /// The kernel's own vector.
+    Owned(Vec<f64>),
+    /// A buffer the caller lent for this call.
+    Lent(&'a mut [f64]),
+}
+
+impl std::ops::Deref for Col<'_> {
+    type Target = [f64];
+    fn deref(&self) -> &[f64] {
+        match self {
+            Col::Owned(v) => v,
+            Col::Lent(s) => s,
+        }
+    }
+}
+
+impl std::ops::DerefMut for Col<'_> {
+    fn deref_mut(&mut self) -> &mut [f64] {
+        match self {
+            Col::Owned(v) => v,
+            Col::Lent(s) => s,
+        }
+    }
+}
+
+impl Col<'_> {
+    /// Replace the values by `v` (copied into a lent buffer, which keeps its place).
+    pub fn set(&mut self, v: Vec<f64>) {
+        match self {
+            Col::Owned(o) => *o = v,
+            Col::Lent(s) => s.copy_from_slice(&v),
+        }
+    }
+
+    /// The kernel's vector (`None` for a lent buffer: the caller has the values already).
+    pub fn into_vec(self) -> Option<Vec<f64>> {
+        match self {
+            Col::Owned(v) => Some(v),
+            Col::Lent(_) => None,
+        }
+    }
+}
+
+/// Buffers a caller lends for some output columns (by field name of [`Kinematics`], e.g.
+/// `"speed"`, `"tangent"`), written in place instead of allocating: a caller who loops reuses
+/// memory that is already mapped (fresh output pages cost the operating system a fault each).
+#[derive(Debug, Default)]
+pub struct Lend<'a> {
+    cols: Vec<(&'static str, &'a mut [f64])>,
+}
+
+impl<'a> Lend<'a> {
+    /// Lend `buf` for column `name`.
+    pub fn lend(&mut self, name: &'static str, buf: &'a mut [f64]) {
+        self.cols.push((name, buf));
+    }
+
+    fn take(&mut self, name: &str) -> Option<&'a mut [f64]> {
+        let i = self.cols.iter().position(|(n, _)| *n == name)?;
+        Some(self.cols.swap_remove(i).1)
+    }
+
+    /// Whether no buffer is lent.
+    pub fn is_empty(&self) -> bool {
+        self.cols.is_empty()
+    }
+}
+
+/// A column of `len` values: a lent buffer (filled with `fill` unless `None`) or a new vector.
+fn column<'a>(
+    lend: &mut Lend<'a>,
+    name: &'static str,
+    len: usize,
+    fill: Option<f64>,
+) -> Result<Col<'a>> {
+    match lend.take(name) {
+        Some(buf) if len > 0 => {
+            if buf.len() != len {
+                return Err(KernelError::Shape {
+                    argument: "out",
+                    detail: format!("{name}: has {} values, expected {len}", buf.len()),
+                });
+            }
+            if let Some(v) = fill {
+                buf.fill(v);
+            }
+            Ok(Col::Lent(buf))
+        }
+        _ => Ok(Col::Owned(match fill {
+            Some(v) => try_filled(len, v)?,
+            None => try_zeroed(len)?,
+        })),
+    }
+}
+
 macro_rules! columns {
     ($($(#[$doc:meta])* $name:ident : $w:ident [$($q:literal),+]),* $(,)?) => {
         /// Kinematics of every row, row-major; vectors have the path's dimension `dim` except the
         /// binormal, which is always 3-D (for planar paths it is (0, 0, ±1)).
-        #[derive(Debug, Clone, PartialEq)]
-        pub struct Kinematics {
+        #[derive(Debug, PartialEq)]
+        pub struct Kinematics<'a> {
             /// Rows.
             pub n: usize,
             /// 2 or 3.
             pub dim: usize,
             /// 1 when the standard-error columns (`se_…`) are present, else 0 (they are empty).
             pub se_w: usize,
-            $($(#[$doc])* pub $name: Vec<f64>,)*
+            $($(#[$doc])* pub $name: Col<'a>,)*
             /// Bit flags per row, see [`crate::frame::flag`].
             pub flags: Vec<u8>,
             /// Noise standard deviation per track (position units; NaN where not estimated).
@@ -180,38 +280,96 @@ macro_rules! columns {
             flags: &'a mut [u8],
         }
 
-        impl Kinematics {
+        impl<'a> Kinematics<'a> {
             /// Outputs for `n` rows, filled with NaN; standard-error columns when `se`. Columns
             /// not in `want` are empty.
             pub fn alloc(n: usize, dim: usize, se: bool, want: Outputs) -> Result<Self> {
+                Self::alloc_in(n, dim, se, want, &mut Lend::default(), Some(f64::NAN))
+            }
+
+            /// Outputs for `n` rows in the buffers of `lend` where it has one for the column,
+            /// new vectors elsewhere; every value set to `fill` (left as it is with `None`:
+            /// every row must then be written).
+            pub(crate) fn alloc_in(
+                n: usize,
+                dim: usize,
+                se: bool,
+                want: Outputs,
+                lend: &mut Lend<'a>,
+                fill: Option<f64>,
+            ) -> Result<Self> {
                 let s = usize::from(se);
                 Ok(Kinematics {
                     n,
                     dim,
                     se_w: s,
-                    $($name: try_filled(
+                    $($name: column(
+                        lend,
+                        stringify!($name),
                         n * width!($w, dim, s) * usize::from(want.any(&[$($q),+])),
-                        f64::NAN,
+                        fill,
                     )?,)*
                     flags: try_filled(n, 0u8)?,
                     noise: Vec::new(),
                 })
             }
 
-            /// Outputs for `n` rows on zeroed pages: every row must then be written (by
-            /// `emit` or `fill_nan`), which saves a pass over the memory.
-            fn alloc_zeroed(n: usize, dim: usize, se: bool, want: Outputs) -> Result<Self> {
-                let s = usize::from(se);
-                Ok(Kinematics {
-                    n,
-                    dim,
-                    se_w: s,
-                    $($name: try_zeroed(
-                        n * width!($w, dim, s) * usize::from(want.any(&[$($q),+])),
-                    )?,)*
-                    flags: try_filled(n, 0u8)?,
-                    noise: Vec::new(),
-                })
+            /// Give back the lent buffers (to lend them to another estimate).
+            pub(crate) fn into_lend(self) -> Lend<'a> {
+                let mut lend = Lend::default();
+                $(
+                    if let Col::Lent(buf) = self.$name {
+                        lend.lend(stringify!($name), buf);
+                    }
+                )*
+                lend
+            }
+
+            /// Put the rows in the order `index` (row i becomes row `index[i]` of `self`), one
+            /// column at a time so only one extra column is held: the caller's row order from
+            /// the kernels'. `index` must be a permutation of the rows (checked by the gather).
+            pub fn into_rows(mut self, index: &[usize]) -> Result<Self> {
+                let (d, s) = (self.dim, self.se_w);
+                $(
+                    if !self.$name.is_empty() {
+                        let v = take_rows(&self.$name, width!($w, d, s), index)?;
+                        self.$name.set(v);
+                    }
+                )*
+                self.flags = take_rows(&self.flags, 1, index)?;
+                self.n = index.len();
+                Ok(self)
+            }
+
+            /// [`Kinematics::into_rows`], writing the columns `lend` has buffers for into them.
+            pub fn into_rows_in(mut self, index: &[usize], lend: &mut Lend<'a>) -> Result<Self> {
+                let (d, s) = (self.dim, self.se_w);
+                $(
+                    if !self.$name.is_empty() {
+                        let w = width!($w, d, s);
+                        self.$name = match lend.take(stringify!($name)) {
+                            Some(buf) if buf.len() == index.len() * w => {
+                                gather_rows(&self.$name, w, index, buf)?;
+                                Col::Lent(buf)
+                            }
+                            Some(buf) => {
+                                return Err(KernelError::Shape {
+                                    argument: "out",
+                                    detail: format!(
+                                        "{}: has {} values, expected {}",
+                                        stringify!($name),
+                                        buf.len(),
+                                        index.len() * w
+                                    ),
+                                })
+                            }
+                            None => Col::Owned(take_rows(&self.$name, w, index)?),
+                        };
+                    }
+                )*
+                self.flags = take_rows(&self.flags, 1, index)?;
+                self.n = index.len();
+                Ok(self)
             }
 
             /// Whether column `name` (a field name) was written.
@@ -243,7 +401,7 @@ macro_rules! columns {
             }
 
             /// Copy row `src_row` of `src` into local row `dst_row`.
-            fn copy_row(&mut self, dst_row: usize, src: &Kinematics, src_row: usize) {
+            fn copy_row(&mut self, dst_row: usize, src: &Kinematics<'_>, src_row: usize) {
                 let (d, s) = (self.dim, self.se_w);
                 $(
                     let w = width!($w, d, s) * usize::from(!self.$name.is_empty());
@@ -400,4 +558,70 @@ pub(crate) fn accumulate_arclength(s: &mut [f64], offsets: &[usize]) {
                 *v = acc;
             }
         });
+}
+
+impl Kinematics<'_> {
+    /// Make rows `rows` stand still: velocity, acceleration, jerk, speed, a_t and a_n 0; the
+    /// frame, κ, τ, ρ, the centre, ω and dω/dt NaN (undefined); every standard error but the
+    /// position's NaN (set, not estimated); STOPPED, and not STRAIGHT or VAGUE.
+    pub fn hold_rows(&mut self, rows: &[usize]) {
+        let (d, s) = (self.dim, self.se_w);
+        let set = |col: &mut Col<'_>, w: usize, v: f64| {
+            if !col.is_empty() {
+                for &r in rows {
+                    col[r * w..(r + 1) * w].fill(v);
+                }
+            }
+        };
+        for (col, w) in [
+            (&mut self.velocity, d),
+            (&mut self.acceleration, d),
+            (&mut self.jerk, d),
+            (&mut self.speed, 1),
+            (&mut self.accel_tangential, 1),
+            (&mut self.accel_normal, 1),
+        ] {
+            set(col, w, 0.0);
+        }
+        for (col, w) in [
+            (&mut self.tangent, d),
+            (&mut self.normal, d),
+            (&mut self.binormal, 3),
+            (&mut self.curvature, 1),
+            (&mut self.signed_curvature, 1),
+            (&mut self.torsion, 1),
+            (&mut self.radius, 1),
+            (&mut self.center, d),
+            (&mut self.angular_speed, 1),
+            (&mut self.angular_accel, 1),
+            (&mut self.se_velocity, s),
+            (&mut self.se_acceleration, s),
+            (&mut self.se_jerk, s),
+            (&mut self.se_speed, s),
+            (&mut self.se_accel_tangential, s),
+            (&mut self.se_accel_normal, s),
+            (&mut self.se_curvature, s),
+            (&mut self.se_torsion, s),
+            (&mut self.se_angular_speed, s),
+            (&mut self.se_radius, s),
+        ] {
+            set(col, w, f64::NAN);
+        }
+        for &r in rows {
+            self.flags[r] = (self.flags[r] | flag::STOPPED) & !(flag::STRAIGHT | flag::VAGUE);
+        }
+    }
+}
+
+impl Outputs {
+    /// The set with `names` (from [`Outputs::NAMES`]) added; unknown names are ignored.
+    pub fn with(self, names: &[&str]) -> Outputs {
+        Outputs(
+            self.0
+                | names
+                    .iter()
+                    .filter_map(|n| Self::bit(n))
+                    .fold(0, |a, b| a | b),
+        )
+    }
 }

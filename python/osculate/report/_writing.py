@@ -242,7 +242,7 @@ tracer particles' row holds the median of each column over the tracks.
 {_listing(names, captions)}
 
 Per-sample tables hold the estimates on the logged rows (`flags` are bits of `osculate.Flag`:
-1 STOPPED, 2 STRAIGHT, 4 EDGE, 8 GAP, 16 INVALID) and, for comparison, the truth. In
+1 STOPPED, 2 STRAIGHT, 4 EDGE, 8 GAP, 16 INVALID, 32 VAGUE) and, for comparison, the truth. In
 `checks.csv` the `error` and `tolerance` of a relative check are fractions (0.01 is 1 %).{cleanup}
 
 ## Cautions
