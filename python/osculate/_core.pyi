@@ -17,6 +17,7 @@ __all__ = [
     "enu_to_geodetic",
     "find_elements",
     "find_speed_changes",
+    "find_stops",
     "find_turns",
     "fit_paths",
     "fresnel",
@@ -99,6 +100,14 @@ def find_speed_changes(
     z_off: float = 1.0,
     min_samples: int = 3,
 ) -> dict[str, npt.NDArray[Any]]: ...
+def find_stops(
+    t: npt.NDArray[np.float64],
+    positions: npt.NDArray[np.float64],
+    flags: npt.NDArray[np.uint8],
+    offsets: npt.NDArray[np.int64],
+    noise: npt.NDArray[np.float64],
+    min_stop: float | None = None,
+) -> tuple[npt.NDArray[np.int64], npt.NDArray[np.int64], npt.NDArray[np.int64]]: ...
 def find_elements(
     t: npt.NDArray[np.float64],
     arclength: npt.NDArray[np.float64],

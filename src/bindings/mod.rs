@@ -8,6 +8,7 @@ mod geodesy;
 mod grouping;
 mod kinematics;
 mod line_integral;
+mod stops;
 mod summary;
 mod turns;
 
@@ -29,6 +30,7 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(kinematics::kinematics_call, m)?)?;
     m.add_function(wrap_pyfunction!(kinematics::polyline_arclength, m)?)?;
     m.add_function(wrap_pyfunction!(summary::summarize, m)?)?;
+    m.add_function(wrap_pyfunction!(stops::find_stops, m)?)?;
     m.add_function(wrap_pyfunction!(elements::find_elements, m)?)?;
     m.add_function(wrap_pyfunction!(elements::fresnel, m)?)?;
     m.add_function(wrap_pyfunction!(turns::find_turns, m)?)?;

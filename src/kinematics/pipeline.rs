@@ -177,7 +177,7 @@ pub fn run_in<'a>(
         Some(v) => v,
         None => fd_swamped(&stats, &k.noise, x, dim, &off),
     };
-    let stops = find_stops(t, x, dim, &k.flags, &off, &k.noise, req.min_stop)?;
+    let stops = find_stops(t, x, dim, &k.flags, offsets, &k.noise, req.min_stop)?;
     let stop_centres = centres(x, dim, &stops)?;
     let held = held_mask(&stops, t.len())?;
     let mut info = fits_info;
