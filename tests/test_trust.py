@@ -442,3 +442,23 @@ def test_one_kernel_call_per_kinematics(monkeypatch):
         ids = np.arange(n) % 2  # two interleaved "tracks"
         osc.kinematics(t, x3, method="smooth", tracks=ids)
         assert calls == ["group_rows", "kinematics"]
+
+
+def test_arc_length_of_a_track_that_starts_with_a_missing_row():
+    # Two stop-and-go vehicles in one batch, the second one's first position missing (NaN).
+    # With stops, the moving stretches are refitted and the arc length is joined from both
+    # fits; the second track's length must not pick up the first track's (it started at
+    # -49.9 m here before the join became per track). Reference: the same track
+    # alone in its own call (same kernels; tolerance 1e-9 m for the summation order).
+    a_t, a_x, _, _ = _stop_and_go(np.random.default_rng(3))
+    b_t, b_x, _, _ = _stop_and_go(np.random.default_rng(4))
+    b_x[0] = np.nan
+    t = np.concatenate([a_t, b_t])
+    x = np.concatenate([a_x, b_x])
+    ids = np.repeat([0, 1], [len(a_t), len(b_t)])
+    both = osc.kinematics(t, x, method="smooth", tracks=ids)
+    alone = osc.kinematics(b_t, b_x, method="smooth")
+    assert len(alone.stops) == 2
+    s = both.arclength[ids == 1]
+    assert np.isnan(s[0]) and s[1] == 0.0
+    np.testing.assert_allclose(s, alone.arclength, atol=1e-9, equal_nan=True)
