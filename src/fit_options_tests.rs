@@ -198,7 +198,9 @@ fn options_of_another_method_are_refused_by_name() {
     assert!(msg.ends_with("(it takes [])"), "{msg}");
     let (_, msg) = error(opts("magic"));
     assert!(
-        msg.contains("expected one of ('fd', 'spline', 'smooth', 'local', 'linear'), got 'magic'"),
+        msg.contains(
+            "expected one of ('fd', 'spline', 'smooth', 'local', 'linear', 'auto'), got 'magic'"
+        ),
         "{msg}"
     );
 }
