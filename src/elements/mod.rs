@@ -69,16 +69,17 @@ pub const MAX_PARAMETERS: usize = 400;
 /// chain beyond it is rejected like a non-finite one (the damping grows, the step shrinks).
 ///
 /// The bound is what makes the work per track bounded: a point on a spiral of curvature change
-/// Δκ over length L costs up to √(10·|Δκ|·L) + 1 Fresnel sub-intervals
-/// ([`crate::fresnel::advance`]; |Δκ|·L ≤ 4·∫|κ| ds), so at most √(40π(m − 1)) + 1 for m
-/// usable samples (195 for 300 samples), where a diverging fit had proposed chains turning
-/// 10¹⁰ rad (10⁶ sub-intervals per point; a 4-sample track took 15 s).
+/// Δκ over length L costs up to √(10·|Δκ|·L) + 1 Fresnel sub-intervals, each summed in at most
+/// 20 pieces ([`crate::fresnel::advance`]; |Δκ|·L ≤ 4·∫|κ| ds), so at most √(40π(m − 1)) + 1
+/// for m usable samples (195 for 300 samples), where a diverging fit had proposed chains
+/// turning 10¹⁰ rad (10⁶ sub-intervals per point; a 4-sample track took 15 s).
 ///
 /// It loses nothing on sane input: on the chains of `tests/test_elements.py` and the
 /// `osculate demo` scenarios the largest turning per sample interval of any initial chain and
-/// of any Levenberg–Marquardt trial was 0.006 rad (500 times below), on random walks (300 unit
-/// normal steps, every estimator) 0.025 rad; a curvature taken from the circle through three
-/// neighbouring samples turns at most 2 rad per chord (κ·chord = 2 sin(θ/2) ≤ 2).
+/// of any Levenberg–Marquardt trial was 0.006 rad (500 times below), of the initial chains of
+/// random walks (300 unit normal steps, every estimator) 0.025 rad; a curvature taken from the
+/// circle through three neighbouring samples turns at most 2 rad per chord (κ·chord =
+/// 2 sin(θ/2) ≤ 2).
 pub const MAX_TURNING_PER_INTERVAL: f64 = std::f64::consts::PI;
 /// Fewest usable samples for any element.
 pub const MIN_SAMPLES: usize = 4;
@@ -407,6 +408,51 @@ mod tests {
             let batch = elements(s, &[0, 4], opt).unwrap();
             assert_eq!(format!("{batch:?}"), format!("{out:?}"));
         });
+    }
+
+    #[test]
+    fn curvature_too_large_to_sum_is_an_error() {
+        // A curvature of 1.5e308 (finite) in a 12-sample track: its square overflows the
+        // segmentation's weighted sums, so the fitted pieces are not finite and neither is the
+        // turning. Found by the fuzz target after the check above was in: a NaN turning passed
+        // it, and a unit whose other elements turned 10⁴ rad per interval took 0.1 s to place.
+        // Expected: the same kind of error, no chain evaluated (counted).
+        let n = 12;
+        let t: Vec<f64> = (0..n).map(|i| i as f64).collect();
+        let mut kappa = vec![0.01; n];
+        kappa[8] = 1.5e308;
+        let xy: Vec<f64> = t.iter().flat_map(|&v| [v, 0.0]).collect();
+        let samples = Samples {
+            t: &t,
+            arclength: &t,
+            curvature: &kappa,
+            se: &vec![1.0; n],
+            flags: &vec![0; n],
+            xy: &xy,
+        };
+        let opt = Options {
+            penalty: f64::NAN,
+            min_length: &[f64::NAN],
+            bandwidth: &[f64::NAN],
+            significance: 3.0,
+            resolution: 1e-3,
+            refine: true,
+            max_iterations: 20,
+        };
+        let err = elements(&samples, &[0, n as i64], &opt).unwrap_err();
+        assert_eq!(
+            (err.argument(), err.track()),
+            ("curvature", Some(0)),
+            "{err}"
+        );
+        assert!(
+            err.detail().contains("not finite (|κ| up to 1.500e308)"),
+            "{err}"
+        );
+        chain::work::take();
+        let out = track::one_track(&samples, 0..n, 0, &opt, 3.0, 1.0);
+        assert!(out.is_err());
+        assert_eq!(chain::work::take().0, 0);
     }
 
     #[test]

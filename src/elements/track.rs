@@ -139,17 +139,30 @@ pub(super) fn one_track(
     // A curvature diagram that winds faster than the samples resolve has no chain to fit or
     // place (and evaluating one costs ~√turning Fresnel sub-intervals per point).
     let max_turning = MAX_TURNING_PER_INTERVAL * (m - 1) as f64;
-    let turning = layout.turning(&q);
-    if turning > max_turning {
-        return Err(KernelError::Track {
-            argument: "curvature",
-            track,
-            detail: format!(
+    if !layout.winds_within(&q, max_turning) {
+        let turning = layout.turning(&q);
+        let detail = if turning.is_nan() {
+            // Curvatures so large that the weighted sums of the segmentation overflow.
+            let big = idx
+                .iter()
+                .map(|&i| s.curvature[i].abs())
+                .fold(0.0, f64::max);
+            format!(
+                "the curvature diagram's fitted pieces are not finite (|κ| up to {big:.3e}): \
+                 no path the samples resolve turns like that"
+            )
+        } else {
+            format!(
                 "the curvature diagram turns {turning:.3e} rad (∫|κ| ds of its fitted pieces) \
                  over {} sample intervals, more than π per interval on average: samples this \
                  sparse do not resolve such a path",
                 m - 1
-            ),
+            )
+        };
+        return Err(KernelError::Track {
+            argument: "curvature",
+            track,
+            detail,
         });
     }
     let px = try_collect(m, idx.iter().map(|&i| s.xy[2 * i]))?;
