@@ -195,3 +195,59 @@ def test_known_bug_filter_is_narrow():
     assert not known_bug(ValueError("positions: something else"))
     assert not known_bug(OverflowError("some other overflow"))
     assert not known_bug(ValueError("could not convert string to float: 'x'"))
+
+
+def _slow_unit_kinematics(k_scale: float):
+    # The `elements` fuzz target's slow unit (fuzz/regressions/elements/winding-spiral), as the
+    # kernel received it: 4 samples 6 apart, a curvature ramp 0 -> -23.8 (times k_scale), positions
+    # no such path passes near, a NaN time, se 0 then negative (unknown). A Kinematics of the
+    # same shape carries it to the public elements_of.
+    import dataclasses
+
+    base = osc.kinematics(np.arange(4.0), np.column_stack([np.arange(4.0), np.zeros(4)]))
+    return dataclasses.replace(
+        base,
+        t=np.array([np.nan, -31.125, -31.125, -31.125]),
+        position=np.array(
+            [[-31.125, -31.125], [-31.125, 41.875], [-7968.0, -31.125], [-31.76171875, -31.125]]
+        ),
+        arclength=np.array([0.0, 6.02, 12.08, 18.18]),
+        signed_curvature=np.array([0.0, -7.98, -15.92, -23.82]) * k_scale,
+        flags=np.array([0, 0, 0, 32], dtype=np.uint8),
+        se={"signed_curvature": np.array([0.0, -7.98, -15.92, -23.82])},
+        fit_info=None,
+    )
+
+
+def test_elements_of_a_curvature_diagram_the_samples_cannot_resolve():
+    # Found by the `elements` fuzz target: one call took 15 s. The curvature diagram turns 217.8
+    # rad (the trapezoids of |kappa| ds give 217.6) over 3 sample intervals; the chain fit then
+    # wandered to spirals turning 1e10 rad. Expected: an InputError naming the argument and the
+    # track (the kernel's Rust tests count that no chain is evaluated).
+    from osculate.elements import elements_of
+
+    k = _slow_unit_kinematics(1.0)
+    with pytest.raises(osc.InputError, match=r"^curvature: track .*turns 2\.178e2 rad .* 3 sample"):
+        elements_of(k, min_length=6.08215e-319, max_iterations=8)
+
+
+def test_elements_fit_stays_within_what_the_samples_resolve():
+    # The same unit with kappa / 100 (2.18 rad over 3 intervals): a fit with 6 residuals for 8
+    # parameters. Was: a chain of two spirals 14.8 km long for 18 m of samples, turning 4e5 rad.
+    # Expected (closed form of the bound): the returned chain turns at most pi per sample interval,
+    # sum of |kappa| ds over the elements <= 3 pi (kappa linear on each: trapezoid, or the two
+    # triangles either side of a sign change); the elements lie in the samples' arc-length span
+    # and hold the 4 samples. Tolerance: none (the kernel checks the same closed form).
+    from osculate.elements import elements_of
+
+    el = elements_of(_slow_unit_kinematics(0.01), min_length=6.08215e-319, max_iterations=8)
+    assert len(el) >= 1
+    k0, k1, length = el.start_curvature, el.end_curvature, el.length
+    same = k0 * k1 >= 0
+    with np.errstate(divide="ignore", invalid="ignore"):
+        apart = (k0**2 + k1**2) / np.abs(k1 - k0)
+    turning = 0.5 * length * np.where(same, np.abs(k0) + np.abs(k1), apart)
+    assert turning.sum() <= 3 * np.pi
+    assert np.all((0.0 <= el.start_arclength) & (el.start_arclength <= el.end_arclength))
+    assert np.all(el.end_arclength <= 18.18)
+    assert el.samples.sum() == 4

@@ -81,6 +81,66 @@ impl Layout {
         let get = |v: Option<usize>| v.map_or(0.0, |i| q[i]);
         (get(self.k_at[e].0), get(self.k_at[e].1))
     }
+
+    /// Total absolute turning `∫|κ| ds` of the chain with parameters `q` (NaN if any length or
+    /// curvature is NaN); O(elements), no chain evaluated.
+    pub(super) fn turning(&self, q: &[f64]) -> f64 {
+        (0..self.kinds.len())
+            .map(|e| {
+                let (k0, k1) = self.curvatures(q, e);
+                turning(k0, k1, q[self.len_at[e]])
+            })
+            .sum()
+    }
+
+    /// Whether the chain with parameters `q` turns at most `max` (false if its turning is NaN).
+    pub(super) fn winds_within(&self, q: &[f64], max: f64) -> bool {
+        self.turning(q) <= max
+    }
+}
+
+/// `∫₀ᴸ |κ(s)| ds` for κ linear from `k0` to `k1` over length `l` ≥ 0 (closed form: the
+/// trapezoid when the ends have one sign, else the two triangles either side of the zero).
+pub(super) fn turning(k0: f64, k1: f64, l: f64) -> f64 {
+    if k0 * k1 >= 0.0 {
+        0.5 * l * (k0.abs() + k1.abs())
+    } else {
+        0.5 * l * (k0 * k0 + k1 * k1) / (k1 - k0).abs()
+    }
+}
+
+/// Work counters of the chain evaluations on this thread (tests only): every chain built and
+/// the largest total turning of one, which bounds the Fresnel sub-intervals of every
+/// [`advance`] on it (see [`crate::elements::MAX_TURNING_PER_INTERVAL`]).
+#[cfg(test)]
+pub(super) mod work {
+    use std::cell::Cell;
+
+    thread_local! {
+        static BUILDS: Cell<usize> = const { Cell::new(0) };
+        static MAX_TURNING: Cell<f64> = const { Cell::new(0.0) };
+    }
+
+    pub(in crate::elements) fn record(turning: f64) {
+        BUILDS.with(|b| b.set(b.get() + 1));
+        // NaN counts as unbounded.
+        MAX_TURNING.with(|m| {
+            let was = m.get();
+            m.set(if was.is_nan() || turning <= was {
+                was
+            } else {
+                turning
+            });
+        });
+    }
+
+    /// (chains built, largest turning) since the last call; resets both.
+    pub(in crate::elements) fn take() -> (usize, f64) {
+        (
+            BUILDS.with(|b| b.replace(0)),
+            MAX_TURNING.with(|m| m.replace(0.0)),
+        )
+    }
 }
 
 /// The chain: start poses of every element and of the end, cumulative lengths.
@@ -117,6 +177,8 @@ impl Chain {
         }
         poses.push(p);
         cum.push(u);
+        #[cfg(test)]
+        work::record(layout.turning(q));
         Chain { poses, cum, k, len }
     }
 

@@ -39,7 +39,10 @@
 //!    with forward differences of single elements. If the fit fails, or the chain has more than
 //!    [`MAX_PARAMETERS`] parameters (the normal equations are dense), the elements of the
 //!    curvature diagram are returned with `refined = false`, placed by a rigid fit of the chain to
-//!    the samples.
+//!    the samples. No chain may turn more than [`MAX_TURNING_PER_INTERVAL`] (π) per sample
+//!    interval on average: a curvature diagram that does is an error naming `curvature`, and a
+//!    step that would wind the chain beyond it is rejected; this bounds the work of every chain
+//!    evaluation.
 
 mod chain;
 mod classify;
@@ -56,6 +59,28 @@ use rayon::prelude::*;
 
 /// Refinement is skipped (curvature-diagram elements returned) beyond this many parameters.
 pub const MAX_PARAMETERS: usize = 400;
+/// Most total turning `∫|κ| ds` of a chain per sample interval of its track (radians): half a
+/// turn between consecutive samples on average.
+///
+/// Samples farther apart than that do not resolve the heading (a chain turning θ + 2π between
+/// two samples fits them as well as one turning θ), so no curvature estimated from them, and no
+/// chain fitted to them, means anything. A track whose curvature diagram (its fitted pieces)
+/// turns more is an error naming `curvature`; a Levenberg–Marquardt step that would wind the
+/// chain beyond it is rejected like a non-finite one (the damping grows, the step shrinks).
+///
+/// The bound is what makes the work per track bounded: a point on a spiral of curvature change
+/// Δκ over length L costs up to √(10·|Δκ|·L) + 1 Fresnel sub-intervals, each summed in at most
+/// 20 pieces ([`crate::fresnel::advance`]; |Δκ|·L ≤ 4·∫|κ| ds), so at most √(40π(m − 1)) + 1
+/// for m usable samples (195 for 300 samples), where a diverging fit had proposed chains
+/// turning 10¹⁰ rad (10⁶ sub-intervals per point; a 4-sample track took 15 s).
+///
+/// It loses nothing on sane input: on the chains of `tests/test_elements.py` and the
+/// `osculate demo` scenarios the largest turning per sample interval of any initial chain and
+/// of any Levenberg–Marquardt trial was 0.006 rad (500 times below), of the initial chains of
+/// random walks (300 unit normal steps, every estimator) 0.025 rad; a curvature taken from the
+/// circle through three neighbouring samples turns at most 2 rad per chord (κ·chord =
+/// 2 sin(θ/2) ≤ 2).
+pub const MAX_TURNING_PER_INTERVAL: f64 = std::f64::consts::PI;
 /// Fewest usable samples for any element.
 pub const MIN_SAMPLES: usize = 4;
 /// Correlation length of smoothed curvatures, in smoothing bandwidths (see the module notes).
@@ -287,6 +312,147 @@ mod tests {
         assert!((out[2].radius - r).abs() < 1e-6);
         assert!((out[1].spiral_parameter - (40.0 * r).sqrt()).abs() < 1e-6);
         assert!(out.iter().all(|e| e.max_distance < 1e-8));
+    }
+
+    /// The input the `elements` fuzz target decoded from the 206-byte slow unit (benches/fuzz.sh,
+    /// kept in fuzz/regressions/elements/winding-spiral), with its curvature scaled by
+    /// `k_scale`: 4 samples 6 apart, κ a ramp 0 → −23.8, positions far off any such path.
+    fn slow_unit(k_scale: f64, run: impl FnOnce(&Samples, &Options)) {
+        let t = [f64::NAN, -31.125, -31.125, -31.125];
+        let s = [0.0, 6.02, 12.08, 18.18];
+        let kappa = [0.0, -7.98, -15.92, -23.82].map(|v| v * k_scale);
+        let xy = [
+            -31.125,
+            -31.125,
+            -31.125,
+            41.875,
+            -7968.0,
+            -31.125,
+            -31.76171875,
+            -31.125,
+        ];
+        let se = [0.0, -7.98, -15.92, -23.82];
+        let samples = Samples {
+            t: &t,
+            arclength: &s,
+            curvature: &kappa,
+            se: &se,
+            flags: &[0, 0, 0, 32],
+            xy: &xy,
+        };
+        let opt = Options {
+            penalty: f64::NAN,
+            min_length: &[6.08215e-319],
+            bandwidth: &[f64::NEG_INFINITY],
+            significance: 3.0,
+            resolution: 1e-3,
+            refine: true,
+            max_iterations: 8,
+        };
+        run(&samples, &opt);
+    }
+
+    /// `one_track` on this thread (the work counters are per thread), with the minimum length
+    /// and correlation length `elements` derives for the slow unit's options (given, and 1).
+    fn one_track_counted(s: &Samples, opt: &Options) -> (Result<Vec<Element>>, usize, f64) {
+        chain::work::take();
+        let out = track::one_track(s, 0..4, 0, opt, opt.min_length[0], 1.0);
+        let (builds, turning) = chain::work::take();
+        (out, builds, turning)
+    }
+
+    #[test]
+    fn curvature_diagram_winding_past_the_samples_is_an_error() {
+        // The fuzz target's slow unit (15 s in one call): its curvature diagram, one spiral per
+        // half, turns 217.8 rad over 3 sample intervals (∫|κ| ds of the ramp, trapezoids: 24.0 +
+        // 72.4 + 121.2 = 217.6 for the samples; the fitted pieces' ends differ in the third
+        // digit). Was: a Levenberg–Marquardt fit that wandered to spirals 278 km long turning
+        // 10¹⁰ rad, each point of them 10⁶ Fresnel sub-intervals. Now the error names the
+        // argument and the track, before any chain is evaluated (counted, not timed).
+        slow_unit(1.0, |s, opt| {
+            let err = elements(s, &[0, 4], opt).unwrap_err();
+            assert_eq!((err.argument(), err.track()), ("curvature", Some(0)));
+            assert!(err.detail().contains("2.178e2 rad"), "{err}");
+            let (out, builds, _) = one_track_counted(s, opt);
+            assert!(out.is_err());
+            assert_eq!(builds, 0);
+        });
+    }
+
+    #[test]
+    fn fit_steps_never_wind_the_chain_past_the_samples() {
+        // The slow unit with κ / 100 (2.18 rad over 3 intervals, under the bound 3π): the
+        // chain is fitted to positions no such chain passes near, 6 residuals for 8 parameters.
+        // Was: the first Gauss–Newton step proposed spirals 8.9 km long turning 4·10⁵ rad, and
+        // the result kept two of them (chain length 14.8 km for 18 m of samples). Every chain
+        // the fit evaluates now turns at most π per sample interval (3π here, no tolerance: the
+        // check is on the same closed form), and the chains built are at most 1 placement + 4
+        // rounds of (1 start + 8 iterations × (5 finite differences + 12 trials)), counted.
+        slow_unit(0.01, |s, opt| {
+            let (out, builds, turning) = one_track_counted(s, opt);
+            let out = out.unwrap();
+            assert!(turning <= 3.0 * std::f64::consts::PI, "{turning}");
+            assert!(builds <= 1 + 4 * (1 + 8 * (5 + 12)), "{builds}");
+            assert!(!out.is_empty());
+            let total: f64 = out
+                .iter()
+                .map(|e| chain::turning(e.start_curvature, e.end_curvature, e.length))
+                .sum();
+            assert!(total <= 3.0 * std::f64::consts::PI, "{out:?}");
+            for e in &out {
+                assert!(0.0 <= e.start_arclength && e.start_arclength <= e.end_arclength);
+                assert!(e.end_arclength <= 18.18);
+            }
+            assert_eq!(out.iter().map(|e| e.samples).sum::<usize>(), 4);
+            // The batch entry point gives the same rows (Debug text: exact, and NaN equals NaN).
+            let batch = elements(s, &[0, 4], opt).unwrap();
+            assert_eq!(format!("{batch:?}"), format!("{out:?}"));
+        });
+    }
+
+    #[test]
+    fn curvature_too_large_to_sum_is_an_error() {
+        // A curvature of 1.5e308 (finite) in a 12-sample track: its square overflows the
+        // segmentation's weighted sums, so the fitted pieces are not finite and neither is the
+        // turning. Found by the fuzz target after the check above was in: a NaN turning passed
+        // it, and a unit whose other elements turned 10⁴ rad per interval took 0.1 s to place.
+        // Expected: the same kind of error, no chain evaluated (counted).
+        let n = 12;
+        let t: Vec<f64> = (0..n).map(|i| i as f64).collect();
+        let mut kappa = vec![0.01; n];
+        kappa[8] = 1.5e308;
+        let xy: Vec<f64> = t.iter().flat_map(|&v| [v, 0.0]).collect();
+        let samples = Samples {
+            t: &t,
+            arclength: &t,
+            curvature: &kappa,
+            se: &vec![1.0; n],
+            flags: &vec![0; n],
+            xy: &xy,
+        };
+        let opt = Options {
+            penalty: f64::NAN,
+            min_length: &[f64::NAN],
+            bandwidth: &[f64::NAN],
+            significance: 3.0,
+            resolution: 1e-3,
+            refine: true,
+            max_iterations: 20,
+        };
+        let err = elements(&samples, &[0, n as i64], &opt).unwrap_err();
+        assert_eq!(
+            (err.argument(), err.track()),
+            ("curvature", Some(0)),
+            "{err}"
+        );
+        assert!(
+            err.detail().contains("not finite (|κ| up to 1.500e308)"),
+            "{err}"
+        );
+        chain::work::take();
+        let out = track::one_track(&samples, 0..n, 0, &opt, 3.0, 1.0);
+        assert!(out.is_err());
+        assert_eq!(chain::work::take().0, 0);
     }
 
     #[test]

@@ -11,6 +11,9 @@ pub(super) struct Problem<'a> {
     pub(super) px: &'a [f64],
     pub(super) py: &'a [f64],
     pub(super) layout: Layout,
+    /// Largest total turning `∫|κ| ds` of a chain the fit may try (see
+    /// [`crate::elements::MAX_TURNING_PER_INTERVAL`]).
+    pub(super) max_turning: f64,
 }
 
 pub(super) struct State {
@@ -227,6 +230,13 @@ impl Problem<'_> {
                 for &i in &self.layout.len_at {
                     q[i] = q[i].max(0.0);
                 }
+                // A chain winding faster than the samples resolve is outside the trusted
+                // region: a shorter step (its evaluation alone could cost ~√turning Fresnel
+                // sub-intervals per point).
+                if !self.layout.winds_within(&q, self.max_turning) {
+                    mu *= 10.0;
+                    continue;
+                }
                 // Foot-point guesses: same fraction of the same element.
                 let guess: Vec<f64> =
                     st.u.iter()
@@ -313,6 +323,7 @@ mod gradient_check {
             px: &px,
             py: &py,
             layout,
+            max_turning: f64::INFINITY,
         };
         let q = vec![0.01, -0.02, 0.31, 51.0, 38.0, 0.0098, 60.0];
         assert_eq!(pr.layout.count, q.len());

@@ -6,8 +6,8 @@ use super::classify::{merge, Piece};
 use super::refine::{Problem, State};
 use super::segment::{pelt, Fit, Prefix};
 use super::table::{Element, Options, Samples, ARC, SPIRAL, UNUSABLE};
-use super::{quantile, MAX_PARAMETERS, MIN_SAMPLES, PENALTY_PER_LOG};
-use crate::error::{try_collect, try_filled, Result};
+use super::{quantile, MAX_PARAMETERS, MAX_TURNING_PER_INTERVAL, MIN_SAMPLES, PENALTY_PER_LOG};
+use crate::error::{try_collect, try_filled, KernelError, Result};
 use crate::fresnel::Pose;
 
 /// Elements of one track (global row range `r`).
@@ -136,6 +136,35 @@ pub(super) fn one_track(
             *v /= c as f64;
         }
     }
+    // A curvature diagram that winds faster than the samples resolve has no chain to fit or
+    // place (and evaluating one costs ~√turning Fresnel sub-intervals per point).
+    let max_turning = MAX_TURNING_PER_INTERVAL * (m - 1) as f64;
+    if !layout.winds_within(&q, max_turning) {
+        let turning = layout.turning(&q);
+        let detail = if turning.is_nan() {
+            // Curvatures so large that the weighted sums of the segmentation overflow.
+            let big = idx
+                .iter()
+                .map(|&i| s.curvature[i].abs())
+                .fold(0.0, f64::max);
+            format!(
+                "the curvature diagram's fitted pieces are not finite (|κ| up to {big:.3e}): \
+                 no path the samples resolve turns like that"
+            )
+        } else {
+            format!(
+                "the curvature diagram turns {turning:.3e} rad (∫|κ| ds of its fitted pieces) \
+                 over {} sample intervals, more than π per interval on average: samples this \
+                 sparse do not resolve such a path",
+                m - 1
+            )
+        };
+        return Err(KernelError::Track {
+            argument: "curvature",
+            track,
+            detail,
+        });
+    }
     let px = try_collect(m, idx.iter().map(|&i| s.xy[2 * i]))?;
     let py = try_collect(m, idx.iter().map(|&i| s.xy[2 * i + 1]))?;
     // Rigid placement of the unrefined chain on the samples (2-D Kabsch).
@@ -168,6 +197,7 @@ pub(super) fn one_track(
         px: &px,
         py: &py,
         layout,
+        max_turning,
     };
     // Elements that the fit shrinks below half the minimum length (or half a sample spacing)
     // are dropped and the chain refitted (a curvature jump smoothed into a short ramp gives
@@ -209,6 +239,11 @@ pub(super) fn one_track(
             if c > 1 {
                 *v /= c as f64;
             }
+        }
+        if !layout.winds_within(&nq, max_turning) {
+            // Without the short elements (their curvatures averaged into the neighbours) the
+            // chain would wind beyond the bound: keep the refined chain with them.
+            break (st, true);
         }
         q = nq;
         problem.layout = layout;
