@@ -164,9 +164,17 @@ def elements_of(
     Elements
         See ``ELEMENT_COLUMNS`` for the columns and units.
 
+    Raises
+    ------
+    InputError
+        Naming ``curvature`` and the track when a track's curvature diagram is not finite or
+        turns more than π per sample interval on average (no sampled path turns like that: the
+        curvature is not that of the positions, e.g. data mixed from several sources); the
+        chains fitted are held to the same bound.
+
     Notes
     -----
-    Three steps per track, all in Rust (``src/elements.rs``): the signed curvature against arc
+    Three steps per track, all in Rust (``src/elements/``): the signed curvature against arc
     length is cut into pieces linear in s by exact penalized segmentation (optimal partitioning
     with the PELT pruning of R. Killick, P. Fearnhead & I. A. Eckley, JASA 107 (2012)
     1590–1598; weighted least squares with weights 1/(3 bandwidths · se²)); each piece is a
