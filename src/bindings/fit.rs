@@ -4,7 +4,7 @@ use super::error::{contiguous, detached, rows};
 use super::kinematics::{kinematics_options, to_dict};
 use crate::diff::FdOrder;
 use crate::error::try_collect;
-use crate::fit::{fit_batch, Estimator, EstimatorOptions, Fits, Method};
+use crate::fit::{fit_batch, Estimator, EstimatorOptions, FitInfo, Fits, Method};
 use crate::fit_options::EndVelocities;
 use crate::kinematics::{of_fits, of_fits_at, Options};
 use crate::resample::{resample, Spacing};
@@ -319,19 +319,24 @@ impl FittedPaths {
     /// Per-track choices: dimensionless smoothing λ*, effective degrees of freedom, criterion,
     /// window.
     fn info<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyDict>> {
-        let infos: Vec<_> = self.fits.tracks.iter().map(|f| f.info()).collect();
-        let out = PyDict::new(py);
-        let col = |f: fn(&crate::fit::FitInfo) -> f64| -> Bound<'py, PyArray1<f64>> {
-            infos.iter().map(f).collect::<Vec<f64>>().into_pyarray(py)
-        };
-        out.set_item("smoothing", col(|i| i.smoothing))?;
-        out.set_item("edf", col(|i| i.edf))?;
-        out.set_item("criterion", col(|i| i.criterion))?;
-        out.set_item("window", col(|i| i.window))?;
-        out.set_item("length_error", col(|i| i.length_error))?;
-        out.set_item("noise", col(|i| i.noise))?;
-        out.set_item("jerk_smoothing", col(|i| i.jerk_smoothing))?;
-        out.set_item("bandwidth", col(|i| i.bandwidth))?;
-        Ok(out)
+        let infos: Vec<FitInfo> = self.fits.tracks.iter().map(|f| f.info()).collect();
+        info_dict(py, &infos)
     }
+}
+
+/// Per-track fit choices as a dictionary of arrays (one entry per [`FitInfo`] field).
+pub(crate) fn info_dict<'py>(py: Python<'py>, infos: &[FitInfo]) -> PyResult<Bound<'py, PyDict>> {
+    let out = PyDict::new(py);
+    let col = |f: fn(&FitInfo) -> f64| -> Bound<'py, PyArray1<f64>> {
+        infos.iter().map(f).collect::<Vec<f64>>().into_pyarray(py)
+    };
+    out.set_item("smoothing", col(|i| i.smoothing))?;
+    out.set_item("edf", col(|i| i.edf))?;
+    out.set_item("criterion", col(|i| i.criterion))?;
+    out.set_item("window", col(|i| i.window))?;
+    out.set_item("length_error", col(|i| i.length_error))?;
+    out.set_item("noise", col(|i| i.noise))?;
+    out.set_item("jerk_smoothing", col(|i| i.jerk_smoothing))?;
+    out.set_item("bandwidth", col(|i| i.bandwidth))?;
+    Ok(out)
 }

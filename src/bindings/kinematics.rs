@@ -349,21 +349,7 @@ pub fn kinematics_call<'py>(
     stats.set_item("count", count.into_pyarray(py))?;
     out.set_item("stats", stats)?;
     if !fit_info.is_empty() {
-        let col = |g: fn(&crate::fit::FitInfo) -> f64| fit_info.iter().map(g).collect::<Vec<_>>();
-        let info = columns_dict(
-            py,
-            vec![
-                ("smoothing", col(|i| i.smoothing)),
-                ("edf", col(|i| i.edf)),
-                ("criterion", col(|i| i.criterion)),
-                ("window", col(|i| i.window)),
-                ("length_error", col(|i| i.length_error)),
-                ("noise", col(|i| i.noise)),
-                ("jerk_smoothing", col(|i| i.jerk_smoothing)),
-                ("bandwidth", col(|i| i.bandwidth)),
-            ],
-        )?;
-        out.set_item("info", info)?;
+        out.set_item("info", super::fit::info_dict(py, &fit_info)?)?;
     }
     Ok(out)
 }
