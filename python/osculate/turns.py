@@ -172,12 +172,16 @@ def _plane(k: Kinematics, up: Any) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     return c(kappa), c(np.column_stack([x @ e1, x @ e2])), c(np.column_stack([v @ e1, v @ e2]))
 
 
-def _half(k: Kinematics) -> int:
-    """Half-width of the stretches for peaks: as the summary's (about 1.5 bandwidths)."""
-    from .summary import STRETCH_BANDWIDTHS
+#: Half-width of the stretches whose means give a turn's peak (``peak_radius``,
+#: ``max_accel_normal``), in smoothing bandwidths: short, so the peak stays where the turn is
+#: tightest (a turn's own radius is the circle through its core, ``min_radius``).
+PEAK_BANDWIDTHS = 1.5
 
+
+def _half(k: Kinematics) -> int:
+    """Half-width of the stretches for peaks (:data:`PEAK_BANDWIDTHS`)."""
     band = np.asarray((k.fit_info or {}).get("bandwidth", [np.nan]), dtype=float)
-    h = np.rint(STRETCH_BANDWIDTHS * np.nanmedian(band)) if np.isfinite(band).any() else 1
+    h = np.rint(PEAK_BANDWIDTHS * np.nanmedian(band)) if np.isfinite(band).any() else 1
     return int(max(h, 1))
 
 
