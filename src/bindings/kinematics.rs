@@ -303,7 +303,7 @@ pub fn kinematics_call<'py>(
         drop((tk, xk, wk));
         let mut twist = std::mem::take(&mut f.twist);
         if let Some(inv) = inv {
-            f.k = f.k.into_rows_in(inv, &mut lend)?;
+            f.k = f.k.into_rows(inv, &mut lend)?;
             if rmf {
                 twist = crate::grouping::take_rows(&twist, 1, inv)?;
             }

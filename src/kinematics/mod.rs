@@ -327,22 +327,9 @@ macro_rules! columns {
 
             /// Put the rows in the order `index` (row i becomes row `index[i]` of `self`), one
             /// column at a time so only one extra column is held: the caller's row order from
-            /// the kernels'. `index` must be a permutation of the rows (checked by the gather).
-            pub fn into_rows(mut self, index: &[usize]) -> Result<Self> {
-                let (d, s) = (self.dim, self.se_w);
-                $(
-                    if !self.$name.is_empty() {
-                        let v = take_rows(&self.$name, width!($w, d, s), index)?;
-                        self.$name.set(v);
-                    }
-                )*
-                self.flags = take_rows(&self.flags, 1, index)?;
-                self.n = index.len();
-                Ok(self)
-            }
-
-            /// [`Kinematics::into_rows`], writing the columns `lend` has buffers for into them.
-            pub fn into_rows_in(mut self, index: &[usize], lend: &mut Lend<'a>) -> Result<Self> {
+            /// the kernels'. Columns `lend` has buffers for are written into them. `index` must
+            /// be a permutation of the rows (checked by the gather).
+            pub fn into_rows(mut self, index: &[usize], lend: &mut Lend<'a>) -> Result<Self> {
                 let (d, s) = (self.dim, self.se_w);
                 $(
                     if !self.$name.is_empty() {

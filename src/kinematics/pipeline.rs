@@ -141,8 +141,8 @@ pub fn run_in<'a>(
         // The frame is carried along the tangents and the (fitted) positions.
         opts.outputs = opts.outputs.with(&["tangent", "normal", "position"]);
     }
-    // Finite differences' verdict when "auto" asked for it (the final estimate's otherwise).
-    let mut verdict = None;
+    // Statistics and verdict of the finite differences "auto" kept (computed once).
+    let mut kept = None;
     let (mut k, fits_method, fits_info) = match &req.estimator {
         Estimator::Fd(order) => (
             fd(t, x, dim, offsets, *order, &opts, lend)?,
@@ -157,25 +157,29 @@ pub fn run_in<'a>(
             let k = fd(t, x, dim, offsets, *order, &opts, lend)?;
             let stats = track_stats(t, x, dim, offsets, &k.flags)?;
             let swamped = fd_swamped(&stats, &k.noise, x, dim, &off);
-            let noisy = swamped.iter().any(|&b| b);
-            verdict = Some(swamped);
-            if noisy {
+            if swamped.iter().any(|&b| b) {
                 let lend = k.into_lend();
                 let fit_opts = Options {
                     uncertainty: keeps_covariance(fallback),
                     ..opts
                 };
                 let (k, info) = fitted(t, x, dim, offsets, req.weights, fallback, &fit_opts, lend)?;
+                // The fallback's flags are new; the verdict stays that of finite differences.
+                kept = Some((track_stats(t, x, dim, offsets, &k.flags)?, swamped));
                 (k, Some(fallback), info)
             } else {
+                kept = Some((stats, swamped));
                 (k, None, Vec::new())
             }
         }
     };
-    let stats = track_stats(t, x, dim, offsets, &k.flags)?;
-    let swamped = match verdict {
-        Some(v) => v,
-        None => fd_swamped(&stats, &k.noise, x, dim, &off),
+    let (stats, swamped) = match kept {
+        Some(s) => s,
+        None => {
+            let stats = track_stats(t, x, dim, offsets, &k.flags)?;
+            let swamped = fd_swamped(&stats, &k.noise, x, dim, &off);
+            (stats, swamped)
+        }
     };
     let stops = find_stops(t, x, dim, &k.flags, offsets, &k.noise, req.min_stop)?;
     let stop_centres = centres(x, dim, &stops)?;
