@@ -35,12 +35,7 @@ class EstimatorOptions:
     def unchecked(cls, method: str, given: dict[str, Any]) -> EstimatorOptions:
         """Return the options as given, for a kernel call that checks them itself."""
         opts = cls.__new__(cls)
-        opts.method = method
-        opts.options = {"method": method}
-        opts.options.update((k, v) for k, v in given.items() if v is not None)
-        opts.weights = opts.options.pop("weights", None)
-        if "bc_velocity" in opts.options:
-            opts.options["bc_velocity"] = as_real_array("bc_velocity", given["bc_velocity"])
+        opts._take(method, given)
         return opts
 
     @classmethod
@@ -50,13 +45,17 @@ class EstimatorOptions:
         opts._check(method, given, fit_only=True)
         return opts
 
-    def _check(self, method: str, given: dict[str, Any], fit_only: bool) -> None:
+    def _take(self, method: str, given: dict[str, Any]) -> None:
+        """Keep the options given (None ones left out), arrays converted."""
         self.method = method
         self.options: dict[str, Any] = {"method": method}
         self.options.update((k, v) for k, v in given.items() if v is not None)
         self.weights: Any = self.options.pop("weights", None)
         if "bc_velocity" in self.options:
             self.options["bc_velocity"] = as_real_array("bc_velocity", given["bc_velocity"])
+
+    def _check(self, method: str, given: dict[str, Any], fit_only: bool) -> None:
+        self._take(method, given)
         checked = _core.check_estimator_options(
             {**self.options, "weights": self.weights}, fit_only=fit_only
         )
